@@ -1,0 +1,101 @@
+// npm run demo: a fresh demo lab on the embedded database, the production server with the mail
+// catcher, and a simulated agent whose run loses lock within the first two minutes.
+import { spawn, type ChildProcess } from 'node:child_process';
+import { rmSync } from 'node:fs';
+import path from 'node:path';
+import { eq } from 'drizzle-orm';
+import { addUser } from '../lib/server/auth/users';
+import { createAuth } from '../lib/server/auth/options';
+import { loadAuthSecret } from '../lib/server/auth/secret';
+import { lockDataDir, unlockDataDir } from '../lib/server/data-lock';
+import { openDatabase } from '../lib/server/db';
+import { user } from '../lib/server/db/schema';
+import { addMember, createSetup } from '../lib/server/setups/service';
+import { createAgentToken } from '../lib/server/setups/tokens';
+import { DEMO_PASSWORD, demoPeople, demoSetups } from './demo-lab';
+
+const root = path.resolve(import.meta.dirname, '../..');
+const dataDir = path.resolve(process.env.PHASEWARDEN_DATA || path.join(root, '.data/demo'));
+const port = Number(process.env.PORT ?? 3000);
+const origin = process.env.ORIGIN ?? `http://localhost:${port}`;
+
+async function seed(): Promise<string> {
+	// The demo always starts from a clean lab; it only ever clears its own folder.
+	rmSync(dataDir, { recursive: true, force: true });
+	lockDataDir(dataDir);
+	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
+	try {
+		const auth = createAuth({ db, secret: loadAuthSecret(dataDir, process.env.BETTER_AUTH_SECRET), baseURL: origin });
+		for (const person of demoPeople) await addUser(auth, { ...person, password: DEMO_PASSWORD });
+		const ids = new Map((await db.select({ id: user.id, email: user.email }).from(user)).map((u) => [u.email, u.id]));
+		const [admin] = await db.select().from(user).where(eq(user.email, demoPeople[0].email));
+		let secret = '';
+		for (const s of demoSetups) {
+			const setup = await createSetup(db, { ...s }, admin.id);
+			for (const email of s.members) await addMember(db, setup.id, ids.get(email)!);
+			if (!secret) secret = (await createAgentToken(db, setup.id, 'demo instrument PC', admin.id)).secret;
+		}
+		return secret;
+	} finally {
+		await close();
+		unlockDataDir(dataDir);
+	}
+}
+
+async function waitForServer(url: string, child: ChildProcess) {
+	for (let i = 0; i < 150; i++) {
+		if (child.exitCode !== null) throw new Error('the server exited during start-up');
+		try {
+			await fetch(url);
+			return;
+		} catch {
+			await new Promise((r) => setTimeout(r, 200));
+		}
+	}
+	throw new Error(`the server did not answer at ${url}`);
+}
+
+const token = await seed();
+const env = { ...process.env, PHASEWARDEN_DATA: dataDir, PHASEWARDEN_CATCHER: '1', PORT: String(port), ORIGIN: origin };
+const server = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });
+await waitForServer(`http://127.0.0.1:${port}/signin`, server);
+
+const tsx = path.join(root, 'node_modules/.bin/tsx');
+const agent = spawn(
+	tsx,
+	[
+		path.join(root, 'agent/cli.ts'),
+		'--simulate',
+		'--url', `ws://127.0.0.1:${port}/api/agent/stream`,
+		'--token', token,
+		'--run-key', 'bramble-t6-overnight',
+		'--run-name', 'T6 overnight, pump 15.02 GHz',
+		'--lose-lock-at-min', '1',
+		'--lock-loss-min', '1.5',
+		'--spool', path.join(dataDir, 'agent-spool.ndjson'),
+		'--seed', '7'
+	],
+	{ env: process.env, stdio: ['ignore', 'inherit', 'inherit'] }
+);
+
+console.log(`
+Phasewarden demo — the Aldermoor low-temperature lab
+  open            ${origin}
+  sign in as      ${demoPeople.map((p) => `${p.email} (${p.role})`).join('\n                  ')}
+  password        ${DEMO_PASSWORD}
+  mail catcher    ${origin}/api/dev/mail (signed in as an operator or admin)
+  data            ${dataDir}
+A simulated agent streams run "T6 overnight" on Fridge Bramble; it loses lock after one minute.
+Ctrl-C stops everything.
+`);
+
+function stop() {
+	agent.kill('SIGTERM');
+	server.kill('SIGTERM');
+}
+process.on('SIGINT', stop);
+process.on('SIGTERM', stop);
+server.on('exit', (code) => {
+	agent.kill('SIGTERM');
+	process.exit(code ?? 0);
+});

@@ -1,0 +1,38 @@
+import { building } from '$app/environment';
+import { json, redirect, type Handle, type ServerInit } from '@sveltejs/kit';
+import { sequence } from '@sveltejs/kit/hooks';
+import { svelteKitHandler } from 'better-auth/svelte-kit';
+import { isRole } from '$lib/roles';
+import { handleAgentUpgrade } from '$lib/server/ingest/upgrade';
+import { getRuntime } from '$lib/server/runtime';
+
+const UPGRADE_KEY = Symbol.for('phasewarden.upgrade');
+
+export const init: ServerInit = async () => {
+	await getRuntime();
+	// The production server (src/bin/serve.js) hands WebSocket upgrades to this bundle's ingest.
+	(globalThis as Record<symbol, unknown>)[UPGRADE_KEY] = handleAgentUpgrade;
+};
+
+/** better-auth's own routes (/api/auth/*), then the session on locals. */
+const authentication: Handle = async ({ event, resolve }) => {
+	const { auth } = await getRuntime();
+	const result = await auth.api.getSession({ headers: event.request.headers });
+	event.locals.user = result
+		? { id: result.user.id, email: result.user.email, name: result.user.name, role: isRole(result.user.role) ? result.user.role : 'observer' }
+		: null;
+	event.locals.sessionId = result?.session.id ?? null;
+	return svelteKitHandler({ event, resolve, auth, building });
+};
+
+const PUBLIC_PATHS = ['/signin', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt'];
+
+/** Everything but sign-in needs a signed-in person; roles are checked in each route. */
+const signedIn: Handle = async ({ event, resolve }) => {
+	const path = event.url.pathname;
+	if (event.locals.user || PUBLIC_PATHS.some((p) => path === p || path.startsWith(p))) return resolve(event);
+	if (path.startsWith('/api/')) return json({ message: 'sign in first' }, { status: 401 });
+	redirect(303, `/signin?next=${encodeURIComponent(path + event.url.search)}`);
+};
+
+export const handle = sequence(authentication, signedIn);

@@ -1,0 +1,28 @@
+// Settings from the environment, read once. Every variable is listed in the README.
+import path from 'node:path';
+
+export interface Config {
+	dataDir: string;
+	origin: string | undefined;
+	authSecret: string | undefined;
+	smtpUrl: string | undefined;
+	mailFrom: string;
+	catcher: boolean;
+	catcherPort: number;
+	migrationsDir: string;
+	silenceCheckMs: number;
+}
+
+export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
+	return {
+		dataDir: path.resolve(env.PHASEWARDEN_DATA || '.data'),
+		origin: env.ORIGIN || undefined,
+		authSecret: env.BETTER_AUTH_SECRET || undefined,
+		smtpUrl: env.SMTP_URL || undefined,
+		mailFrom: env.MAIL_FROM || 'Phasewarden <phasewarden@localhost>',
+		catcher: env.PHASEWARDEN_CATCHER === '1',
+		catcherPort: Number(env.PHASEWARDEN_CATCHER_PORT ?? 2525),
+		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
+		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000)
+	};
+}

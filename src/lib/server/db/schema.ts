@@ -1,0 +1,218 @@
+// Phasewarden's tables. Times from the server clock are timestamptz; times from the agent's clock
+// (frame `t`) stay as Unix milliseconds so replays compare exactly what the agent sent.
+import { sql } from 'drizzle-orm';
+import {
+	bigint,
+	boolean,
+	doublePrecision,
+	index,
+	integer,
+	jsonb,
+	pgTable,
+	primaryKey,
+	serial,
+	text,
+	timestamp,
+	uniqueIndex
+} from 'drizzle-orm/pg-core';
+import { user } from './auth-schema';
+
+export * from './auth-schema';
+
+const created = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
+
+export const setups = pgTable('setups', {
+	id: text('id').primaryKey(),
+	name: text('name').notNull().unique(),
+	description: text('description').notNull().default(''),
+	order: integer('order').notNull(),
+	states: integer('states').notNull(),
+	modeGHz: doublePrecision('mode_ghz').notNull(),
+	nominalMK: doublePrecision('nominal_mk').notNull(),
+	createdAt: created(),
+	createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' })
+});
+
+/** People who look after a setup; its operators receive the alerts. */
+export const setupMembers = pgTable(
+	'setup_members',
+	{
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		userId: text('user_id')
+			.notNull()
+			.references(() => user.id, { onDelete: 'cascade' }),
+		addedAt: created()
+	},
+	(t) => [primaryKey({ columns: [t.setupId, t.userId] })]
+);
+
+export const agentTokens = pgTable(
+	'agent_tokens',
+	{
+		id: text('id').primaryKey(),
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		label: text('label').notNull(),
+		/** SHA-256 of the secret; the secret itself is shown once and never stored. */
+		tokenHash: text('token_hash').notNull().unique(),
+		/** First characters of the secret, so people can tell tokens apart. */
+		prefix: text('prefix').notNull(),
+		createdAt: created(),
+		createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' }),
+		revokedAt: timestamp('revoked_at', { withTimezone: true }),
+		revokedBy: text('revoked_by').references(() => user.id, { onDelete: 'set null' }),
+		lastUsedAt: timestamp('last_used_at', { withTimezone: true })
+	},
+	(t) => [index('agent_tokens_setup_idx').on(t.setupId)]
+);
+
+export const runs = pgTable(
+	'runs',
+	{
+		id: text('id').primaryKey(),
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		key: text('key').notNull(),
+		name: text('name').notNull(),
+		order: integer('order').notNull(),
+		states: integer('states').notNull(),
+		modeGHz: doublePrecision('mode_ghz').notNull(),
+		operatingPoint: jsonb('operating_point').$type<Record<string, number | string | boolean>>(),
+		agent: text('agent').notNull().default(''),
+		status: text('status', { enum: ['open', 'ended'] }).notNull().default('open'),
+		startedAt: created(),
+		endedAt: timestamp('ended_at', { withTimezone: true }),
+		endReason: text('end_reason'),
+		lastSeq: integer('last_seq').notNull().default(0),
+		/** Agent clock (ms) of the last committed frame. */
+		lastFrameT: bigint('last_frame_t', { mode: 'number' }),
+		/** Server clock of the last committed frame: what `agent_silent` watches. */
+		lastFrameAt: timestamp('last_frame_at', { withTimezone: true }),
+		lastLock: doublePrecision('last_lock'),
+		frameCount: integer('frame_count').notNull().default(0),
+		gapCount: integer('gap_count').notNull().default(0),
+		/** The detector engine's state after the last committed frame, so a restart resumes it. */
+		detectorState: jsonb('detector_state')
+	},
+	(t) => [uniqueIndex('runs_setup_key_idx').on(t.setupId, t.key), index('runs_status_idx').on(t.status)]
+);
+
+export const frames = pgTable(
+	'frames',
+	{
+		runId: text('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		seq: integer('seq').notNull(),
+		t: bigint('t', { mode: 'number' }).notNull(),
+		windowS: doublePrecision('window_s').notNull(),
+		shots: integer('shots').notNull(),
+		vacuum: integer('vacuum').notNull(),
+		counts: jsonb('counts').$type<number[]>().notNull(),
+		lock: doublePrecision('lock').notNull(),
+		switches: integer('switches').notNull(),
+		dwellS: doublePrecision('dwell_s').notNull(),
+		escapes: integer('escapes').notNull(),
+		vacuumS: doublePrecision('vacuum_s').notNull(),
+		transitions: jsonb('transitions').$type<number[]>(),
+		amp: doublePrecision('amp'),
+		aux: jsonb('aux').$type<Record<string, number>>(),
+		iq: jsonb('iq').$type<{ bins: number; extent: number; counts: number[] }>(),
+		receivedAt: created()
+	},
+	(t) => [primaryKey({ columns: [t.runId, t.seq] })]
+);
+
+/** Seq ranges the agent never delivered: lost data, shown on the timeline. */
+export const frameGaps = pgTable(
+	'frame_gaps',
+	{
+		id: serial('id').primaryKey(),
+		runId: text('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		fromSeq: integer('from_seq').notNull(),
+		toSeq: integer('to_seq').notNull(),
+		detectedAt: created()
+	},
+	(t) => [index('frame_gaps_run_idx').on(t.runId)]
+);
+
+export const incidents = pgTable(
+	'incidents',
+	{
+		id: text('id').primaryKey(),
+		runId: text('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		kind: text('kind').notNull(),
+		/** Distinguishes several conditions of one kind (e.g. one aux limit per name); '' otherwise. */
+		key: text('key').notNull().default(''),
+		state: text('state', { enum: ['open', 'acknowledged', 'resolved'] }).notNull().default('open'),
+		severity: text('severity', { enum: ['critical', 'warning', 'info'] }).notNull(),
+		summary: text('summary').notNull(),
+		evidence: jsonb('evidence').$type<Record<string, unknown>>().notNull(),
+		openedAt: created(),
+		openedSeq: integer('opened_seq'),
+		/** Agent clock (ms) of the frame that opened it; null for clock-driven kinds. */
+		openedT: bigint('opened_t', { mode: 'number' }),
+		acknowledgedAt: timestamp('acknowledged_at', { withTimezone: true }),
+		acknowledgedBy: text('acknowledged_by').references(() => user.id, { onDelete: 'set null' }),
+		resolvedAt: timestamp('resolved_at', { withTimezone: true }),
+		resolvedBy: text('resolved_by').references(() => user.id, { onDelete: 'set null' }),
+		/** True while the detector still sees the condition. */
+		conditionActive: boolean('condition_active').notNull().default(true)
+	},
+	(t) => [
+		uniqueIndex('incidents_one_open_idx')
+			.on(t.runId, t.kind, t.key)
+			.where(sql`${t.state} <> 'resolved'`),
+		index('incidents_state_idx').on(t.state),
+		index('incidents_run_idx').on(t.runId)
+	]
+);
+
+/** Every change of an incident and every note: who (null for the detector) and when. */
+export const incidentEvents = pgTable(
+	'incident_events',
+	{
+		id: serial('id').primaryKey(),
+		incidentId: text('incident_id')
+			.notNull()
+			.references(() => incidents.id, { onDelete: 'cascade' }),
+		at: created(),
+		action: text('action', {
+			enum: ['opened', 'acknowledged', 'resolved', 'condition_cleared', 'auto_resolved', 'note']
+		}).notNull(),
+		actorId: text('actor_id').references(() => user.id, { onDelete: 'set null' }),
+		note: text('note'),
+		data: jsonb('data').$type<Record<string, unknown>>()
+	},
+	(t) => [index('incident_events_incident_idx').on(t.incidentId)]
+);
+
+/** Each delivery attempt of an alert and its outcome. */
+export const notifications = pgTable(
+	'notifications',
+	{
+		id: serial('id').primaryKey(),
+		incidentId: text('incident_id')
+			.notNull()
+			.references(() => incidents.id, { onDelete: 'cascade' }),
+		channel: text('channel', { enum: ['email', 'push'] }).notNull(),
+		recipient: text('recipient').notNull(),
+		reason: text('reason').notNull(),
+		status: text('status', { enum: ['sent', 'failed'] }).notNull(),
+		error: text('error'),
+		messageId: text('message_id'),
+		attemptedAt: created()
+	},
+	(t) => [index('notifications_incident_idx').on(t.incidentId)]
+);

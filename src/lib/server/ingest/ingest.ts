@@ -1,0 +1,157 @@
+// The ingest service: authenticates agent sockets, keeps one writer per run, acks after commit,
+// publishes committed frames and incidents live, and ticks the clock-driven detectors.
+import type { IncomingMessage } from 'node:http';
+import type { Duplex } from 'node:stream';
+import { eq } from 'drizzle-orm';
+import { WebSocketServer } from 'ws';
+import type { Hello } from '../../protocol/messages';
+import { MAX_MESSAGE_BYTES } from '../../protocol/messages';
+import type { Db } from '../db';
+import { runs } from '../db/schema';
+import type { IncidentRow } from '../incidents/service';
+import type { LiveBus } from '../live/bus';
+import { endRun, findOrCreateRun, publicRun } from '../runs/service';
+import { findActiveToken, markTokenUsed } from '../setups/tokens';
+import { AgentConnection } from './connection';
+import { RunWriter, type CommitResult } from './run-writer';
+
+export const AGENT_STREAM_PATH = '/api/agent/stream';
+const HEARTBEAT_MS = 15_000;
+
+export interface IngestHooks {
+	incidentOpened(incident: IncidentRow): void;
+	incidentResolved(incident: IncidentRow): void;
+}
+
+export class Ingest {
+	private wss = new WebSocketServer({ noServer: true, maxPayload: MAX_MESSAGE_BYTES * 2 });
+	private writers = new Map<string, RunWriter>();
+	private connections = new Set<AgentConnection>();
+	private timers: NodeJS.Timeout[] = [];
+
+	constructor(
+		private db: Db,
+		private bus: LiveBus,
+		private hooks: IngestHooks,
+		silenceCheckMs: number
+	) {
+		this.timers.push(setInterval(() => this.heartbeat(), HEARTBEAT_MS));
+		this.timers.push(setInterval(() => void this.tickClock(Date.now()), silenceCheckMs));
+		for (const t of this.timers) t.unref();
+	}
+
+	/** The HTTP upgrade: a missing or revoked token gets 401 before any WebSocket is made. */
+	async handleUpgrade(req: IncomingMessage, socket: Duplex, head: Buffer) {
+		const header = req.headers.authorization ?? '';
+		const secret = header.startsWith('Bearer ') ? header.slice(7).trim() : '';
+		const token = secret ? await findActiveToken(this.db, secret) : null;
+		if (!token) {
+			socket.write('HTTP/1.1 401 Unauthorized\r\nContent-Type: text/plain\r\nConnection: close\r\n\r\nagent token missing, unknown or revoked\n');
+			socket.destroy();
+			return;
+		}
+		await markTokenUsed(this.db, token.id);
+		this.wss.handleUpgrade(req, socket, head, (ws) => {
+			this.connections.add(new AgentConnection(ws, { id: token.id, setupId: token.setupId, label: token.label }, this));
+		});
+	}
+
+	/** Binds a connection to its run (created on first hello); a newer connection for a run replaces the older. */
+	async attach(conn: AgentConnection, hello: Hello): Promise<{ writer: RunWriter } | { error: 'run_ended'; message: string }> {
+		const run = await findOrCreateRun(this.db, conn.token.setupId, hello.run, hello.agent);
+		if (run.status === 'ended') return { error: 'run_ended', message: `run "${hello.run.key}" has ended; start a new run key` };
+		if (run.states !== hello.run.states) {
+			return { error: 'run_ended', message: `run "${hello.run.key}" was started with ${run.states} states, not ${hello.run.states}; use a new run key` };
+		}
+		for (const other of this.connections) {
+			if (other !== conn && other.runId === run.id) other.close(4000, 'replaced by a newer connection');
+		}
+		const writer = await this.writerFor(run.id);
+		await writer.idle();
+		this.bus.publish({ type: 'run', runId: run.id, setupId: run.setupId, run: publicRun(writer.run) });
+		return { writer };
+	}
+
+	detach(conn: AgentConnection) {
+		this.connections.delete(conn);
+	}
+
+	async endRun(writer: RunWriter, reason: string) {
+		await writer.idle();
+		await writer.applyEngine((engine) => engine.endRun(Date.now()));
+		const ended = await endRun(this.db, writer.run.id, reason);
+		if (ended) {
+			writer.run = ended;
+			this.bus.publish({ type: 'run', runId: ended.id, setupId: ended.setupId, run: publicRun(ended) });
+		}
+		this.writers.delete(writer.run.id);
+	}
+
+	private async writerFor(runId: string): Promise<RunWriter> {
+		const existing = this.writers.get(runId);
+		if (existing) return existing;
+		const [run] = await this.db.select().from(runs).where(eq(runs.id, runId));
+		// Another await may have created it meanwhile.
+		const again = this.writers.get(runId);
+		if (again) return again;
+		const writer = new RunWriter(
+			this.db,
+			run,
+			(result) => this.committed(result),
+			(err) => this.failed(runId, err)
+		);
+		this.writers.set(runId, writer);
+		return writer;
+	}
+
+	private committed(result: CommitResult) {
+		const { run } = result;
+		for (const conn of this.connections) {
+			if (conn.runId === run.id) conn.send({ type: 'ack', seq: result.lastSeq });
+		}
+		if (result.stored.length) this.bus.publish({ type: 'frames', runId: run.id, setupId: run.setupId, frames: result.stored });
+		this.bus.publish({ type: 'run', runId: run.id, setupId: run.setupId, run: publicRun(run) });
+		for (const i of result.opened) {
+			this.bus.publish({ type: 'incident', runId: run.id, setupId: run.setupId, incident: i });
+			this.hooks.incidentOpened(i);
+		}
+		for (const i of result.resolved) {
+			this.bus.publish({ type: 'incident', runId: run.id, setupId: run.setupId, incident: i });
+			this.hooks.incidentResolved(i);
+		}
+	}
+
+	private failed(runId: string, err: Error) {
+		console.error(`ingest: commit for run ${runId} failed; the agent will resend unacked frames`, err);
+		// Drop the writer and its sockets: the agent reconnects, learns lastSeq and resends.
+		this.writers.delete(runId);
+		for (const conn of this.connections) if (conn.runId === runId) conn.close(1011, 'commit failed');
+	}
+
+	/** Clock-driven detectors (agent_silent) for every open run, including runs with no live socket. */
+	async tickClock(now_ms: number) {
+		const open = await this.db.select({ id: runs.id }).from(runs).where(eq(runs.status, 'open'));
+		for (const { id } of open) {
+			const writer = await this.writerFor(id);
+			await writer.applyEngine((engine) => engine.onClock(now_ms));
+		}
+	}
+
+	private heartbeat() {
+		for (const conn of this.connections) {
+			if (!conn.alive) conn.terminate();
+			else conn.ping();
+		}
+	}
+
+	/** Waits until every queued frame is committed (used at shutdown). */
+	async flush() {
+		await Promise.all([...this.writers.values()].map((w) => w.idle()));
+	}
+
+	close() {
+		for (const t of this.timers) clearInterval(t);
+		for (const conn of this.connections) conn.close(1001, 'server shutting down');
+		this.wss.close();
+	}
+}

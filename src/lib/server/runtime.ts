@@ -1,0 +1,75 @@
+// The server's long-lived parts, started once per process and shared by pages, API routes and the
+// agent socket (through globalThis, so dev's module reloading and the production bundle see one).
+import { getRequestEvent } from '$app/server';
+import { sveltekitCookies } from 'better-auth/svelte-kit';
+import { createAlertDispatcher } from './alerts/dispatch';
+import { createAuth, type Auth } from './auth/options';
+import { loadAuthSecret } from './auth/secret';
+import { readConfig, type Config } from './config';
+import { lockDataDir, unlockDataDir } from './data-lock';
+import { openDatabase, type Db } from './db';
+import { Ingest } from './ingest/ingest';
+import { LiveBus } from './live/bus';
+import { startMailCatcher } from './notify/catcher';
+import { createMailer } from './notify/mailer';
+
+export interface Runtime {
+	config: Config;
+	db: Db;
+	auth: Auth;
+	bus: LiveBus;
+	ingest: Ingest;
+	catcher: Awaited<ReturnType<typeof startMailCatcher>> | null;
+	close(): Promise<void>;
+}
+
+const KEY = Symbol.for('phasewarden.runtime');
+type Global = typeof globalThis & { [KEY]?: Promise<Runtime> };
+
+export function getRuntime(): Promise<Runtime> {
+	const g = globalThis as Global;
+	g[KEY] ??= start();
+	return g[KEY];
+}
+
+async function start(): Promise<Runtime> {
+	const config = readConfig();
+	lockDataDir(config.dataDir);
+	const { db, close: closeDb } = await openDatabase(config.dataDir, config.migrationsDir);
+	const auth = createAuth({
+		db,
+		secret: loadAuthSecret(config.dataDir, config.authSecret),
+		baseURL: config.origin,
+		extraPlugins: [sveltekitCookies(getRequestEvent)]
+	});
+	const catcher = config.catcher ? await startMailCatcher({ port: config.catcherPort }) : null;
+	const smtpUrl = config.smtpUrl ?? (catcher ? `smtp://127.0.0.1:${catcher.port}` : undefined);
+	const mailer = smtpUrl ? createMailer({ smtpUrl, from: config.mailFrom }) : null;
+	if (catcher) console.log(`mail catcher listening on 127.0.0.1:${catcher.port}`);
+	const bus = new LiveBus();
+	const alerts = createAlertDispatcher(db, mailer, () => config.origin ?? 'http://localhost:5173');
+	const ingest = new Ingest(
+		db,
+		bus,
+		{
+			incidentOpened: (i) => void alerts.incidentOpened(i).catch((err) => console.error('alert failed', err)),
+			incidentResolved: () => {}
+		},
+		config.silenceCheckMs
+	);
+	return {
+		config,
+		db,
+		auth,
+		bus,
+		ingest,
+		catcher,
+		async close() {
+			ingest.close();
+			await ingest.flush();
+			await catcher?.close();
+			await closeDb();
+			unlockDataDir(config.dataDir);
+		}
+	};
+}

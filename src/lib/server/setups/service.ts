@@ -1,0 +1,97 @@
+// Setups (one cryostat line with its oscillator) and the people who look after them.
+import { randomUUID } from 'node:crypto';
+import { and, eq, inArray, ne, sql } from 'drizzle-orm';
+import { z } from 'zod';
+import type { Db } from '../db';
+import { incidents, runs, setupMembers, setups, user } from '../db/schema';
+
+export const newSetupSchema = z
+	.object({
+		name: z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters'),
+		description: z.string().trim().max(500).default(''),
+		order: z.coerce.number().int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
+		states: z.coerce.number().int().min(2).max(16),
+		mode_GHz: z.coerce.number().positive('mode_GHz must be positive').max(100),
+		nominal_mK: z.coerce.number().min(0, 'nominal_mK must not be negative').max(4000)
+	})
+	.refine((s) => s.states === s.order || s.states === 2 * s.order, {
+		message: 'states must be M or 2M',
+		path: ['states']
+	});
+export type NewSetup = z.infer<typeof newSetupSchema>;
+
+export async function createSetup(db: Db, input: NewSetup, createdBy: string | null) {
+	const [row] = await db
+		.insert(setups)
+		.values({
+			id: randomUUID(),
+			name: input.name,
+			description: input.description,
+			order: input.order,
+			states: input.states,
+			modeGHz: input.mode_GHz,
+			nominalMK: input.nominal_mK,
+			createdBy
+		})
+		.returning();
+	if (createdBy) await db.insert(setupMembers).values({ setupId: row.id, userId: createdBy }).onConflictDoNothing();
+	return row;
+}
+
+export async function getSetup(db: Db, id: string) {
+	const [row] = await db.select().from(setups).where(eq(setups.id, id));
+	return row ?? null;
+}
+
+export async function setupNameTaken(db: Db, name: string) {
+	const [row] = await db.select({ id: setups.id }).from(setups).where(eq(setups.name, name));
+	return Boolean(row);
+}
+
+/** Every setup with its open runs and count of unresolved incidents, for the overview. */
+export async function listSetupsWithStatus(db: Db) {
+	const [all, openRuns, openIncidents] = await Promise.all([
+		db.select().from(setups).orderBy(setups.name),
+		db.select().from(runs).where(eq(runs.status, 'open')).orderBy(runs.startedAt),
+		db
+			.select({ setupId: incidents.setupId, severity: incidents.severity, n: sql<number>`count(*)::int` })
+			.from(incidents)
+			.where(ne(incidents.state, 'resolved'))
+			.groupBy(incidents.setupId, incidents.severity)
+	]);
+	return all.map((s) => ({
+		...s,
+		openRuns: openRuns.filter((r) => r.setupId === s.id).map(({ detectorState: _d, ...r }) => r),
+		openIncidents: openIncidents.filter((i) => i.setupId === s.id).reduce((n, i) => n + i.n, 0),
+		openCritical: openIncidents.filter((i) => i.setupId === s.id && i.severity === 'critical').reduce((n, i) => n + i.n, 0)
+	}));
+}
+
+export async function listMembers(db: Db, setupId: string) {
+	return db
+		.select({ id: user.id, name: user.name, email: user.email, role: user.role })
+		.from(setupMembers)
+		.innerJoin(user, eq(user.id, setupMembers.userId))
+		.where(eq(setupMembers.setupId, setupId))
+		.orderBy(user.name);
+}
+
+export async function addMember(db: Db, setupId: string, userId: string) {
+	await db.insert(setupMembers).values({ setupId, userId }).onConflictDoNothing();
+}
+
+export async function removeMember(db: Db, setupId: string, userId: string) {
+	await db.delete(setupMembers).where(and(eq(setupMembers.setupId, setupId), eq(setupMembers.userId, userId)));
+}
+
+/** Who is alerted for a setup: its operators and admins (until on-call rotas refine this). */
+export async function alertRecipients(db: Db, setupId: string) {
+	const members = await listMembers(db, setupId);
+	const acting = members.filter((m) => m.role === 'operator' || m.role === 'admin');
+	if (acting.length > 0) return acting;
+	// A setup nobody has joined still alerts someone: every operator and admin.
+	return db
+		.select({ id: user.id, name: user.name, email: user.email, role: user.role })
+		.from(user)
+		.where(inArray(user.role, ['operator', 'admin']));
+}
