@@ -1,0 +1,190 @@
+// The alert e-mail for an incident (and the notice when its condition clears): pure text in,
+// subject, plain text and HTML out.
+import { viewEvidence, type EvidenceView } from './evidence-format';
+
+export type IncidentForEmail = {
+	id: string;
+	kind: string;
+	severity: string;
+	summary: string;
+	openedAt: Date | string | number;
+	evidence: Record<string, unknown>;
+};
+
+export type IncidentEmailInput = {
+	incident: IncidentForEmail;
+	run: { id: string; name: string };
+	setup: { id: string; name: string };
+	appOrigin: string;
+};
+
+export type ClearedEmailInput = IncidentEmailInput & {
+	cleared: { at: Date | string | number; summary: string; evidence?: Record<string, unknown> };
+};
+
+export type RenderedEmail = { subject: string; text: string; html: string };
+
+export const MONITOR_CAUTION =
+	'Phasewarden is a monitor, not a safety interlock: the cryostat, its helium handling and the microwave sources keep their own interlocks and the lab’s safety rules.';
+
+const KIND_LABELS: Record<string, string> = {
+	lock_lost: 'Lock lost',
+	agent_silent: 'Agent silent',
+	switching_burst: 'Switching burst',
+	rate_drift: 'Rate drift',
+	occupancy_imbalance: 'Occupancy imbalance',
+	aux_limit: 'Auxiliary limit'
+};
+
+export function kindLabel(kind: string): string {
+	return KIND_LABELS[kind] ?? kind.charAt(0).toUpperCase() + kind.slice(1).replace(/_/g, ' ');
+}
+
+const DAYS = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
+const MONTHS = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
+
+function toDate(value: Date | string | number, what: string): Date {
+	const d = value instanceof Date ? value : new Date(value);
+	if (Number.isNaN(d.getTime())) throw new RangeError(`alert e-mail: ${what} is not a valid time: ${String(value)}`);
+	return d;
+}
+
+/** "Sunday 15 June 2025, 03:12:45 UTC": written out by hand so it reads the same on every server. */
+export function humanUtc(d: Date): string {
+	const pad = (n: number) => String(n).padStart(2, '0');
+	return `${DAYS[d.getUTCDay()]} ${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]} ${d.getUTCFullYear()}, ${pad(d.getUTCHours())}:${pad(d.getUTCMinutes())}:${pad(d.getUTCSeconds())} UTC`;
+}
+
+const oneLine = (s: string) => s.replace(/[\r\n]+/g, ' ').trim();
+
+const escapeHtml = (s: string) =>
+	s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&#39;');
+
+export function incidentUrl(appOrigin: string, id: string): string {
+	return `${appOrigin.replace(/\/+$/, '')}/incidents/${encodeURIComponent(id)}`;
+}
+
+// ---- plain text -------------------------------------------------------------------------------
+
+function alignRows(rows: string[][], indent = '  '): string[] {
+	const widths = rows[0].map((_, c) => Math.max(...rows.map((r) => (r[c] ?? '').length)));
+	return rows.map((r) => indent + r.map((cell, c) => (c === r.length - 1 ? cell : cell.padEnd(widths[c]))).join('  ').trimEnd());
+}
+
+function evidenceText(view: EvidenceView): string[] {
+	const lines = [`Evidence${view.rule ? ` (rule ${view.rule}${view.version !== undefined ? `, version ${view.version}` : ''})` : ''}`];
+	if (view.facts.length) lines.push(...alignRows(view.facts));
+	for (const t of view.tables) lines.push('', t.title, ...alignRows([t.columns, ...t.rows]));
+	return lines;
+}
+
+// ---- HTML -------------------------------------------------------------------------------------
+
+const cell = 'padding:3px 10px;border-bottom:1px solid #d8dde3;text-align:left;font-variant-numeric:tabular-nums';
+
+function evidenceHtml(view: EvidenceView): string {
+	const heading = `Evidence${view.rule ? ` <span style="font-weight:normal">(rule <code>${escapeHtml(view.rule)}</code>${view.version !== undefined ? `, version ${view.version}` : ''})</span>` : ''}`;
+	const facts = view.facts.length
+		? `<table style="border-collapse:collapse">${view.facts
+				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
+				.join('')}</table>`
+		: '';
+	const tables = view.tables
+		.map(
+			(t) =>
+				`<h3 style="font-size:14px;margin:16px 0 4px">${escapeHtml(t.title)}</h3><table style="border-collapse:collapse"><thead><tr>${t.columns
+					.map((c) => `<th style="${cell};font-weight:600">${escapeHtml(c)}</th>`)
+					.join('')}</tr></thead><tbody>${t.rows
+					.map((r) => `<tr>${r.map((c) => `<td style="${cell}">${escapeHtml(c)}</td>`).join('')}</tr>`)
+					.join('')}</tbody></table>`
+		)
+		.join('');
+	return `<h2 style="font-size:15px;margin:20px 0 6px">${heading}</h2>${facts}${tables}`;
+}
+
+function page(title: string, body: string): string {
+	return `<!doctype html><html><head><meta charset="utf-8"><title>${escapeHtml(title)}</title></head><body style="font-family:system-ui,sans-serif;font-size:14px;color:#1b2129;line-height:1.45;max-width:640px">${body}</body></html>`;
+}
+
+// ---- composition ------------------------------------------------------------------------------
+
+type Section = { label: string; iso: string; human: string };
+
+function compose(
+	input: IncidentEmailInput,
+	opts: { subjectTag: string; headline: string; when: Section[]; summary: string; evidence: Record<string, unknown> }
+): RenderedEmail {
+	const { incident, run, setup } = input;
+	const kind = kindLabel(incident.kind);
+	const link = incidentUrl(input.appOrigin, incident.id);
+	const view = viewEvidence(opts.evidence);
+	const setupName = oneLine(setup.name);
+	const runName = oneLine(run.name);
+
+	const subject = `[Phasewarden] ${opts.subjectTag}: ${kind} on ${setupName}, run ${runName}`;
+
+	const facts: [string, string][] = [
+		['Setup', setupName],
+		['Run', runName],
+		['Incident', `${kind} (${incident.kind}), ${incident.severity}`],
+		...opts.when.map((w): [string, string] => [w.label, `${w.iso} (${w.human})`])
+	];
+	const text = [
+		opts.headline,
+		'',
+		...alignRows(facts, ''),
+		'',
+		oneLine(opts.summary),
+		'',
+		...evidenceText(view),
+		'',
+		`Open the incident: ${link}`,
+		'',
+		'--',
+		MONITOR_CAUTION,
+		''
+	].join('\n');
+
+	const html = page(
+		subject,
+		[
+			`<h1 style="font-size:18px;margin:0 0 10px">${escapeHtml(opts.headline)}</h1>`,
+			`<table style="border-collapse:collapse">${facts
+				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
+				.join('')}</table>`,
+			`<p style="margin:14px 0">${escapeHtml(oneLine(opts.summary))}</p>`,
+			evidenceHtml(view),
+			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
+			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`
+		].join('')
+	);
+	return { subject, text, html };
+}
+
+const section = (label: string, value: Date | string | number, what: string): Section => {
+	const d = toDate(value, what);
+	return { label, iso: d.toISOString(), human: humanUtc(d) };
+};
+
+export function renderIncidentEmail(input: IncidentEmailInput): RenderedEmail {
+	const { incident } = input;
+	const severity = incident.severity.charAt(0).toUpperCase() + incident.severity.slice(1);
+	return compose(input, {
+		subjectTag: severity,
+		headline: `${kindLabel(incident.kind)} (${incident.severity}) on ${oneLine(input.setup.name)}`,
+		when: [section('Opened', incident.openedAt, 'incident.openedAt')],
+		summary: incident.summary,
+		evidence: incident.evidence
+	});
+}
+
+/** The notice that the detector no longer sees the condition; the incident resolved itself. */
+export function renderIncidentClearedEmail(input: ClearedEmailInput): RenderedEmail {
+	return compose(input, {
+		subjectTag: 'Cleared',
+		headline: `${kindLabel(input.incident.kind)} cleared on ${oneLine(input.setup.name)}`,
+		when: [section('Opened', input.incident.openedAt, 'incident.openedAt'), section('Cleared', input.cleared.at, 'cleared.at')],
+		summary: input.cleared.summary,
+		evidence: input.cleared.evidence ?? input.incident.evidence
+	});
+}
