@@ -58,7 +58,7 @@ async function waitForServer(url: string, child: ChildProcess) {
 const token = await seed();
 const env = { ...process.env, PHASEWARDEN_DATA: dataDir, PHASEWARDEN_CATCHER: '1', PORT: String(port), ORIGIN: origin };
 const server = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });
-await waitForServer(`http://127.0.0.1:${port}/signin`, server);
+await waitForServer(`http://127.0.0.1:${port}/api/health`, server);
 
 const tsx = path.join(root, 'node_modules/.bin/tsx');
 const agent = spawn(

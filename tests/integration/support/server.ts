@@ -1,0 +1,137 @@
+// Starts the real production server (build/ + src/bin/serve.js) on a free port with a fresh PGlite
+// directory and the mail catcher, seeded with a setup, an agent token and one person per role.
+import { spawn, type ChildProcess } from 'node:child_process';
+import { mkdtempSync } from 'node:fs';
+import { createServer } from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { addUser } from '../../../src/lib/server/auth/users';
+import { createAuth } from '../../../src/lib/server/auth/options';
+import { openDatabase } from '../../../src/lib/server/db';
+import { createSetup } from '../../../src/lib/server/setups/service';
+import { createAgentToken } from '../../../src/lib/server/setups/tokens';
+
+const root = path.resolve(import.meta.dirname, '../../..');
+const SECRET = 'integration-test-secret-not-for-production';
+export const PASSWORD = 'test-password-1';
+
+export const people = {
+	admin: { email: 'admin@lab.test', name: 'Test Admin', role: 'admin' as const },
+	operator: { email: 'operator@lab.test', name: 'Test Operator', role: 'operator' as const },
+	observer: { email: 'observer@lab.test', name: 'Test Observer', role: 'observer' as const }
+};
+
+export interface Seeded {
+	dataDir: string;
+	setupId: string;
+	token: string;
+}
+
+/** A fresh data directory with people, one period-tripling setup and an agent token. */
+export async function seedDataDir(): Promise<Seeded> {
+	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-it-'));
+	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
+	try {
+		const auth = createAuth({ db, secret: SECRET });
+		for (const p of Object.values(people)) await addUser(auth, { ...p, password: PASSWORD });
+		const setup = await createSetup(
+			db,
+			{ name: 'Test fridge · tripler', description: '', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 },
+			null
+		);
+		const { secret } = await createAgentToken(db, setup.id, 'integration test', null);
+		return { dataDir, setupId: setup.id, token: secret };
+	} finally {
+		await close();
+	}
+}
+
+export function freePort(): Promise<number> {
+	return new Promise((resolve, reject) => {
+		const s = createServer();
+		s.once('error', reject);
+		s.listen(0, '127.0.0.1', () => {
+			const { port } = s.address() as { port: number };
+			s.close(() => resolve(port));
+		});
+	});
+}
+
+export interface RunningServer {
+	url: string;
+	wsUrl: string;
+	port: number;
+	process: ChildProcess;
+	output: () => string;
+	stop(): Promise<void>;
+	kill9(): Promise<void>;
+}
+
+export async function startServer(dataDir: string, port?: number): Promise<RunningServer> {
+	port ??= await freePort();
+	const url = `http://127.0.0.1:${port}`;
+	let log = '';
+	const child = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], {
+		cwd: root,
+		env: {
+			...process.env,
+			PORT: String(port),
+			HOST: '127.0.0.1',
+			ORIGIN: url,
+			PHASEWARDEN_DATA: dataDir,
+			PHASEWARDEN_CATCHER: '1',
+			PHASEWARDEN_CATCHER_PORT: '0',
+			PHASEWARDEN_SILENCE_CHECK_MS: '300',
+			BETTER_AUTH_SECRET: SECRET
+		},
+		stdio: ['ignore', 'pipe', 'pipe']
+	});
+	child.stdout!.on('data', (d) => (log += d));
+	child.stderr!.on('data', (d) => (log += d));
+	const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
+	for (let i = 0; ; i++) {
+		if (child.exitCode !== null) throw new Error(`server exited during start-up:\n${log}`);
+		if (i > 300) throw new Error(`server did not start:\n${log}`);
+		try {
+			const res = await fetch(`${url}/api/health`);
+			if (res.ok) break;
+		} catch {
+			/* not listening yet */
+		}
+		await new Promise((r) => setTimeout(r, 100));
+	}
+	return {
+		url,
+		wsUrl: `ws://127.0.0.1:${port}/api/agent/stream`,
+		port,
+		process: child,
+		output: () => log,
+		async stop() {
+			if (child.exitCode === null) child.kill('SIGTERM');
+			await exited;
+		},
+		async kill9() {
+			child.kill('SIGKILL');
+			await exited;
+		}
+	};
+}
+
+/** Signs in through better-auth's own endpoint and returns a fetch that carries the session cookie. */
+export async function signIn(server: RunningServer, who: keyof typeof people) {
+	const res = await fetch(`${server.url}/api/auth/sign-in/email`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json', origin: server.url },
+		body: JSON.stringify({ email: people[who].email, password: PASSWORD })
+	});
+	if (!res.ok) throw new Error(`sign-in as ${who} failed: ${res.status} ${await res.text()}`);
+	const cookie = res.headers
+		.getSetCookie()
+		.map((c) => c.split(';')[0])
+		.join('; ');
+	return (pathname: string, init: RequestInit = {}) =>
+		fetch(`${server.url}${pathname}`, {
+			...init,
+			headers: { origin: server.url, 'content-type': 'application/json', ...(init.headers ?? {}), cookie }
+		});
+}
