@@ -38,6 +38,7 @@ export default defineConfig({
 					name: 'integration',
 					environment: 'node',
 					include: ['tests/integration/**/*.test.ts'],
+					globalSetup: ['tests/integration/support/global-setup.ts'],
 					testTimeout: 60_000,
 					hookTimeout: 60_000,
 					fileParallelism: false
@@ -49,6 +50,7 @@ export default defineConfig({
 					name: 'browser',
 					environment: 'node',
 					include: ['tests/browser/**/*.test.ts'],
+					globalSetup: ['tests/integration/support/global-setup.ts'],
 					testTimeout: 120_000,
 					hookTimeout: 120_000,
 					fileParallelism: false

@@ -1,10 +1,11 @@
 // Starts the real production server (build/ + src/bin/serve.js) on a free port with a fresh PGlite
 // directory and the mail catcher, seeded with a setup, an agent token and one person per role.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { mkdtempSync } from 'node:fs';
+import { cpSync, mkdtempSync } from 'node:fs';
 import { createServer } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import { inject } from 'vitest';
 import { addUser } from '../../../src/lib/server/auth/users';
 import { createAuth } from '../../../src/lib/server/auth/options';
 import { openDatabase } from '../../../src/lib/server/db';
@@ -27,9 +28,17 @@ export interface Seeded {
 	token: string;
 }
 
-/** A fresh data directory with people, one period-tripling setup and an agent token. */
+/** A fresh copy of the template: people, one period-tripling setup and an agent token. */
 export async function seedDataDir(): Promise<Seeded> {
+	const template = inject('phasewardenTemplate');
 	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-it-'));
+	cpSync(template.dataDir, dataDir, { recursive: true });
+	return { ...template, dataDir };
+}
+
+/** Seeds the template once per test run (see global-setup.ts). */
+export async function createTemplate(): Promise<Seeded> {
+	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-template-'));
 	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
 	try {
 		const auth = createAuth({ db, secret: SECRET });
