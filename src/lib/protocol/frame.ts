@@ -3,7 +3,8 @@
 import { z } from 'zod';
 
 const count = z.number().int().min(0);
-const AUX_NAME = /^[a-z0-9_]{1,32}$/;
+// Upper case is allowed so the conventional names keep their units (mxc_mK, pump_dBm, bias_uV).
+const AUX_NAME = /^[A-Za-z0-9_]{1,32}$/;
 
 export const MAX_STATES = 64;
 export const MAX_AUX = 32;
@@ -21,7 +22,7 @@ export const iqHistogramSchema = z
 	});
 
 export const auxSchema = z
-	.record(z.string().regex(AUX_NAME, 'aux names are 1 to 32 of a-z, 0-9 and _'), z.number().finite())
+	.record(z.string().regex(AUX_NAME, 'aux names are 1 to 32 of A-Z, a-z, 0-9 and _'), z.number().finite())
 	.refine((aux) => Object.keys(aux).length <= MAX_AUX, { message: `at most ${MAX_AUX} aux values` });
 
 export const frameSchema = z.object({
