@@ -1,0 +1,120 @@
+// Shapes of the JSON API as the pages read them (see the API contract); browser-safe, no server imports.
+import type { Role } from '$lib/roles';
+
+export type RunStatus = 'open' | 'ended';
+export type IncidentState = 'open' | 'acknowledged' | 'resolved';
+export type Severity = 'critical' | 'warning' | 'info';
+
+export interface Run {
+	id: string;
+	setupId: string;
+	setupName?: string;
+	key: string;
+	name: string;
+	order: number;
+	states: number;
+	modeGHz: number;
+	operatingPoint: Record<string, number | string | boolean> | null;
+	agent: string;
+	status: RunStatus;
+	startedAt: string;
+	endedAt: string | null;
+	endReason: string | null;
+	lastSeq: number;
+	lastFrameT: number | null;
+	lastFrameAt: string | null;
+	lastLock: number | null;
+	frameCount: number;
+	gapCount: number;
+}
+
+export interface Setup {
+	id: string;
+	name: string;
+	description: string;
+	order: number;
+	states: number;
+	modeGHz: number;
+	nominalMK: number;
+	createdAt: string;
+	openRuns: Run[];
+	openIncidents: number;
+	openCritical: number;
+}
+
+export interface Frame {
+	seq: number;
+	t: number;
+	window_s: number;
+	shots: number;
+	vacuum: number;
+	counts: number[];
+	lock: number;
+	switches: number;
+	dwell_s: number;
+	escapes: number;
+	vacuum_s: number;
+	transitions?: number[];
+	amp?: number;
+	aux?: Record<string, number>;
+}
+
+export interface Incident {
+	id: string;
+	kind: string;
+	key: string;
+	state: IncidentState;
+	severity: Severity;
+	summary: string;
+	evidence: Record<string, unknown>;
+	runId: string;
+	runName?: string;
+	setupId: string;
+	setupName?: string;
+	openedAt: string;
+	openedSeq: number | null;
+	openedT: number | null;
+	acknowledgedAt: string | null;
+	resolvedAt: string | null;
+	conditionActive: boolean;
+}
+
+export interface IncidentEvent {
+	id: number | string;
+	at: string;
+	action: 'opened' | 'acknowledged' | 'resolved' | 'auto_resolved' | 'condition_cleared' | 'note';
+	note: string | null;
+	actorName: string | null;
+}
+
+export interface Gap {
+	fromSeq: number;
+	toSeq: number;
+	detectedAt: string;
+}
+
+export interface Occupancy {
+	counts: number[];
+	vacuum: number;
+	shots: number;
+	fromSeq: number;
+	toSeq: number;
+}
+
+export interface AgentToken {
+	id: string;
+	setupId: string;
+	label: string;
+	prefix: string;
+	createdAt: string;
+	revokedAt: string | null;
+	lastUsedAt: string | null;
+}
+
+export interface Person {
+	id: string;
+	name: string;
+	email: string;
+	role: Role;
+	createdAt?: string;
+}

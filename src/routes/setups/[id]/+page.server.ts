@@ -1,0 +1,72 @@
+// One setup: details, runs, members and (for operators) its agent tokens, created and revoked here.
+import { fail } from '@sveltejs/kit';
+import { hasRole } from '$lib/roles';
+import { apiGet, apiGetOptional, apiSend, field } from '$lib/ui/api';
+import { fieldError } from '$lib/ui/fields';
+import type { AgentToken, Person, Run } from '$lib/ui/types';
+import type { Actions, PageServerLoad, RequestEvent } from './$types';
+
+interface SetupDetail {
+	setup: { id: string; name: string; description: string; order: number; states: number; modeGHz: number; nominalMK: number; createdAt: string };
+	runs: Run[];
+	tokens: AgentToken[];
+	members: Person[];
+}
+
+export const load: PageServerLoad = async ({ fetch, params, locals }) => {
+	const id = encodeURIComponent(params.id);
+	const operator = hasRole(locals.user?.role, 'operator');
+	const [detail, people] = await Promise.all([
+		apiGet<SetupDetail>(fetch, `/api/setups/${id}`),
+		// The people list is admin-only in the API; an operator who is not admin gets null and no picker.
+		operator ? apiGetOptional<{ users: Person[] }>(fetch, '/api/users') : Promise.resolve(null)
+	]);
+	return { ...detail, people: people?.users ?? null };
+};
+
+function operatorOnly(event: RequestEvent, intent: string) {
+	if (!hasRole(event.locals.user?.role, 'operator')) return fail(403, { intent, message: 'This needs the operator role.' });
+	return null;
+}
+
+const base = (event: RequestEvent) => `/api/setups/${encodeURIComponent(event.params.id)}`;
+
+export const actions: Actions = {
+	createToken: async (event) => {
+		const denied = operatorOnly(event, 'createToken');
+		if (denied) return denied;
+		const label = field(await event.request.formData(), 'label');
+		if (!label) return fail(400, { intent: 'createToken', message: 'Give the token a label, e.g. the instrument PC it runs on.' });
+		const res = await apiSend<{ token: AgentToken; secret: string }>(event.fetch, `${base(event)}/tokens`, 'POST', { label });
+		if (!res.ok || !res.data) return fail(res.status, { intent: 'createToken', message: fieldError(res.message).text });
+		// Returned once, in this response only: it is never stored in the clear and not shown again.
+		return { intent: 'createToken', secret: res.data.secret, token: res.data.token };
+	},
+	revokeToken: async (event) => {
+		const denied = operatorOnly(event, 'revokeToken');
+		if (denied) return denied;
+		const tokenId = field(await event.request.formData(), 'tokenId');
+		if (!tokenId) return fail(400, { intent: 'revokeToken', message: 'The form did not say which token (field "tokenId").' });
+		const res = await apiSend(event.fetch, `${base(event)}/tokens/${encodeURIComponent(tokenId)}`, 'DELETE');
+		if (!res.ok) return fail(res.status, { intent: 'revokeToken', message: res.message });
+		return { intent: 'revokeToken', revoked: tokenId };
+	},
+	addMember: async (event) => {
+		const denied = operatorOnly(event, 'addMember');
+		if (denied) return denied;
+		const userId = field(await event.request.formData(), 'userId');
+		if (!userId) return fail(400, { intent: 'addMember', message: 'Choose a person to add.' });
+		const res = await apiSend(event.fetch, `${base(event)}/members`, 'POST', { userId });
+		if (!res.ok) return fail(res.status, { intent: 'addMember', message: fieldError(res.message).text });
+		return { intent: 'addMember' };
+	},
+	removeMember: async (event) => {
+		const denied = operatorOnly(event, 'removeMember');
+		if (denied) return denied;
+		const userId = field(await event.request.formData(), 'userId');
+		if (!userId) return fail(400, { intent: 'removeMember', message: 'The form did not say whom to remove.' });
+		const res = await apiSend(event.fetch, `${base(event)}/members/${encodeURIComponent(userId)}`, 'DELETE');
+		if (!res.ok) return fail(res.status, { intent: 'removeMember', message: res.message });
+		return { intent: 'removeMember' };
+	}
+};
