@@ -6,7 +6,14 @@ const config = {
 	preprocess: vitePreprocess(),
 	compilerOptions: { runes: true },
 	kit: {
-		adapter: adapter({ out: 'build' })
+		adapter: adapter({ out: 'build' }),
+		typescript: {
+			// The agent lives outside src/ but is type-checked with the rest.
+			config: (tsconfig) => {
+				tsconfig.include.push('../agent/**/*.ts');
+				return tsconfig;
+			}
+		}
 	}
 };
 

@@ -74,7 +74,11 @@ export const serverMessageSchema = z.discriminatedUnion('type', [
 
 /** "frames[3].counts: expected 6 entries" — the field path first, as the protocol promises. */
 export function describeZodError(error: z.ZodError, prefix = ''): string {
-	const issue = error.issues[0];
+	let issue = error.issues[0];
+	// A bad record key is reported as a wrapper issue; the key's own check holds the useful message.
+	if (issue.code === 'invalid_key' && issue.issues?.[0]) {
+		issue = { ...issue.issues[0], path: [...issue.path, ...issue.issues[0].path] } as typeof issue;
+	}
 	const path = [prefix, ...issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`))]
 		.join('')
 		.replace(/^\./, '');
