@@ -216,3 +216,47 @@ export const notifications = pgTable(
 	},
 	(t) => [index('notifications_incident_idx').on(t.incidentId)]
 );
+
+/** Every rate model saved for a setup; the newest per process is the one the detectors use. */
+export const rateModels = pgTable(
+	'rate_models',
+	{
+		id: serial('id').primaryKey(),
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		process: text('process', { enum: ['switching', 'escape'] }).notNull(),
+		model: jsonb('model').$type<Record<string, unknown>>().notNull(),
+		note: text('note'),
+		createdAt: created(),
+		createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' })
+	},
+	(t) => [index('rate_models_setup_idx').on(t.setupId, t.process)]
+);
+
+/** The detector rules in force for a setup (absent: the defaults). */
+export const setupRules = pgTable('setup_rules', {
+	setupId: text('setup_id')
+		.primaryKey()
+		.references(() => setups.id, { onDelete: 'cascade' }),
+	rules: jsonb('rules').$type<Record<string, unknown>>().notNull(),
+	updatedAt: created(),
+	updatedBy: text('updated_by').references(() => user.id, { onDelete: 'set null' })
+});
+
+/** Each changed rule field: who, when, old and new value. */
+export const ruleChanges = pgTable(
+	'rule_changes',
+	{
+		id: serial('id').primaryKey(),
+		setupId: text('setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		at: created(),
+		actorId: text('actor_id').references(() => user.id, { onDelete: 'set null' }),
+		field: text('field').notNull(),
+		oldValue: jsonb('old_value'),
+		newValue: jsonb('new_value')
+	},
+	(t) => [index('rule_changes_setup_idx').on(t.setupId)]
+);

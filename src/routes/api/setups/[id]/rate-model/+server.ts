@@ -1,0 +1,33 @@
+import { error } from '@sveltejs/kit';
+import { z } from 'zod';
+import { rateModelSchema } from '$lib/physics/rate-model-schema';
+import { json, readJson, requireRole } from '$lib/server/http/guard';
+import { currentRateModel, rateModelHistory, saveRateModel } from '$lib/server/models/rate-models';
+import { getRuntime } from '$lib/server/runtime';
+import { getSetup } from '$lib/server/setups/service';
+import type { RequestHandler } from './$types';
+
+/** The switching model (what the detectors compare against), the escape model, and the history. */
+export const GET: RequestHandler = async (event) => {
+	requireRole(event, 'observer');
+	const { db } = await getRuntime();
+	if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
+	const [rateModel, escapeModel, history] = await Promise.all([
+		currentRateModel(db, event.params.id, 'switching'),
+		currentRateModel(db, event.params.id, 'escape'),
+		rateModelHistory(db, event.params.id)
+	]);
+	return json({ rateModel, escapeModel, history });
+};
+
+const body = rateModelSchema.and(z.object({ note: z.string().trim().max(500).optional() }));
+
+/** Saves a model for its process; it applies to frames committed from now on. */
+export const PUT: RequestHandler = async (event) => {
+	const user = requireRole(event, 'operator');
+	const { note, ...model } = await readJson(event.request, body);
+	const { db } = await getRuntime();
+	if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
+	await saveRateModel(db, event.params.id, model, user.id, note);
+	return json({ rateModel: await currentRateModel(db, event.params.id, model.process) });
+};
