@@ -10,6 +10,7 @@ import type { Db } from '../db';
 import { runs } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
 import type { LiveBus } from '../live/bus';
+import { getSetupRules } from '../rules/service';
 import { endRun, findOrCreateRun, publicRun } from '../runs/service';
 import { findActiveToken, markTokenUsed } from '../setups/tokens';
 import { AgentConnection } from './connection';
@@ -91,16 +92,20 @@ export class Ingest {
 		const existing = this.writers.get(runId);
 		if (existing) return existing;
 		const [run] = await this.db.select().from(runs).where(eq(runs.id, runId));
+		const rules = await getSetupRules(this.db, run.setupId);
 		// Another await may have created it meanwhile.
 		const again = this.writers.get(runId);
 		if (again) return again;
 		const writer = new RunWriter(
 			this.db,
 			run,
+			rules,
 			(result) => this.committed(result),
 			(err) => this.failed(runId, err)
 		);
 		this.writers.set(runId, writer);
+		// A restored engine may carry rules from before a change made while no agent was connected.
+		void writer.applyEngine((engine) => engine.setRules(rules, Date.now()));
 		return writer;
 	}
 
@@ -126,6 +131,14 @@ export class Ingest {
 		// Drop the writer and its sockets: the agent reconnects, learns lastSeq and resends.
 		this.writers.delete(runId);
 		for (const conn of this.connections) if (conn.runId === runId) conn.close(1011, 'commit failed');
+	}
+
+	/** New rules for a setup apply to its live runs from the next frame on. */
+	async rulesChanged(setupId: string, rules: unknown) {
+		const now = Date.now();
+		await Promise.all(
+			[...this.writers.values()].filter((w) => w.run.setupId === setupId).map((w) => w.applyEngine((engine) => engine.setRules(rules, now)))
+		);
 	}
 
 	/** Clock-driven detectors (agent_silent) for every open run, including runs with no live socket. */

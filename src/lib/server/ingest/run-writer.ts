@@ -21,7 +21,7 @@ export interface CommitResult {
 	run: RunRow;
 }
 
-export function engineFor(run: RunRow): DetectorEngine {
+export function engineFor(run: RunRow, rules: unknown = {}): DetectorEngine {
 	if (run.detectorState) {
 		try {
 			return DetectorEngine.restore(run.detectorState);
@@ -29,7 +29,7 @@ export function engineFor(run: RunRow): DetectorEngine {
 			console.warn(`run ${run.id}: detector state unreadable, starting fresh: ${(err as Error).message}`);
 		}
 	}
-	return new DetectorEngine({}, { runId: run.id, states: run.states, order: run.order, mode_GHz: run.modeGHz, openedAt_ms: run.startedAt.getTime() });
+	return new DetectorEngine(rules, { runId: run.id, states: run.states, order: run.order, mode_GHz: run.modeGHz, openedAt_ms: run.startedAt.getTime() });
 }
 
 export class RunWriter {
@@ -41,10 +41,11 @@ export class RunWriter {
 	constructor(
 		private db: Db,
 		public run: RunRow,
+		rules: unknown,
 		private onCommit: (result: CommitResult) => void,
 		private onFailure: (err: Error) => void
 	) {
-		this.engine = engineFor(run);
+		this.engine = engineFor(run, rules);
 	}
 
 	get lastSeq() {
