@@ -1,7 +1,6 @@
-// Debian's chromium driven by playwright-core; never a downloaded browser.
-import { existsSync, mkdtempSync } from 'node:fs';
-import os from 'node:os';
-import path from 'node:path';
+// Debian's chromium driven by playwright-core; never a downloaded browser. playwright-core gives
+// every launch a fresh, empty profile of its own.
+import { existsSync } from 'node:fs';
 import { chromium, type Browser } from 'playwright-core';
 
 export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
@@ -10,7 +9,6 @@ export async function launchChromium(): Promise<Browser> {
 	if (!existsSync(CHROMIUM)) {
 		throw new Error(`no browser at ${CHROMIUM}: install Debian's chromium (apt-get install -y chromium) or set CHROMIUM_PATH`);
 	}
-	const profile = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-chromium-'));
 	return chromium.launch({
 		executablePath: CHROMIUM,
 		args: [
@@ -21,8 +19,7 @@ export async function launchChromium(): Promise<Browser> {
 			'--disable-background-networking',
 			'--disable-component-update',
 			'--disable-sync',
-			'--no-first-run',
-			`--user-data-dir=${profile}`
+			'--no-first-run'
 		]
 	});
 }
