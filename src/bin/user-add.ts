@@ -28,7 +28,8 @@ try {
 }
 const { db, close } = await openDatabase(config.dataDir, config.migrationsDir);
 try {
-	const auth = createAuth({ db, secret: loadAuthSecret(config.dataDir, config.authSecret), baseURL: config.origin });
+	// No request comes in here; the base URL only silences better-auth's warning.
+	const auth = createAuth({ db, secret: loadAuthSecret(config.dataDir, config.authSecret), baseURL: config.origin ?? 'http://localhost:3000' });
 	const user = await addUser(auth, parsed.data);
 	console.log(`added ${user.email} (${parsed.data.role}) to ${config.dataDir}`);
 } catch (err) {

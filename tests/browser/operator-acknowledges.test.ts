@@ -41,6 +41,7 @@ it('shows the live run, the lock-loss incident arriving without reload, and ackn
 	await page.getByRole('link', { name: /Browser test run/ }).first().click();
 	await page.waitForURL(/\/runs\//);
 	await page.getByText(/Browser test run/).first().waitFor();
+	await page.getByText(/streaming/i).first().waitFor();
 
 	// Lock is lost while the page is open: the incident must appear live.
 	agent.send({ type: 'frames', frames: Array.from({ length: 8 }, (_, i) => frame(21 + i, 0.12)) });

@@ -29,11 +29,11 @@ export class LiveFeed {
 		const source = new EventSource(this.url, { withCredentials: true });
 		this.#source = source;
 		source.onopen = () => {
-			const reconnected = this.#attempt > 0;
 			this.#attempt = 0;
 			this.status = 'live';
-			// Whatever happened while the link was down is fetched afresh by the page.
-			if (reconnected) this.onReconnect?.();
+			// Whatever happened before the stream opened (between the page's load and now, or while
+			// the link was down) is fetched afresh by the page.
+			this.onReconnect?.();
 		};
 		source.onerror = () => {
 			if (this.#closed) return;

@@ -41,7 +41,7 @@ export async function createTemplate(): Promise<Seeded> {
 	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-template-'));
 	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
 	try {
-		const auth = createAuth({ db, secret: SECRET });
+		const auth = createAuth({ db, secret: SECRET, baseURL: 'http://127.0.0.1' });
 		for (const p of Object.values(people)) await addUser(auth, { ...p, password: PASSWORD });
 		const setup = await createSetup(
 			db,
