@@ -18,7 +18,9 @@ export class LiveFeed {
 	constructor(
 		private url: string,
 		private handlers: Handlers,
-		private onReconnect?: () => void
+		/** Called each time the stream opens, the first time too: whatever changed before it was
+		 * listening (between the page's load and now, or while the link was down) is fetched afresh. */
+		private onOpen?: () => void
 	) {
 		this.#open();
 	}
@@ -31,9 +33,7 @@ export class LiveFeed {
 		source.onopen = () => {
 			this.#attempt = 0;
 			this.status = 'live';
-			// Whatever happened before the stream opened (between the page's load and now, or while
-			// the link was down) is fetched afresh by the page.
-			this.onReconnect?.();
+			this.onOpen?.();
 		};
 		source.onerror = () => {
 			if (this.#closed) return;
