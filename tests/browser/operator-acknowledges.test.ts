@@ -1,7 +1,7 @@
 // An operator signs in, watches a live run lose lock, and acknowledges the incident from the run page.
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import type { Browser } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent, type TestAgent } from '../integration/support/agent-socket';
 import { PASSWORD, people, seedDataDir, startServer, type RunningServer } from '../integration/support/server';
@@ -30,7 +30,17 @@ afterAll(async () => {
 
 it('shows the live run, the lock-loss incident arriving without reload, and acknowledges it', async () => {
 	const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
-	await page.goto(`${server.url}/`);
+	try {
+		await watchLiveRun(page);
+	} catch (err) {
+		// Leave evidence for whoever reads the CI log: what the page showed and what the server said.
+		await page.screenshot({ path: path.join(shots, 'failure.png'), fullPage: true }).catch(() => {});
+		console.error(`page at failure: ${page.url()}\nserver output:\n${server.output().slice(-4000)}`);
+		throw err;
+	}
+});
+
+async function watchLiveRun(page: Page) {	await page.goto(`${server.url}/`);
 	await expect.poll(() => page.url()).toContain('/signin');
 	await page.getByLabel(/e-?mail/i).fill(people.operator.email);
 	await page.getByLabel(/password/i).fill(PASSWORD);
@@ -59,4 +69,4 @@ it('shows the live run, the lock-loss incident arriving without reload, and ackn
 	const body = await res.json();
 	expect(body.incidents).toHaveLength(1);
 	expect(body.incidents[0]).toMatchObject({ kind: 'lock_lost', state: 'acknowledged' });
-});
+}
