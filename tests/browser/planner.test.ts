@@ -74,7 +74,10 @@ it('an operator simulates a sweep in the worker and saves it as the setup’s ra
 
 	await page.getByLabel('Save for setup').selectOption(setupId);
 	await page.getByRole('button', { name: 'Save as rate model', exact: true }).click();
-	await page.getByText(new RegExp(`Saved\\s+for Test fridge · tripler by ${people.operator.name} at`)).waitFor({ timeout: 15_000 });
+	await page
+		.getByRole('status')
+		.filter({ hasText: new RegExp(`Saved\\s+for Test fridge · tripler by ${people.operator.name} at`) })
+		.waitFor({ timeout: 15_000 });
 	await page.screenshot({ path: path.join(shots, 'planner-operator.png'), fullPage: true });
 
 	// The server has it: the escape model, from the planner, with finite W0 and A.
@@ -102,6 +105,20 @@ it('an observer sees the planner and its forecast but cannot save, and the API r
 	const page = await context.newPage();
 	await signIn(page, 'observer');
 	await openPlanner(page, `?setup=${setupId}`);
+
+	// A long sweep shows its progress, and Cancel stops the worker itself (it closes).
+	await page.getByLabel('Trajectories').fill('2000');
+	const started = page.waitForEvent('worker');
+	await page.getByRole('button', { name: 'Simulate', exact: true }).click();
+	const worker = await started;
+	const closed = new Promise<void>((resolve) => worker.on('close', () => resolve()));
+	const bar = page.getByRole('progressbar', { name: 'Simulation progress' });
+	await expect.poll(async () => Number(await bar.getAttribute('aria-valuenow')), { timeout: 20_000 }).toBeGreaterThan(0);
+	await expect.poll(() => page.getByText(/^\d+ %$/).count()).toBe(1);
+	await page.getByRole('button', { name: 'Cancel', exact: true }).click();
+	await closed;
+	await page.getByText('Simulation cancelled; the worker was stopped.').waitFor();
+	expect(await bar.count()).toBe(0);
 
 	// A short sweep still runs for them.
 	await page.getByLabel('Noise strengths λ').fill('0.4, 0.3');
