@@ -11,6 +11,7 @@ import { runs } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
 import type { LiveBus } from '../live/bus';
 import { getSetupRules } from '../rules/service';
+import { runFacts, runInfoFor } from '../runs/detector-context';
 import { endRun, findOrCreateRun, publicRun } from '../runs/service';
 import { findActiveToken, markTokenUsed } from '../setups/tokens';
 import { AgentConnection } from './connection';
@@ -92,7 +93,7 @@ export class Ingest {
 		const existing = this.writers.get(runId);
 		if (existing) return existing;
 		const [run] = await this.db.select().from(runs).where(eq(runs.id, runId));
-		const rules = await getSetupRules(this.db, run.setupId);
+		const [rules, info] = await Promise.all([getSetupRules(this.db, run.setupId), runInfoFor(this.db, run)]);
 		// Another await may have created it meanwhile.
 		const again = this.writers.get(runId);
 		if (again) return again;
@@ -100,12 +101,14 @@ export class Ingest {
 			this.db,
 			run,
 			rules,
+			info,
 			(result) => this.committed(result),
 			(err) => this.failed(runId, err)
 		);
 		this.writers.set(runId, writer);
-		// A restored engine may carry rules from before a change made while no agent was connected.
-		void writer.applyEngine((engine) => engine.setRules(rules, Date.now()));
+		// A restored engine may carry rules or rate models from before a change made while no agent was connected.
+		const { runId: _r, states: _s, order: _o, mode_GHz: _m, openedAt_ms: _t, ...facts } = info;
+		void writer.applyEngine((engine) => [...engine.setRules(rules, Date.now()), ...engine.setRun(facts, Date.now())]);
 		return writer;
 	}
 
@@ -138,6 +141,19 @@ export class Ingest {
 		const now = Date.now();
 		await Promise.all(
 			[...this.writers.values()].filter((w) => w.run.setupId === setupId).map((w) => w.applyEngine((engine) => engine.setRules(rules, now)))
+		);
+	}
+
+	/** A new rate model (or nominal temperature) for a setup: its live runs predict with it from now on. */
+	async runFactsChanged(setupId: string) {
+		const now = Date.now();
+		await Promise.all(
+			[...this.writers.values()]
+				.filter((w) => w.run.setupId === setupId)
+				.map(async (w) => {
+					const facts = await runFacts(this.db, w.run);
+					await w.applyEngine((engine) => engine.setRun(facts, now));
+				})
 		);
 	}
 

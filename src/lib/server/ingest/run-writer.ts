@@ -4,6 +4,7 @@ import { eq, sql } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
 import { DetectorEngine } from '../../detect/engine';
 import type { DetectorEvent } from '../../detect/events';
+import type { RunInfo } from '../../detect/run-info';
 import type { Db } from '../db';
 import { frameGaps, frames, runs } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
@@ -21,7 +22,7 @@ export interface CommitResult {
 	run: RunRow;
 }
 
-export function engineFor(run: RunRow, rules: unknown = {}): DetectorEngine {
+export function engineFor(run: RunRow, rules: unknown, info: RunInfo): DetectorEngine {
 	if (run.detectorState) {
 		try {
 			return DetectorEngine.restore(run.detectorState);
@@ -29,7 +30,7 @@ export function engineFor(run: RunRow, rules: unknown = {}): DetectorEngine {
 			console.warn(`run ${run.id}: detector state unreadable, starting fresh: ${(err as Error).message}`);
 		}
 	}
-	return new DetectorEngine(rules, { runId: run.id, states: run.states, order: run.order, mode_GHz: run.modeGHz, openedAt_ms: run.startedAt.getTime() });
+	return new DetectorEngine(rules, info);
 }
 
 export class RunWriter {
@@ -42,10 +43,11 @@ export class RunWriter {
 		private db: Db,
 		public run: RunRow,
 		rules: unknown,
+		info: RunInfo,
 		private onCommit: (result: CommitResult) => void,
 		private onFailure: (err: Error) => void
 	) {
-		this.engine = engineFor(run, rules);
+		this.engine = engineFor(run, rules, info);
 	}
 
 	get lastSeq() {

@@ -26,8 +26,9 @@ const body = rateModelSchema.and(z.object({ note: z.string().trim().max(500).opt
 export const PUT: RequestHandler = async (event) => {
 	const user = requireRole(event, 'operator');
 	const { note, ...model } = await readJson(event.request, body);
-	const { db } = await getRuntime();
+	const { db, ingest } = await getRuntime();
 	if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
 	await saveRateModel(db, event.params.id, model, user.id, note);
+	await ingest.runFactsChanged(event.params.id);
 	return json({ rateModel: await currentRateModel(db, event.params.id, model.process) });
 };

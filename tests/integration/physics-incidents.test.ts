@@ -1,0 +1,94 @@
+// A scripted run over the real server with a rate model in place: an injected switching burst, an
+// aux excursion of the mixing chamber and a sustained doubling of the switching rate each produce
+// their own incident — and nothing else — with evidence, and each is e-mailed to the operators.
+import { afterAll, beforeAll, expect, it } from 'vitest';
+import { RUN, frame, startAgent } from './support/agent-socket';
+import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
+
+let seeded: Seeded;
+let server: RunningServer;
+beforeAll(async () => {
+	seeded = await seedDataDir();
+	server = await startServer(seeded.dataDir);
+});
+afterAll(async () => {
+	await server?.stop();
+});
+
+/** mulberry32 (a small public-domain PRNG), seeded, so the scripted run is the same every time. */
+function rng(seed: number) {
+	let a = seed >>> 0;
+	return () => {
+		a = (a + 0x6d2b79f5) >>> 0;
+		let t = a;
+		t = Math.imul(t ^ (t >>> 15), t | 1);
+		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+	};
+}
+/** Knuth's multiplication method for Poisson draws (fine for small means). */
+function poisson(mu: number, u: () => number) {
+	const limit = Math.exp(-mu);
+	let k = 0;
+	for (let p = u(); p > limit; p *= u()) k++;
+	return k;
+}
+
+it('raises switching_burst, aux_limit and rate_drift for exactly the injected faults', async () => {
+	const operator = await signIn(server, 'operator');
+	// W = W0·exp(−A/(2n̄+1)); at 5 GHz and 12 mK n̄ ≈ 2e-9, so W ≈ W0·e^{−A} = 1 switch per second.
+	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, source: 'manual' };
+	const saved = await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) });
+	expect(saved.status).toBe(200);
+
+	// A sustained doubling is also an excess over any sliding horizon, so with the horizon test on
+	// the drift would raise a burst as well; this run checks the single-window burst test alone.
+	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
+	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 } };
+	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(onlyWindows) })).status).toBe(200);
+
+	const u = rng(2026);
+	const frames = Array.from({ length: 600 }, (_, i) => {
+		const seq = i + 1;
+		const rateFactor = seq > 200 ? 2 : 1; // the drift: twice the predicted rate from seq 201 on
+		const f = { ...frame(seq), dwell_s: 1, switches: poisson(1 * rateFactor, u) };
+		if (seq >= 100 && seq < 112) f.aux = { mxc_mK: 35 }; // the fridge warms past the 30 mK limit
+		// The burst comes while the drift is already open (one open incident per kind), so the
+		// CUSUM's response to it cannot be mistaken for the drift. P(K ≥ 25 | μ = 1) ≈ 1e-25.
+		if (seq === 450) f.switches = 25;
+		return f;
+	});
+	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'physics-run' });
+	for (let i = 0; i < frames.length; i += 100) agent.send({ type: 'frames', frames: frames.slice(i, i + 100) });
+	await agent.waitFor((m) => m.type === 'ack' && m.seq === 600, 30_000);
+
+	const observer = await signIn(server, 'observer');
+	const { incidents } = await (await observer(`/api/incidents?run=${agent.welcome.run}&sort=openedAt&order=asc`)).json();
+	const byKind = Object.fromEntries(incidents.map((i: { kind: string }) => [i.kind, i]));
+	expect(incidents.map((i: { kind: string }) => i.kind).sort()).toEqual(['aux_limit', 'rate_drift', 'switching_burst']);
+
+	const burst = byKind.switching_burst;
+	expect(burst).toMatchObject({ severity: 'critical', openedSeq: 450 });
+	expect(burst.evidence).toMatchObject({ rule: 'switching_burst' });
+	expect(JSON.stringify(burst.evidence)).toMatch(/pValue|p_value/);
+
+	const aux = byKind.aux_limit;
+	expect(aux).toMatchObject({ key: 'mxc_mK', openedSeq: 102, state: 'resolved' });
+
+	const drift = byKind.rate_drift;
+	expect(drift.severity).toBe('warning');
+	expect(drift.openedSeq).toBeGreaterThan(200);
+	expect(drift.openedSeq).toBeLessThan(450);
+	expect(drift.evidence.explainedByTemperature).toBe(false);
+
+	// Alerts are sent after commit; give the mailer a moment.
+	for (const incident of incidents) {
+		await expect
+			.poll(async () => {
+				const mail = await (await operator('/api/dev/mail')).json();
+				return mail.messages.some((m: { to: string[]; text: string }) => m.to.includes(people.operator.email) && m.text.includes(`/incidents/${incident.id}`));
+			})
+			.toBe(true);
+	}
+	await agent.close();
+});
