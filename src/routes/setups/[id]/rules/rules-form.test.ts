@@ -1,0 +1,88 @@
+// Checks of the rules form's conversions against the shared schema (src/lib/detect/rules.ts), the
+// reference both the browser and the API validate with.
+import { describe, expect, it } from 'vitest';
+import { defaultRules, detectorRulesSchema } from '$lib/detect/rules';
+import { describeZodError } from '$lib/protocol/messages';
+import { draftFromForm, fromDraft, messageField, resolveSpecs, rowDraft, toDraft, validateDraft } from './rules-form';
+
+const rules = () => defaultRules() as unknown as Record<string, unknown>;
+
+describe('rules form', () => {
+	it('shows every field the schema has and gives back exactly the default rule set', () => {
+		const specs = resolveSpecs(rules());
+		// Every rule field but the server-set version has an input (schema keys read independently here).
+		for (const [kind, rule] of Object.entries(defaultRules())) {
+			const spec = specs.find((s) => s.kind === kind)!;
+			const shown = new Set(['enabled', 'version', ...spec.fields.map((f) => f.key), ...(spec.list ? [spec.list.key] : [])]);
+			for (const key of Object.keys(rule)) expect(shown.has(key), `${kind}.${key} has an input`).toBe(true);
+		}
+		const v = validateDraft(toDraft(rules(), specs), specs);
+		expect(v.issues).toEqual({});
+		expect(v.rules).toEqual(defaultRules());
+	});
+
+	it('names the field a bad value belongs to, with the schema’s own message', () => {
+		const specs = resolveSpecs(rules());
+		const draft = toDraft(rules(), specs);
+		// Lock quality is |⟨e^{iKφ}⟩|, between 0 and 1 by definition (wire protocol, DESIGN.md).
+		draft.lock_lost.fields.threshold = '1.5';
+		draft.lock_lost.fields.clearThreshold = '1.5';
+		const expected = detectorRulesSchema.safeParse({ lock_lost: { threshold: 1.5, clearThreshold: 1.5 } });
+		expect(expected.success).toBe(false);
+		const v = validateDraft(draft, specs);
+		expect(v.ok).toBe(false);
+		expect(v.issues['lock_lost.threshold']).toBe(expected.error!.issues.find((i) => i.path.join('.') === 'lock_lost.threshold')!.message);
+		draft.lock_lost.fields.threshold = 'half';
+		expect(validateDraft(draft, specs).issues['lock_lost.threshold']).toMatch(/not a number/);
+	});
+
+	it('drops an empty aux row and maps a later row’s problem back to its own inputs', () => {
+		const specs = resolveSpecs(rules());
+		const list = specs.find((s) => s.kind === 'aux_limit')!.list!;
+		const draft = toDraft(rules(), specs);
+		const bad = rowDraft(list, { name: 'pump_dBm', below: 5, clearAbove: 3 });
+		draft.aux_limit.rows = [rowDraft(list), ...(draft.aux_limit.rows ?? []), bad];
+		const v = validateDraft(draft, specs);
+		expect(fromDraft(draft, specs).rules.aux_limit).toMatchObject({ limits: [{ name: 'mxc_mK' }, { name: 'pump_dBm' }] });
+		// clearAbove must be at least below (hysteresis), so the message belongs to row 2's clearAbove.
+		expect(Object.keys(v.issues)).toEqual(['aux_limit.limits.2.clearAbove']);
+	});
+
+	it('reads back what the form’s inputs submit', () => {
+		const specs = resolveSpecs(rules());
+		const base = toDraft(rules(), specs);
+		const form = new FormData();
+		form.append('lock_lost.enabled', 'false');
+		form.append('lock_lost.threshold', '0.4');
+		form.append('rate_drift.processes', '');
+		form.append('rate_drift.processes', 'switching');
+		form.append('rate_drift.processes', 'escape');
+		form.append('occupancy_imbalance.expectedPairs.mode', 'list');
+		form.append('occupancy_imbalance.expectedPairs', '0–1, 1–2');
+		form.append('aux_limit.limits.count', '1');
+		form.append('aux_limit.limits.0.name', 'mxc_mK');
+		form.append('aux_limit.limits.0.above', '40');
+		const out = validateDraft(draftFromForm(form, specs, base), specs);
+		expect(out.issues).toEqual({});
+		expect(out.rules).toMatchObject({
+			lock_lost: { enabled: false, threshold: 0.4, windows: 5 },
+			rate_drift: { processes: ['switching', 'escape'] },
+			occupancy_imbalance: { expectedPairs: [[0, 1], [1, 2]] },
+			aux_limit: { limits: [{ name: 'mxc_mK', above: 40, windows: 3 }] }
+		});
+	});
+
+	it('finds the field in the API’s 400 message', () => {
+		const specs = resolveSpecs(rules());
+		const draft = toDraft(rules(), specs);
+		const parsed = detectorRulesSchema.safeParse({ aux_limit: { limits: [{ name: 'a', above: 1 }, { name: 'b', above: 1, clearBelow: 2 }] } });
+		const message = describeZodError(parsed.error!);
+		draft.aux_limit.rows = [rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!), rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!)];
+		expect(messageField(message, draft, specs).field).toBe('aux_limit.limits.1.clearBelow');
+		expect(messageField('detector rules: lock_lost.windows: must be a whole number of windows', draft, specs)).toEqual({
+			field: 'lock_lost.windows',
+			text: 'must be a whole number of windows'
+		});
+		expect(messageField('the request body is not valid JSON', draft, specs).field).toBeNull();
+	});
+});
