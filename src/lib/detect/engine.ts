@@ -3,27 +3,25 @@
 // resumes exactly where it stopped and a replay of stored frames reproduces the live events.
 import { z } from 'zod';
 import type { Frame } from '../protocol/frame';
-import type { Detector, DetectorContext, RunInfo } from './detector';
+import type { Detector, DetectorContext } from './detector';
 import type { DetectorEvent, Signal } from './events';
 import { acceptSignal, isOpen, type OpenCondition } from './open-set';
-import { detectorRulesSchema, parseDetectorRules, type DetectorRules, type RuleKind } from './rules';
+import { checkRulesAgainstRun, detectorRulesSchema, parseDetectorRules, type DetectorRules, type RuleKind } from './rules';
+import { parseRunInfo, runInfoSchema, type RunInfo } from './run-info';
+import { compileRates, expectFrame, type CompiledRates, type FrameExpectation } from './expected';
 import { lockLost } from './lock-lost';
 import { agentSilent } from './agent-silent';
+import { switchingBurst } from './switching-burst';
+import { rateDrift } from './rate-drift';
+import { occupancyImbalance } from './occupancy-imbalance';
+import { auxLimit } from './aux-limit';
 
 /** Every detector, in the fixed order that makes the order of events deterministic. */
-const DETECTORS = [lockLost, agentSilent] as const;
+const DETECTORS = [lockLost, agentSilent, switchingBurst, rateDrift, occupancyImbalance, auxLimit] as const;
 type AnyDetector = Detector<RuleKind, unknown>;
 const detectors = DETECTORS as unknown as readonly AnyDetector[];
 
 export const SNAPSHOT_FORMAT = 1;
-
-const runInfoSchema = z.object({
-	runId: z.string().optional(),
-	states: z.number().int().min(1),
-	order: z.number().int().optional(),
-	mode_GHz: z.number().optional(),
-	openedAt_ms: z.number().optional()
-});
 
 const openConditionSchema: z.ZodType<OpenCondition> = z.object({
 	kind: z.string(),
@@ -47,6 +45,15 @@ export type EngineSnapshot = z.infer<typeof snapshotSchema>;
 
 const json = <T>(value: T): T => JSON.parse(JSON.stringify(value));
 
+function checkRules(rules: DetectorRules, states: number): DetectorRules {
+	const problem = checkRulesAgainstRun(rules, states);
+	if (problem) throw new RangeError(`detector rules: ${problem.path}: ${problem.message}`);
+	return rules;
+}
+
+/** The run fields a setup can change while a run is open. */
+export type RunChange = Pick<RunInfo, 'rateModels' | 'nominal_mK' | 'operatingPoint'>;
+
 function checkFrame(frame: Frame): void {
 	if (!Number.isInteger(frame?.seq) || frame.seq < 1) {
 		throw new RangeError(`detector engine: frame.seq must be an integer ≥ 1, got ${String(frame?.seq)}`);
@@ -58,22 +65,24 @@ function checkFrame(frame: Frame): void {
 
 export class DetectorEngine {
 	#s: EngineSnapshot;
+	/** Derived from the run information, never stored. */
+	#rates: CompiledRates;
 
-	/** `rules` may be partial: missing rules and fields take their defaults. */
+	/**
+	 * `rules` may be partial: missing rules and fields take their defaults. Without rate models
+	 * in `run.rateModels` the rate-based detectors (switching_burst, rate_drift) stay idle.
+	 */
 	constructor(rules: unknown, run: RunInfo) {
-		const parsedRun = runInfoSchema.safeParse(run);
-		if (!parsedRun.success) {
-			const issue = parsedRun.error.issues[0];
-			throw new RangeError(`detector engine: run.${issue.path.map(String).join('.')}: ${issue.message}`);
-		}
+		const parsedRun = parseRunInfo(run);
+		this.#rates = compileRates(parsedRun);
 		this.#s = {
 			format: SNAPSHOT_FORMAT,
-			rules: parseDetectorRules(rules),
-			run: parsedRun.data,
+			rules: checkRules(parseDetectorRules(rules), parsedRun.states),
+			run: parsedRun,
 			lastSeq: 0,
 			ended: false,
 			open: [],
-			detectors: Object.fromEntries(detectors.map((d) => [d.kind, d.init(parsedRun.data)]))
+			detectors: Object.fromEntries(detectors.map((d) => [d.kind, d.init(parsedRun)]))
 		};
 	}
 
@@ -99,6 +108,7 @@ export class DetectorEngine {
 			}
 		}
 		engine.#s = s;
+		engine.#rates = compileRates(s.run);
 		return engine;
 	}
 
@@ -125,7 +135,13 @@ export class DetectorEngine {
 		checkFrame(frame);
 		if (frame.seq <= this.#s.lastSeq) return [];
 		this.#s.lastSeq = frame.seq;
-		return this.#each((d, state, ctx) => d.onFrame?.(state, frame, ctx, receivedAt_ms) ?? []);
+		const expected = this.#rates.switching || this.#rates.escape ? expectFrame(frame, this.#rates) : undefined;
+		return this.#each((d, state, ctx) => d.onFrame?.(state, frame, ctx, receivedAt_ms) ?? [], expected);
+	}
+
+	/** The run information as the engine holds it (rate models included). */
+	get run() {
+		return json(this.#s.run);
 	}
 
 	/** A tick of the server clock; only clock-driven detectors (agent_silent) look at it. */
@@ -147,7 +163,7 @@ export class DetectorEngine {
 	 * more); a changed rule lets its detector restart what it counted under the old thresholds.
 	 */
 	setRules(rules: unknown, at_ms: number): DetectorEvent[] {
-		const next = parseDetectorRules(rules);
+		const next = checkRules(parseDetectorRules(rules), this.#s.run.states);
 		const events: DetectorEvent[] = [];
 		for (const d of detectors) {
 			const before = this.#s.rules[d.kind];
@@ -172,15 +188,39 @@ export class DetectorEngine {
 		return events;
 	}
 
-	#each(call: (d: AnyDetector, state: unknown, ctx: DetectorContext<RuleKind>) => Signal[]): DetectorEvent[] {
+	/**
+	 * New rate models, nominal temperature or operating point for the run, from the next frame on
+	 * (fields left out keep their value; `rateModels: {}` removes the models). Rate-based
+	 * detectors start their statistics afresh against the new prediction, and clear conditions
+	 * they can no longer judge.
+	 */
+	setRun(change: RunChange, at_ms: number): DetectorEvent[] {
+		const next = parseRunInfo({ ...this.#s.run, ...change });
+		const rates = compileRates(next);
+		this.#s.run = next;
+		this.#rates = rates;
+		return this.#each((d, state, ctx) => d.onRunChange?.(state, at_ms, ctx) ?? []);
+	}
+
+	/** One context per detector, reused for every call (replay feeds tens of thousands of frames). */
+	#contexts = detectors.map(
+		(d): DetectorContext<RuleKind> => ({
+			rule: undefined as never,
+			run: undefined as never,
+			expected: undefined,
+			isOpen: (key) => isOpen(this.#s.open, d.kind, key)
+		})
+	);
+
+	#each(call: (d: AnyDetector, state: unknown, ctx: DetectorContext<RuleKind>) => Signal[], expected?: FrameExpectation): DetectorEvent[] {
 		const events: DetectorEvent[] = [];
-		for (const d of detectors) {
+		for (let i = 0; i < detectors.length; i++) {
+			const d = detectors[i];
 			const rule = this.#s.rules[d.kind];
-			const ctx: DetectorContext<RuleKind> = {
-				rule,
-				run: this.#s.run,
-				isOpen: (key) => isOpen(this.#s.open, d.kind, key)
-			};
+			const ctx = this.#contexts[i];
+			ctx.rule = rule;
+			ctx.run = this.#s.run;
+			ctx.expected = expected;
 			// Disabled detectors still see every frame, so their memory (e.g. when the agent was
 			// last heard) is current when they are turned back on; only their openings are dropped.
 			for (const signal of call(d, this.#s.detectors[d.kind], ctx)) {

@@ -1,0 +1,192 @@
+// How much independent information a horizon of phase-state counts holds, and the chi-square
+// statistic for equal occupancy that follows from it.
+//
+// Shots are not independent samples of the state: the oscillator stays in one phase state for
+// about 1/W, so thousands of shots in a window may all see one state. A plain chi-square on shot
+// counts (NIST/SEMATECH e-Handbook 1.3.5.15) would then flag every slow-switching run. What
+// counts is the number of independent dwell episodes. For a symmetric Markov jump process on the
+// K states, with equal rates on the expected pairs (the edges of a graph with Laplacian L and mean
+// degree d̄), occupancy is uniform, and the fluctuation of the time fractions f along an
+// eigenvector v_m of L (eigenvalue ℓ_m, m ≥ 1) relaxes at rate λ_m = r·ℓ_m. Over a long exposure T
+// its variance is 2/(λ_m T K) — what n_m = λ_m T/2 independent samples would give. With N the
+// number of switches seen (N ≈ r·d̄·T), n_m = N·ℓ_m/(2d̄): n_m = N for two states, N·sin²(π/K) for
+// the slowest ring mode, N·K/(2(K−1)) for all pairs. Each escape from vacuum lands in a state at
+// random and starts an independent episode, adding one sample to every mode; shot noise adds
+// 1/shots to each mode's variance. The statistic
+//     X² = Σ_m n_m·K·(v_m · f)²
+// is then approximately χ² with one degree of freedom per mode; it reduces to the textbook
+// chi-square when every n_m equals the number of shots. The derivation is the standard variance
+// of a time average of a reversible Markov chain (2/T·Σ 1/λ_m over its spectral decomposition).
+import jStat from 'jstat';
+
+export type OccupancyModes = {
+	states: number;
+	/** Unit eigenvectors orthogonal to the constant vector, one per mode. */
+	vectors: number[][];
+	/** Laplacian eigenvalue of each mode divided by twice the mean degree: n_m = N × this. */
+	perSwitch: number[];
+};
+
+/** Eigen-decomposition of a symmetric matrix (cyclic Jacobi); columns of the result are vectors. */
+function jacobiEigen(a: number[][]): { values: number[]; vectors: number[][] } {
+	const n = a.length;
+	const A = a.map((row) => [...row]);
+	const V: number[][] = Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
+	for (let sweep = 0; sweep < 100; sweep++) {
+		let off = 0;
+		for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) off += A[i][j] * A[i][j];
+		if (off < 1e-26) break;
+		for (let p = 0; p < n; p++) {
+			for (let q = p + 1; q < n; q++) {
+				if (Math.abs(A[p][q]) < 1e-300) continue;
+				const theta = (A[q][q] - A[p][p]) / (2 * A[p][q]);
+				const t = Math.sign(theta || 1) / (Math.abs(theta) + Math.sqrt(theta * theta + 1));
+				const c = 1 / Math.sqrt(t * t + 1);
+				const s = t * c;
+				for (let k = 0; k < n; k++) {
+					const akp = A[k][p];
+					const akq = A[k][q];
+					A[k][p] = c * akp - s * akq;
+					A[k][q] = s * akp + c * akq;
+				}
+				for (let k = 0; k < n; k++) {
+					const apk = A[p][k];
+					const aqk = A[q][k];
+					A[p][k] = c * apk - s * aqk;
+					A[q][k] = s * apk + c * aqk;
+				}
+				for (let k = 0; k < n; k++) {
+					const vkp = V[k][p];
+					const vkq = V[k][q];
+					V[k][p] = c * vkp - s * vkq;
+					V[k][q] = s * vkp + c * vkq;
+				}
+			}
+		}
+	}
+	const values = A.map((row, i) => row[i]);
+	const vectors = values.map((_, j) => V.map((row) => row[j]));
+	return { values, vectors };
+}
+
+/** The undirected expected pairs as a set of keys i*K + j with i < j. */
+export function expectedPairSet(states: number, pairs: 'neighbours' | 'all' | [number, number][]): Set<number> {
+	const set = new Set<number>();
+	const add = (i: number, j: number) => {
+		if (i !== j) set.add(Math.min(i, j) * states + Math.max(i, j));
+	};
+	if (pairs === 'all') {
+		for (let i = 0; i < states; i++) for (let j = i + 1; j < states; j++) add(i, j);
+	} else if (pairs === 'neighbours') {
+		for (let i = 0; i < states; i++) add(i, (i + 1) % states);
+	} else {
+		for (const [i, j] of pairs) add(i, j);
+	}
+	return set;
+}
+
+const memo = new Map<string, OccupancyModes>();
+
+/** The modes of the expected-pair graph (pure; remembered, since rules rarely change). */
+export function occupancyModes(states: number, pairs: 'neighbours' | 'all' | [number, number][]): OccupancyModes {
+	const key = `${states}:${typeof pairs === 'string' ? pairs : JSON.stringify(pairs)}`;
+	const known = memo.get(key);
+	if (known) return known;
+	const set = expectedPairSet(states, pairs);
+	const L = Array.from({ length: states }, () => new Array<number>(states).fill(0));
+	for (const e of set) {
+		const i = Math.floor(e / states);
+		const j = e % states;
+		L[i][j] -= 1;
+		L[j][i] -= 1;
+		L[i][i] += 1;
+		L[j][j] += 1;
+	}
+	const meanDegree = (2 * set.size) / states;
+	// The constant vector is an eigenvector of L with eigenvalue 0; adding c·11ᵀ/K (c above every
+	// eigenvalue of L, which are ≤ 2·max degree ≤ 2K) moves it alone to c, so it can be dropped
+	// even when the graph is disconnected and 0 has several eigenvectors.
+	const c = 4 * states + 1;
+	const shifted = L.map((row) => row.map((x) => x + c / states));
+	const { values, vectors } = jacobiEigen(shifted);
+	let drop = 0;
+	for (let m = 1; m < states; m++) if (values[m] > values[drop]) drop = m;
+	const modes: OccupancyModes = { states, vectors: [], perSwitch: [] };
+	for (let m = 0; m < states; m++) {
+		if (m === drop) continue;
+		modes.vectors.push(vectors[m]);
+		modes.perSwitch.push(meanDegree > 0 ? Math.max(0, values[m]) / (2 * meanDegree) : 0);
+	}
+	memo.set(key, modes);
+	return modes;
+}
+
+export type OccupancyTest = {
+	statistic: number;
+	/** Modes with any information (n_m > 0). */
+	dof: number;
+	/** Effective independent samples per mode. */
+	effective: number[];
+	fractions: number[];
+	/** (f_i − 1/K) / sd_i under equal occupancy, with sd from the same effective samples. */
+	residuals: number[];
+};
+
+/**
+ * The occupancy statistic of a horizon: counts per state (shots), switches and escapes seen.
+ * Returns null when the horizon has no shots in phase states.
+ */
+export function occupancyStatistic(
+	counts: readonly number[],
+	switches: number,
+	escapes: number,
+	modes: OccupancyModes,
+	withResiduals = false
+): OccupancyTest | null {
+	const K = modes.states;
+	let shots = 0;
+	for (let i = 0; i < K; i++) shots += counts[i];
+	if (shots <= 0) return null;
+	const fractions = new Array<number>(K);
+	for (let i = 0; i < K; i++) fractions[i] = counts[i] / shots;
+	const effective: number[] = [];
+	let statistic = 0;
+	let dof = 0;
+	for (let m = 0; m < modes.vectors.length; m++) {
+		const episodes = switches * modes.perSwitch[m] + escapes;
+		const n = episodes > 0 ? 1 / (1 / episodes + 1 / shots) : 0;
+		effective.push(n);
+		if (n <= 0) continue;
+		const v = modes.vectors[m];
+		let proj = 0;
+		for (let i = 0; i < K; i++) proj += v[i] * fractions[i];
+		statistic += n * K * proj * proj;
+		dof += 1;
+	}
+	const residuals: number[] = [];
+	if (withResiduals) {
+		for (let i = 0; i < K; i++) {
+			let variance = 0;
+			for (let m = 0; m < modes.vectors.length; m++) {
+				if (effective[m] > 0) variance += (modes.vectors[m][i] * modes.vectors[m][i]) / (effective[m] * K);
+			}
+			residuals.push(variance > 0 ? (fractions[i] - 1 / K) / Math.sqrt(variance) : 0);
+		}
+	}
+	return { statistic, dof, effective, fractions, residuals };
+}
+
+/** Upper-tail χ² probability (jstat's regularized incomplete gamma). */
+export function chiSquareUpperTail(x: number, dof: number): number {
+	if (dof <= 0) return 1;
+	if (x <= 0) return 1;
+	return Math.min(1, Math.max(0, 1 - jStat.chisquare.cdf(x, dof)));
+}
+
+/** P(X ≥ x) for X ~ Binomial(n, p) as I_p(x, n − x + 1) (the incomplete-beta identity). */
+export function binomialUpperTail(x: number, n: number, p: number): number {
+	if (x <= 0) return 1;
+	if (x > n) return 0;
+	if (p <= 0) return 0;
+	return Math.min(1, Math.max(0, jStat.ibeta(p, x, n - x + 1)));
+}

@@ -1,0 +1,469 @@
+// rate_drift: a two-sided Poisson CUSUM (Lucas 1985) on the ratio of observed to predicted
+// switching (or escape) counts: it finds a lasting change of the rate by a factor ratioUp or
+// ratioDown long before a single window or horizon would show it as a burst.
+//
+// Each step is one window, or several pooled until their prediction reaches minExpectedPerStep;
+// its h comes from the band of its predicted count (cusum-design.ts), so the chart keeps to the
+// false-alarm budget as the rate moves. By default the prediction follows each window's fridge
+// temperature, so a warmer fridge alone does not open the chart: what opens it is unexplained by
+// temperature (detuning or bias drift, a changed operating point). With prediction 'nominal' the
+// chart compares with the rate at the nominal temperature, opens on temperature excursions too,
+// and the evidence then says whether the temperature explains what it saw.
+//
+// The evidence gives the observed/predicted ratio with its exact interval (Garwood 1936 limits on
+// the observed count, divided by the predicted count, taken as known) against both predictions,
+// over the span since the signalling statistic last left zero (the CUSUM's own estimate of when
+// the change began, and the windows its evidence comes from), and again over the last
+// horizonWindows windows, with the temperatures seen.
+//
+// While open the signalling statistic is held at most at h, so that it returns to zero a bounded
+// time after the rate does. The condition clears when that statistic is back at zero and the
+// ratio's interval over the horizon contains 1 again. Windows with zero exposure are skipped.
+import { z } from 'zod';
+import type { Detector, DetectorContext } from './detector';
+import type { Evidence, JsonValue, Signal } from './events';
+import type { ProcessExpectation, RateProcess } from './expected';
+import type { Frame } from '../protocol/frame';
+import { poissonCusumStep } from '../stats/cusum';
+import { poissonInterval } from '../stats/poisson';
+import { bandOf, cusumDesignSchema, designFor, designKey, MAX_WINDOWS_PER_STEP, type CusumDesign } from './cusum-design';
+import { createSliding, oldest, pushRow, slidingSchema, valueAt, type Sliding } from './sliding';
+import { finiteOrNull, fmt, rateModelEvidence } from './rate-evidence';
+import type { RateDriftRule } from './rules';
+
+// Horizon columns; the first six are summed.
+const H_COUNT = 0;
+const H_EXPECTED = 1;
+const H_NOMINAL = 2;
+const H_T_SUM = 3;
+const H_MEASURED = 4;
+const H_EXPOSURE = 5;
+const H_SEQ = 6;
+const H_T_MS = 7;
+
+const spanSchema = z.object({
+	count: z.number().int().min(0),
+	/** Predicted at each window's temperature. */
+	expected: z.number(),
+	/** Predicted at the nominal temperature. */
+	expectedNominal: z.number(),
+	/** Sum of measured temperatures, and the windows that had one. */
+	T_sum: z.number(),
+	measured: z.number().int().min(0),
+	windows: z.number().int().min(0),
+	fromSeq: z.number().int(),
+	from_ms: z.number(),
+	toSeq: z.number().int(),
+	to_ms: z.number()
+});
+type Span = z.infer<typeof spanSchema>;
+
+const sideSchema = z.object({
+	/** The CUSUM statistic, ≥ 0. */
+	S: z.number().min(0),
+	/** Windows since the statistic last was zero; null while it is zero. */
+	since: spanSchema.nullable()
+});
+type Side = z.infer<typeof sideSchema>;
+
+const processStateSchema = z.object({
+	up: sideSchema,
+	down: sideSchema,
+	/** Windows pooled into the step being built. */
+	block: spanSchema.nullable(),
+	horizon: slidingSchema.nullable(),
+	/** The side that opened the condition, while open. */
+	openSide: z.enum(['up', 'down']).nullable(),
+	steps: z.number().int().min(0)
+});
+type ProcessState = z.infer<typeof processStateSchema>;
+
+const rateDriftStateSchema = z.object({
+	/** Window length the budget is counted in: the first window's. */
+	designWindow_s: z.number().nullable(),
+	/** Designs used so far, by band and windows per step, so that a restored engine never recomputes them differently. */
+	designs: z.record(z.string(), cusumDesignSchema),
+	switching: processStateSchema,
+	escape: processStateSchema
+});
+export type RateDriftState = z.infer<typeof rateDriftStateSchema>;
+
+const freshSide = (): Side => ({ S: 0, since: null });
+const freshProcess = (): ProcessState => ({ up: freshSide(), down: freshSide(), block: null, horizon: null, openSide: null, steps: 0 });
+
+function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null): Span {
+	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
+	s.count += e.count;
+	s.expected += e.expected;
+	s.expectedNominal += e.expectedNominal;
+	if (T !== null) {
+		s.T_sum += T;
+		s.measured += 1;
+	}
+	s.windows += 1;
+	s.toSeq = frame.seq;
+	s.to_ms = frame.t;
+	return s;
+}
+
+/** What the chart compares with: the temperature-following or the nominal prediction. */
+const chartExpected = (rule: RateDriftRule, span: Span) => (rule.prediction === 'temperature' ? span.expected : span.expectedNominal);
+
+function join(a: Span | null, b: Span): Span {
+	if (!a) return { ...b };
+	return {
+		count: a.count + b.count,
+		expected: a.expected + b.expected,
+		expectedNominal: a.expectedNominal + b.expectedNominal,
+		T_sum: a.T_sum + b.T_sum,
+		measured: a.measured + b.measured,
+		windows: a.windows + b.windows,
+		fromSeq: a.fromSeq,
+		from_ms: a.from_ms,
+		toSeq: b.toSeq,
+		to_ms: b.to_ms
+	};
+}
+
+export type RatioEstimate = { estimate: number | null; lower: number | null; upper: number | null; confidence: number; significant: boolean };
+
+/**
+ * Observed/predicted ratio with the exact (Garwood) interval of the observed Poisson count divided
+ * by the prediction, which is treated as known. No prediction: nothing can be said.
+ */
+export function ratioEstimate(observed: number, expected: number, confidence: number): RatioEstimate {
+	if (!(expected > 0)) return { estimate: null, lower: null, upper: null, confidence, significant: false };
+	const { lower, upper } = poissonInterval(observed, confidence);
+	return {
+		estimate: observed / expected,
+		lower: lower / expected,
+		upper: finiteOrNull(upper / expected),
+		confidence,
+		significant: lower > expected || upper < expected
+	};
+}
+
+function designInputs(rule: RateDriftRule, window_s: number) {
+	return {
+		ratioUp: rule.ratioUp,
+		ratioDown: rule.ratioDown,
+		minExpectedPerStep: rule.minExpectedPerStep,
+		falseAlarmEvery_days: rule.falseAlarmEvery_days,
+		window_s
+	};
+}
+
+function ruleEvidence(rule: RateDriftRule): Evidence {
+	return {
+		rule: 'rate_drift',
+		version: rule.version,
+		falseAlarmEvery_days: rule.falseAlarmEvery_days,
+		ratioUp: rule.ratioUp,
+		ratioDown: rule.ratioDown,
+		minExpectedPerStep: rule.minExpectedPerStep,
+		horizonWindows: rule.horizonWindows,
+		prediction: rule.prediction
+	};
+}
+
+export const rateDrift: Detector<'rate_drift', RateDriftState> = {
+	kind: 'rate_drift',
+	stateSchema: rateDriftStateSchema,
+
+	init: () => ({ designWindow_s: null, designs: {}, switching: freshProcess(), escape: freshProcess() }),
+
+	onFrame(state, frame, ctx): Signal[] {
+		const { rule, expected } = ctx;
+		const signals: Signal[] = [];
+		for (const p of ['switching', 'escape'] as const) {
+			const watched = rule.processes.includes(p);
+			if (!watched) {
+				if (ctx.isOpen(p)) {
+					Object.assign(state[p], freshProcess());
+					signals.push({
+						type: 'clear',
+						key: p,
+						at_ms: frame.t,
+						seq: frame.seq,
+						summary: `The rule no longer watches the ${p} rate`,
+						evidence: { ...ruleEvidence(rule), process: p, reason: 'process_not_watched' }
+					});
+				}
+				continue;
+			}
+			const e = expected?.[p];
+			if (!e || !(e.exposure_s > 0)) continue;
+			if (state.designWindow_s === null) state.designWindow_s = frame.window_s;
+			const signal = onWindow(state, state[p], p, frame, e, ctx);
+			if (signal) signals.push(signal);
+		}
+		return signals;
+	},
+
+	onRuleChange(state, previous, next) {
+		const redesign =
+			previous.ratioUp !== next.ratioUp ||
+			previous.ratioDown !== next.ratioDown ||
+			previous.minExpectedPerStep !== next.minExpectedPerStep ||
+			previous.falseAlarmEvery_days !== next.falseAlarmEvery_days ||
+			previous.prediction !== next.prediction;
+		for (const p of ['switching', 'escape'] as const) {
+			const ps = state[p];
+			if (redesign) {
+				// The statistics were accumulated against other ratios or another prediction.
+				ps.up = freshSide();
+				ps.down = freshSide();
+				ps.block = null;
+			}
+			if (previous.horizonWindows !== next.horizonWindows) ps.horizon = null;
+		}
+		if (redesign) state.designs = {};
+	},
+
+	onRunChange(state, at_ms, ctx): Signal[] {
+		const signals: Signal[] = [];
+		for (const p of ['switching', 'escape'] as const) {
+			const openSide = state[p].openSide;
+			Object.assign(state[p], freshProcess());
+			if (openSide && ctx.isOpen(p)) {
+				// Evidence gathered against the old model cannot close against the new one.
+				signals.push({
+					type: 'clear',
+					key: p,
+					at_ms,
+					summary: `The ${p} rate model changed; the chart starts again against the new prediction`,
+					evidence: { ...ruleEvidence(ctx.rule), process: p, reason: 'rate_model_changed' }
+				});
+			}
+		}
+		return signals;
+	}
+};
+
+function onWindow(
+	state: RateDriftState,
+	ps: ProcessState,
+	p: RateProcess,
+	frame: Frame,
+	e: ProcessExpectation,
+	ctx: DetectorContext<'rate_drift'>
+): Signal | null {
+	const { rule } = ctx;
+	const T = ctx.expected!;
+	// The engine's open set is the truth (an opening of a disabled rule was dropped).
+	if (!ctx.isOpen(p)) ps.openSide = null;
+	else if (ps.openSide === null) ps.openSide = ps.up.S >= ps.down.S ? 'up' : 'down';
+	if (!ps.horizon || ps.horizon.size !== rule.horizonWindows) ps.horizon = createSliding(rule.horizonWindows, 8, 6);
+	pushRow(ps.horizon, [e.count, e.expected, e.expectedNominal, T.measured ? T.T_mK : 0, T.measured ? 1 : 0, e.exposure_s, frame.seq, frame.t]);
+
+	ps.block = extend(ps.block, frame, e, T.measured ? T.T_mK : null);
+	let signal: Signal | null = null;
+	const block = ps.block;
+	if (chartExpected(rule, block) >= rule.minExpectedPerStep) {
+		ps.block = null;
+		signal = step(state, ps, p, block, frame, ctx);
+	} else if (block.windows >= MAX_WINDOWS_PER_STEP) {
+		ps.block = null; // a rate this slow fills no step: the burst test still sees any excess
+	}
+	if (signal) return signal;
+	return maybeClear(ps, p, frame, ctx);
+}
+
+function designOf(state: RateDriftState, rule: RateDriftRule, block: Span): CusumDesign {
+	const band = bandOf(chartExpected(rule, block));
+	const key = designKey(band, block.windows);
+	const known = state.designs[key];
+	if (known) return known;
+	const design = designFor(band, block.windows, designInputs(rule, state.designWindow_s!));
+	state.designs[key] = design;
+	return design;
+}
+
+function advance(side: Side, S: number, block: Span): void {
+	side.S = S;
+	side.since = S === 0 ? null : join(side.since, block);
+}
+
+function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Span, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {
+	const { rule } = ctx;
+	const d = designOf(state, rule, block);
+	ps.steps += 1;
+	const mu = chartExpected(rule, block);
+	advance(ps.up, poissonCusumStep(ps.up.S, block.count, mu, rule.ratioUp), block);
+	advance(ps.down, poissonCusumStep(ps.down.S, block.count, mu, rule.ratioDown), block);
+	const overUp = ps.up.S >= d.hUp;
+	const overDown = ps.down.S >= d.hDown;
+
+	if (ps.openSide === null) {
+		if (!overUp && !overDown) return null;
+		const side = overUp && (!overDown || ps.up.S / d.hUp >= ps.down.S / d.hDown) ? 'up' : 'down';
+		const evidence = driftEvidence(ps, p, side, d, ctx);
+		ps.openSide = side;
+		hold(ps, d);
+		return { type: 'open', key: p, severity: 'warning', at_ms: frame.t, seq: frame.seq, summary: summaryOf(p, side, evidence), evidence };
+	}
+	// Open: a signal of the other side means the rate moved past the prediction the other way.
+	const other = ps.openSide === 'up' ? 'down' : 'up';
+	const otherOver = other === 'up' ? overUp : overDown;
+	if (otherOver) {
+		const evidence = driftEvidence(ps, p, other, d, ctx);
+		ps.openSide = other;
+		(ps.openSide === 'up' ? ps.down : ps.up).S = 0;
+		(ps.openSide === 'up' ? ps.down : ps.up).since = null;
+		hold(ps, d);
+		return { type: 'update', key: p, at_ms: frame.t, seq: frame.seq, evidence: { ...evidence, reversed: true } };
+	}
+	hold(ps, d);
+	return null;
+}
+
+/** While open, the signalling statistic is held at most at h (see the file's comment). */
+function hold(ps: ProcessState, d: CusumDesign): void {
+	if (ps.openSide === 'up') ps.up.S = Math.min(ps.up.S, d.hUp);
+	if (ps.openSide === 'down') ps.down.S = Math.min(ps.down.S, d.hDown);
+}
+
+function horizonSpan(h: Sliding): { [key: string]: JsonValue } {
+	return { fromSeq: oldest(h, H_SEQ), toSeq: valueAt(h, h.len - 1, H_SEQ), from_ms: oldest(h, H_T_MS), to_ms: valueAt(h, h.len - 1, H_T_MS), windows: h.len };
+}
+
+function horizonEvidence(h: Sliding, confidence: number): { [key: string]: JsonValue } {
+	let min = Infinity;
+	let max = -Infinity;
+	for (let i = 0; i < h.len; i++) {
+		if (valueAt(h, i, H_MEASURED) === 0) continue;
+		const T = valueAt(h, i, H_T_SUM);
+		min = Math.min(min, T);
+		max = Math.max(max, T);
+	}
+	const measured = h.sums[H_MEASURED];
+	return {
+		...horizonSpan(h),
+		observed: h.sums[H_COUNT],
+		expected: h.sums[H_EXPECTED],
+		expectedAtNominal: h.sums[H_NOMINAL],
+		exposure_s: h.sums[H_EXPOSURE],
+		ratio: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_EXPECTED], confidence) },
+		ratioAtNominal: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_NOMINAL], confidence) },
+		windowsMeasured: measured,
+		meanT_mK: measured > 0 ? h.sums[H_T_SUM] / measured : null,
+		minT_mK: finiteOrNull(min),
+		maxT_mK: finiteOrNull(max)
+	};
+}
+
+/**
+ * The evidence of an opening (or a reversal). Whether the fridge temperature explains it is
+ * judged over the span since the signalling statistic last left zero — the windows the chart's
+ * evidence comes from — by comparing the rate with both predictions there: explained when it
+ * departs from the nominal-temperature prediction but not from the temperature-following one.
+ * With the default prediction 'temperature' the chart signalled against the temperature-following
+ * prediction, so this is rare: what it found is, as a rule, unexplained by temperature.
+ */
+function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d: CusumDesign, ctx: DetectorContext<'rate_drift'>): Evidence {
+	const { rule, run } = ctx;
+	const h = ps.horizon!;
+	const since = (side === 'up' ? ps.up : ps.down).since!;
+	const vsT = ratioEstimate(since.count, since.expected, rule.confidence);
+	const vsN = ratioEstimate(since.count, since.expectedNominal, rule.confidence);
+	const measured = since.measured > 0;
+	const nominal_mK = run.nominal_mK ?? run.rateModels?.[p]?.nominal_mK ?? 0;
+	const meanT_mK = measured ? since.T_sum / since.measured : null;
+	const explainedByTemperature = measured && vsN.significant && !vsT.significant;
+	return {
+		...ruleEvidence(rule),
+		process: p,
+		direction: side,
+		designRatio: side === 'up' ? rule.ratioUp : rule.ratioDown,
+		statistic: side === 'up' ? ps.up.S : ps.down.S,
+		decisionInterval: side === 'up' ? d.hUp : d.hDown,
+		design: { ...d },
+		steps: ps.steps,
+		sinceChange: {
+			fromSeq: since.fromSeq,
+			toSeq: since.toSeq,
+			from_ms: since.from_ms,
+			to_ms: since.to_ms,
+			windows: since.windows,
+			observed: since.count,
+			expected: since.expected,
+			expectedAtNominal: since.expectedNominal,
+			windowsMeasured: since.measured,
+			meanT_mK
+		},
+		ratio: { ...vsT },
+		ratioAtNominal: { ...vsN },
+		horizon: horizonEvidence(h, rule.confidence),
+		nominal_mK,
+		temperatureMeasured: measured,
+		explainedByTemperature,
+		explanation: explain(p, vsT, vsN, meanT_mK, nominal_mK, explainedByTemperature, rule, since.windows),
+		rateModel: rateModelEvidence(run, p)
+	};
+}
+
+const range = (r: RatioEstimate) => `${fmt(r.estimate ?? NaN)} (${fmt(r.lower ?? 0)}–${r.upper === null ? '∞' : fmt(r.upper)})`;
+
+function explain(
+	p: RateProcess,
+	vsT: RatioEstimate,
+	vsN: RatioEstimate,
+	meanT_mK: number | null,
+	nominal_mK: number,
+	explained: boolean,
+	rule: RateDriftRule,
+	windows: number
+): string {
+	const what = p === 'switching' ? 'switching rate' : 'escape rate';
+	const nominal = `${fmt(nominal_mK)} mK`;
+	const over = `over the ${windows} windows since the change began`;
+	if (meanT_mK === null) {
+		return `No mixing-chamber temperature in these windows: the prediction used the nominal ${nominal}, so a temperature change cannot be ruled out. The ${what} is ${range(vsT)} × that prediction ${over}.`;
+	}
+	const meanT = `${fmt(meanT_mK)} mK`;
+	if (explained) {
+		return `Explained by temperature: ${over} the ${what} is ${range(vsN)} × the prediction at the nominal ${nominal}, but ${range(vsT)} × the prediction at the measured temperature (mean ${meanT}), consistent with 1.`;
+	}
+	if (vsT.significant) {
+		return `Unexplained by temperature: the prediction follows the measured mixing-chamber temperature (mean ${meanT}, nominal ${nominal}) and ${over} the ${what} is still ${range(vsT)} × it — detuning or bias drift, or a changed operating point.`;
+	}
+	const r = rule.prediction === 'temperature' ? vsT : vsN;
+	return `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}), not significant at ${fmt(100 * rule.confidence)} % on its own: the chart accumulated several smaller excesses.`;
+}
+
+function summaryOf(p: RateProcess, side: 'up' | 'down', ev: Evidence): string {
+	const what = p === 'switching' ? 'Switching rate' : 'Escape rate';
+	const r = ev.ratio as unknown as RatioEstimate;
+	const windows = (ev.sinceChange as { windows: number }).windows;
+	const dir = side === 'up' ? 'above' : 'below';
+	const why = ev.explainedByTemperature ? 'explained by the fridge temperature' : ev.temperatureMeasured ? 'not explained by the fridge temperature' : 'fridge temperature not measured';
+	return `${what} drifted ${dir} the prediction: ${range(r)} × over the last ${windows} windows (CUSUM ${fmt(Number(ev.statistic))} ≥ h = ${fmt(Number(ev.decisionInterval))}; ${why})`;
+}
+
+function maybeClear(ps: ProcessState, p: RateProcess, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {
+	if (ps.openSide === null) return null;
+	const side = ps.openSide === 'up' ? ps.up : ps.down;
+	if (side.S > 0) return null;
+	const { rule } = ctx;
+	const h = ps.horizon!;
+	const chart = rule.prediction === 'temperature' ? H_EXPECTED : H_NOMINAL;
+	const r = ratioEstimate(h.sums[H_COUNT], h.sums[chart], rule.confidence);
+	if (r.significant) return null;
+	const openSide = ps.openSide;
+	ps.openSide = null;
+	if (!ctx.isOpen(p)) return null;
+	return {
+		type: 'clear',
+		key: p,
+		at_ms: frame.t,
+		seq: frame.seq,
+		summary: `${p === 'switching' ? 'Switching' : 'Escape'} rate back at the prediction: ratio ${range(r)} over the last ${h.len} windows, CUSUM back at 0`,
+		evidence: {
+			...ruleEvidence(rule),
+			process: p,
+			direction: openSide,
+			statistic: 0,
+			horizon: horizonEvidence(h, rule.confidence)
+		}
+	};
+}
