@@ -1,4 +1,5 @@
 import { error } from '@sveltejs/kit';
+import { checkRulesAgainstRun, detectorRulesSchema } from '$lib/detect/rules';
 import { describeZodError } from '$lib/protocol/messages';
 import { json, requireRole } from '$lib/server/http/guard';
 import { getSetupRules, putSetupRules, ruleHistory } from '$lib/server/rules/service';
@@ -24,7 +25,11 @@ export const PUT: RequestHandler = async (event) => {
 		error(400, 'the request body is not valid JSON');
 	}
 	const { db, ingest } = await getRuntime();
-	if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
+	const setup = await getSetup(db, event.params.id);
+	if (!setup) error(404, 'no setup with this id');
+	const parsed = detectorRulesSchema.safeParse(body);
+	const mismatch = parsed.success ? checkRulesAgainstRun(parsed.data, setup.states) : null;
+	if (mismatch) error(400, `${mismatch.path}: ${mismatch.message}`);
 	const result = await putSetupRules(db, event.params.id, body, user.id);
 	if ('error' in result) error(400, describeZodError(result.error));
 	await ingest.rulesChanged(event.params.id, result.rules);
