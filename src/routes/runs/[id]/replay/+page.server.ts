@@ -1,7 +1,7 @@
 // Replay of a stored run with other rules: starts from the setup's rules in force; the action sends
 // the rules to try to the replay API, which reads the frames and changes nothing real.
 import { fail } from '@sveltejs/kit';
-import { apiGet, apiSend } from '$lib/ui/api';
+import { apiGet, apiGetOptional, apiSend } from '$lib/ui/api';
 import type { Frame, Incident, Run } from '$lib/ui/types';
 import { draftFromForm, fromDraft, messageField, resolveSpecs, rowDraft, toDraft, type Draft } from '../../../setups/[id]/rules/rules-form';
 import type { ReplayResult } from './replay-view';
@@ -23,13 +23,17 @@ export const load: PageServerLoad = async ({ fetch, params }) => {
 		apiGet<RunDetail>(fetch, `/api/runs/${id}`),
 		apiGet<{ frames: Frame[] }>(fetch, `/api/runs/${id}/frames?from=1&limit=1`)
 	]);
-	const rules = await rulesOf(fetch, detail.run.setupId);
+	const [rules, models] = await Promise.all([
+		rulesOf(fetch, detail.run.setupId),
+		apiGetOptional<{ rateModel: unknown; escapeModel: unknown }>(fetch, `/api/setups/${encodeURIComponent(detail.run.setupId)}/rate-model`)
+	]);
 	const f = first.frames[0] ?? null;
 	return {
 		run: detail.run,
 		setup: { id: detail.setup.id, name: detail.setup.name },
 		liveIncidents: detail.incidents.length,
 		rules,
+		rateModels: { switching: models?.rateModel ?? null, escape: models?.escapeModel ?? null },
 		firstFrame: f ? { seq: f.seq, t: f.t, window_s: f.window_s } : null
 	};
 };

@@ -150,3 +150,19 @@ export function shiftWords(shift_ms: number, formatDuration: (s: number) => stri
 	if (Math.abs(shift_ms) < 500) return 'at the same time';
 	return `${formatDuration(Math.abs(shift_ms) / 1000)} ${shift_ms > 0 ? 'later' : 'earlier'}`;
 }
+
+const pad2 = (n: number) => String(n).padStart(2, '0');
+
+/**
+ * A time on the run's clock to the second ("00:53:32"), with the day in front when it is not the
+ * day of `ref_ms` (the run's first frame): a replay is read window by window.
+ */
+export function clockAt(ms: number, ref_ms: number | null): string {
+	const d = new Date(ms);
+	const clock = `${pad2(d.getHours())}:${pad2(d.getMinutes())}:${pad2(d.getSeconds())}`;
+	if (ref_ms !== null && new Date(ref_ms).toDateString() === d.toDateString()) return clock;
+	return `${d.toLocaleDateString('en-GB', { day: 'numeric', month: 'short' })} ${clock}`;
+}
+
+/** " (seq 32)" or nothing. */
+export const seqText = (seq: number | null | undefined) => (seq != null ? ` (seq ${seq})` : '');

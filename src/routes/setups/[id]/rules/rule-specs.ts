@@ -57,7 +57,7 @@ export const KIND_SPECS: KindSpec[] = [
 		title: 'Lock lost',
 		severity: 'critical',
 		explanation:
-			'The oscillator has lost its phase lock (pump or reference unlock, a bias jump, the junction going resistive): lock quality |⟨e^{iKφ}⟩| stays low for several windows in a row.',
+			'The oscillator has lost its phase lock (pump or reference unlock, a bias jump, the junction going resistive): lock quality |⟨exp(iKφ)⟩| stays low for several windows in a row.',
 		fields: [
 			{ key: 'threshold', type: 'number', label: 'Low below', unit: 'lock quality, 0–1', hint: 'A window whose lock quality is below this counts as low.' },
 			{ key: 'windows', type: 'number', label: 'Opens after', unit: 'windows', integer: true, hint: 'Consecutive low windows that open the incident.' },

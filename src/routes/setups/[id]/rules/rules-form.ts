@@ -416,3 +416,21 @@ export function changedFields(draft: Draft, saved: Draft, specs: KindSpec[]): Se
 	}
 	return changed;
 }
+
+/**
+ * What a rule cannot do for want of a rate model: the rate rules compare with a prediction and
+ * stay idle for a process without a model (switching_burst also tests escapes when locked).
+ */
+export function idleNotes(models: { switching: unknown; escape: unknown }): Record<string, string> {
+	const notes: Record<string, string> = {};
+	if (!models.switching && !models.escape) {
+		notes.switching_burst = 'This setup has no rate model yet, so this rule is idle until one is saved below.';
+		notes.rate_drift = notes.switching_burst;
+	} else if (!models.switching) {
+		notes.switching_burst = 'No switching model yet: only escapes are tested (when the run is meant to stay locked).';
+		notes.rate_drift = 'No switching model yet: the switching chart is idle.';
+	} else if (!models.escape) {
+		notes.rate_drift = 'No escape model yet: an escape chart, if watched, stays idle.';
+	}
+	return notes;
+}
