@@ -10,6 +10,7 @@ import { loadAuthSecret } from '../lib/server/auth/secret';
 import { lockDataDir, unlockDataDir } from '../lib/server/data-lock';
 import { openDatabase } from '../lib/server/db';
 import { user } from '../lib/server/db/schema';
+import { saveRateModel } from '../lib/server/models/rate-models';
 import { addMember, createSetup } from '../lib/server/setups/service';
 import { createAgentToken } from '../lib/server/setups/tokens';
 import { DEMO_PASSWORD, demoPeople, demoSetups } from './demo-lab';
@@ -33,7 +34,12 @@ async function seed(): Promise<string> {
 		for (const s of demoSetups) {
 			const setup = await createSetup(db, { ...s }, admin.id);
 			for (const email of s.members) await addMember(db, setup.id, ids.get(email)!);
-			if (!secret) secret = (await createAgentToken(db, setup.id, 'demo instrument PC', admin.id)).secret;
+			if (!secret) {
+				secret = (await createAgentToken(db, setup.id, 'demo instrument PC', admin.id)).secret;
+				// The simulated oscillator switches 0.05 times a second while locked: W0·e^{−A} at base temperature.
+				const model = { process: 'switching' as const, W0_per_s: 0.05 * Math.exp(3), A: 3, W0_sigma: 0.1, A_sigma: 0.1, mode_GHz: 5, nominal_mK: 12, source: 'manual' as const };
+				await saveRateModel(db, setup.id, model, admin.id, 'demo: from an earlier cooldown of this line');
+			}
 		}
 		return secret;
 	} finally {
