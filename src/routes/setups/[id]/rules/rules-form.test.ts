@@ -36,6 +36,16 @@ describe('rules form', () => {
 		expect(validateDraft(draft, specs).issues['lock_lost.threshold']).toMatch(/not a number/);
 	});
 
+	it('refuses a switching pair with a state the setup does not have, as the server does', () => {
+		const specs = resolveSpecs(rules());
+		const draft = toDraft(rules(), specs);
+		draft.occupancy_imbalance.fields.expectedPairs = '0–1, 5–6';
+		// A six-state run (K = 2M for period tripling) has states 0…5, so state 6 does not exist.
+		expect(validateDraft(draft, specs).issues).toEqual({});
+		expect(validateDraft(draft, specs, 6).issues['occupancy_imbalance.expectedPairs']).toMatch(/state 6 does not exist/);
+		expect(validateDraft(draft, specs, 7).issues).toEqual({});
+	});
+
 	it('drops an empty aux row and maps a later row’s problem back to its own inputs', () => {
 		const specs = resolveSpecs(rules());
 		const list = specs.find((s) => s.kind === 'aux_limit')!.list!;

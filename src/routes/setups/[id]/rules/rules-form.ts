@@ -1,6 +1,6 @@
 // The rules form as data: a rule set ⇄ the text a person edits ⇄ form fields named by dotted path,
 // validated with the very schema the server uses, so messages appear beside the field they name.
-import { defaultRules, detectorRulesSchema } from '$lib/detect/rules';
+import { checkRulesAgainstRun, defaultRules, detectorRulesSchema, type DetectorRules } from '$lib/detect/rules';
 import { KIND_SPECS, type FieldSpec, type KindSpec, type ListSpec } from './rule-specs';
 
 export type DraftValue = string | boolean | string[];
@@ -301,8 +301,11 @@ function toDraftPath(path: (string | number)[], rows: Map<string, number[]>): st
 
 export type Validation = { ok: boolean; rules: Record<string, unknown>; issues: FieldIssues };
 
-/** Validates a draft with the shared schema; issues are keyed by the field they belong to (first one wins). */
-export function validateDraft(draft: Draft, specs: KindSpec[]): Validation {
+/**
+ * Validates a draft with the shared schema, and, given the setup's number of phase states, with the
+ * same check against the setup the server makes. Issues are keyed by their field (first one wins).
+ */
+export function validateDraft(draft: Draft, specs: KindSpec[], states?: number): Validation {
 	const { rules, issues } = fromDraft(draft, specs);
 	const keys = fieldKeys(draft, specs);
 	const rows = rowIndexMap(draft, specs);
@@ -312,6 +315,12 @@ export function validateDraft(draft: Draft, specs: KindSpec[]): Validation {
 			const key = nearestField(toDraftPath(issue.path as (string | number)[], rows), keys) || '(rules)';
 			// A field that is not even a number keeps that message; the schema's would only repeat it.
 			if (!(key in issues)) issues[key] = issue.message;
+		}
+	} else if (states !== undefined) {
+		const mismatch = checkRulesAgainstRun(result.data as DetectorRules, states);
+		if (mismatch) {
+			const key = nearestField(toDraftPath(mismatch.path.split('.'), rows), keys);
+			if (!(key in issues)) issues[key] = mismatch.message;
 		}
 	}
 	return { ok: Object.keys(issues).length === 0, rules: result.success ? (result.data as Record<string, unknown>) : rules, issues };
