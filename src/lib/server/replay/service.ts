@@ -31,7 +31,8 @@ export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown) 
 		rules,
 		frameCount: frames.length,
 		replayed,
-		actual: actualList.incidents,
+		// Live incidents with the clear time on the replay's clock, so both can share one timeline.
+		actual: actualList.incidents.map((inc, k) => ({ ...inc, clearedAt_ms: actual[k].clearedAt_ms })),
 		comparison: {
 			both: comparison.both.map((b) => ({ actualId: b.actual.id, replayIndex: replayed.indexOf(b.replay), openShift_ms: b.openShift_ms })),
 			onlyReplay: comparison.onlyReplay.map((r) => replayed.indexOf(r)),
