@@ -3,7 +3,7 @@
 import { fail } from '@sveltejs/kit';
 import { apiGet, apiGetOptional, apiSend } from '$lib/ui/api';
 import type { Frame, Incident, Run } from '$lib/ui/types';
-import { draftFromForm, fromDraft, messageField, resolveSpecs, rowDraft, toDraft, type Draft } from '../../../setups/[id]/rules/rules-form';
+import { draftFromForm, fromDraft, messageField, resolveSpecs, applyRowEdit, toDraft, type Draft } from '../../../setups/[id]/rules/rules-form';
 import type { ReplayResult } from './replay-view';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -48,19 +48,8 @@ export const actions: Actions = {
 		const specs = resolveSpecs(current);
 		const draft: Draft = draftFromForm(form, specs, toDraft(current, specs));
 
-		// Without JavaScript, adding or removing a limit row is a round trip that replays nothing.
-		const add = form.get('addRow');
-		const remove = form.get('removeRow');
-		if (typeof add === 'string' || typeof remove === 'string') {
-			const [kind, , index] = String(add ?? remove).split('.');
-			const spec = specs.find((s) => s.kind === kind);
-			const rows = draft[kind]?.rows;
-			if (spec?.list && rows) {
-				if (typeof add === 'string') rows.push(rowDraft(spec.list));
-				else rows.splice(Number(index), 1);
-			}
-			return { draft, edited: true };
-		}
+		// Without JavaScript, adding or removing a list row is a round trip that replays nothing.
+		if (applyRowEdit(form, specs, draft)) return { draft, edited: true };
 
 		const { rules, issues } = fromDraft(draft, specs);
 		const first = Object.entries(issues)[0];

@@ -5,7 +5,7 @@ import { hasRole } from '$lib/roles';
 import { apiGet } from '$lib/ui/api';
 import type { Run } from '$lib/ui/types';
 import { rateDraftFromForm, rateMessageField, rateModelFromDraft, type RateModelHistoryRow, type SavedRateModel } from './rate-model-form';
-import { draftFromForm, fromDraft, messageField, resolveSpecs, rowDraft, toDraft, type Draft } from './rules-form';
+import { draftFromForm, fromDraft, messageField, resolveSpecs, applyRowEdit, toDraft, type Draft } from './rules-form';
 import type { Actions, PageServerLoad } from './$types';
 
 export interface RuleChange {
@@ -78,18 +78,7 @@ export const actions: Actions = {
 		const draft: Draft = draftFromForm(form, specs, toDraft(current, specs));
 
 		// Without JavaScript, adding or removing a list row is a round trip that saves nothing.
-		const add = form.get('addRow');
-		const remove = form.get('removeRow');
-		if (typeof add === 'string' || typeof remove === 'string') {
-			const [kind, , index] = String(add ?? remove).split('.');
-			const spec = specs.find((s) => s.kind === kind);
-			const rows = draft[kind]?.rows;
-			if (spec?.list && rows) {
-				if (typeof add === 'string') rows.push(rowDraft(spec.list));
-				else rows.splice(Number(index), 1);
-			}
-			return { intent: 'saveRules', draft, edited: true };
-		}
+		if (applyRowEdit(form, specs, draft)) return { intent: 'saveRules', draft, edited: true };
 
 		const { rules, issues } = fromDraft(draft, specs);
 		const first = Object.entries(issues)[0];

@@ -443,3 +443,21 @@ export function idleNotes(models: { switching: unknown; escape: unknown }): Reco
 	}
 	return notes;
 }
+
+/**
+ * Applies an "add row" or "remove row" button of a list rule (the form without JavaScript) to the
+ * draft. Returns true when the form was such a round trip rather than a submit.
+ */
+export function applyRowEdit(form: FormData, specs: KindSpec[], draft: Draft): boolean {
+	const add = form.get('addRow');
+	const remove = form.get('removeRow');
+	if (typeof add !== 'string' && typeof remove !== 'string') return false;
+	const [kind, , index] = String(add ?? remove).split('.');
+	const spec = specs.find((s) => s.kind === kind);
+	const rows = draft[kind]?.rows;
+	if (spec?.list && rows) {
+		if (typeof add === 'string') rows.push(rowDraft(spec.list));
+		else rows.splice(Number(index), 1);
+	}
+	return true;
+}
