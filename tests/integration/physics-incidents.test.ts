@@ -4,6 +4,7 @@
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
+import { mulberry32, poissonKnuth } from '../support/random';
 
 let seeded: Seeded;
 let server: RunningServer;
@@ -15,24 +16,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-/** mulberry32 (a small public-domain PRNG), seeded, so the scripted run is the same every time. */
-function rng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-/** Knuth's multiplication method for Poisson draws (fine for small means). */
-function poisson(mu: number, u: () => number) {
-	const limit = Math.exp(-mu);
-	let k = 0;
-	for (let p = u(); p > limit; p *= u()) k++;
-	return k;
-}
 
 it('raises switching_burst, aux_limit and rate_drift for exactly the injected faults', async () => {
 	const operator = await signIn(server, 'operator');
@@ -47,11 +30,11 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 } };
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(onlyWindows) })).status).toBe(200);
 
-	const u = rng(2026);
+	const u = mulberry32(2026);
 	const frames = Array.from({ length: 600 }, (_, i) => {
 		const seq = i + 1;
 		const rateFactor = seq > 200 ? 2 : 1; // the drift: twice the predicted rate from seq 201 on
-		const f = { ...frame(seq), dwell_s: 1, switches: poisson(1 * rateFactor, u) };
+		const f = { ...frame(seq), dwell_s: 1, switches: poissonKnuth(1 * rateFactor, u) };
 		if (seq >= 100 && seq < 112) f.aux = { mxc_mK: 35 }; // the fridge warms past the 30 mK limit
 		// The burst comes while the drift is already open (one open incident per kind), so the
 		// CUSUM's response to it cannot be mistaken for the drift. P(K ≥ 25 | μ = 1) ≈ 1e-25.

@@ -2,17 +2,10 @@
 // oscillator that switches as a continuous-time Markov jump process, sampled by evenly spaced shots.
 import type { Frame } from '../../../src/lib/protocol/frame';
 
-/** mulberry32: a 32-bit generator, plenty for tests (common practice). */
-export function rng(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+import { mulberry32 as rng } from '../../support/random';
+
+/** mulberry32 (the shared test generator), under the name these tests use. */
+export { rng };
 
 /** Poisson(mu) by inversion (sequential search of the CDF); fine for mu below a few hundred. */
 export function poisson(u: () => number, mu: number): number {

@@ -2,6 +2,7 @@
 // (seeded), interval coverage, and agreement with independent fits computed in the test.
 import { describe, expect, it } from 'vitest';
 import { linearRegression } from 'simple-statistics';
+import { mulberry32, poissonKnuth } from '../../support/random';
 import {
 	fitActivation,
 	fitFromSimulation,
@@ -18,39 +19,6 @@ function inverseNoiseFactor(f_GHz: number, T_mK: number): number {
 	return 1 / (2 * n + 1);
 }
 
-/** mulberry32: a tiny seeded 32-bit generator, uniform on [0, 1) (common practice). */
-function mulberry32(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-
-/**
- * Poisson deviate: Knuth's product-of-uniforms method (Knuth, TAOCP vol. 2, from memory) on pieces
- * of mean ≤ 30, summed — a sum of independent Poisson variables is Poisson, so this stays exact
- * for large means where e^{−μ} would underflow.
- */
-function poisson(mu: number, random: () => number): number {
-	const pieces = Math.max(1, Math.ceil(mu / 30));
-	const limit = Math.exp(-mu / pieces);
-	let total = 0;
-	for (let p = 0; p < pieces; p++) {
-		let k = 0;
-		let prod = random();
-		while (prod > limit) {
-			k++;
-			prod *= random();
-		}
-		total += k;
-	}
-	return total;
-}
-
 const TRUTH = { W0_per_s: 2e5, A: 10, mode_GHz: 5 };
 const TEMPS_mK = [10, 30, 50, 70, 90, 120];
 
@@ -58,7 +26,7 @@ function drawTable(seed: number, exposure_s: number): CalibrationPoint[] {
 	const random = mulberry32(seed);
 	return TEMPS_mK.map((T_mK) => {
 		const rate = TRUTH.W0_per_s * Math.exp(-TRUTH.A * inverseNoiseFactor(TRUTH.mode_GHz, T_mK));
-		return { T_mK, exposure_s, count: poisson(rate * exposure_s, random) };
+		return { T_mK, exposure_s, count: poissonKnuth(rate * exposure_s, random) };
 	});
 }
 
@@ -69,7 +37,7 @@ describe('the test sampler', () => {
 		// Poisson: mean = variance = μ (any probability text); checked at a small and a large μ.
 		for (const mu of [3.5, 400]) {
 			const random = mulberry32(7);
-			const draws = Array.from({ length: 4000 }, () => poisson(mu, random));
+			const draws = Array.from({ length: 4000 }, () => poissonKnuth(mu, random));
 			const mean = draws.reduce((a, b) => a + b, 0) / draws.length;
 			const variance = draws.reduce((a, b) => a + (b - mean) ** 2, 0) / (draws.length - 1);
 			expect(Math.abs(mean - mu)).toBeLessThan(4 * Math.sqrt(mu / draws.length));
@@ -203,7 +171,7 @@ describe('fitActivation', () => {
 				const op = { detuning: 0.2, damping: 0.5, drive };
 				const ratio = 1 / drive ** 2;
 				const rate = 3e4 * Math.exp(-9 * ratio * inverseNoiseFactor(6, T_mK));
-				return { T_mK, operatingPoint: op, exposure_s: 50, count: poisson(rate * 50, random) };
+				return { T_mK, operatingPoint: op, exposure_s: 50, count: poissonKnuth(rate * 50, random) };
 			})
 		);
 		const fit = fitActivation(points, { mode_GHz: 6, process: 'escape', reference });
@@ -295,7 +263,7 @@ describe('fitFromSimulation', () => {
 		const random = mulberry32(2024);
 		const results = lambdas.map((lambda) => {
 			const exposure = 40 / (W0 * Math.exp(-R / lambda));
-			const count = poisson(W0 * Math.exp(-R / lambda) * exposure, random);
+			const count = poissonKnuth(W0 * Math.exp(-R / lambda) * exposure, random);
 			return { lambda, rate: count / exposure, count, exposure };
 		});
 		const fit = fitFromSimulation(results);

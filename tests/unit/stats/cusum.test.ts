@@ -2,6 +2,7 @@
 // Monte Carlo estimates computed here.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
+import { mulberry32, poissonKnuth } from '../../support/random';
 import {
 	TwoSidedPoissonCusum,
 	normalCusumArl,
@@ -14,31 +15,6 @@ import {
 } from '$lib/stats';
 
 // ── Seeded generators for the Monte Carlo checks ──
-
-/** mulberry32: a small 32-bit PRNG, uniform on [0, 1) (common practice). */
-function mulberry32(seed: number): () => number {
-	let s = seed >>> 0;
-	return () => {
-		s = (s + 0x6d2b79f5) | 0;
-		let t = Math.imul(s ^ (s >>> 15), 1 | s);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-
-/** Poisson deviate by Knuth's product-of-uniforms method (fine for small means). */
-function poissonSampler(random: () => number): (mu: number) => number {
-	return (mu) => {
-		const limit = Math.exp(-mu);
-		let k = 0;
-		let p = random();
-		while (p > limit) {
-			k++;
-			p *= random();
-		}
-		return k;
-	};
-}
 
 /** Standard normal deviate by Box–Muller. */
 function normalSampler(random: () => number): () => number {
@@ -117,7 +93,7 @@ describe('Poisson CUSUM step', () => {
 
 describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
 	const random = mulberry32(20250611);
-	const sample = poissonSampler(random);
+	const sample = (mu: number) => poissonKnuth(mu, random);
 
 	// Each case: the chain's ARL against a seeded simulation of the recursion in this file,
 	// tolerance three Monte Carlo standard errors plus 0.5 % for the lattice.

@@ -2,17 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { ewmaArl, ewmaLimitForArl, ewmaLimits, ewmaStep } from '$lib/stats';
-
-/** mulberry32: a small 32-bit PRNG, uniform on [0, 1) (common practice). */
-function mulberry32(seed: number): () => number {
-	let s = seed >>> 0;
-	return () => {
-		s = (s + 0x6d2b79f5) | 0;
-		let t = Math.imul(s ^ (s >>> 15), 1 | s);
-		t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+import { mulberry32 } from '../../support/random';
 
 describe('EWMA step and limits', () => {
 	it('step is the exponentially weighted average', () => {

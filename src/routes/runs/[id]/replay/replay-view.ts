@@ -1,21 +1,10 @@
 // The replay's answer arranged for reading: one lane per incident kind and key, live and replayed
 // intervals on the agent's clock, and the three outcomes (both, only the replay, only live).
+import type { ReplayIncident } from '$lib/detect/replay';
 import type { Incident, Severity } from '$lib/ui/types';
 
-/** One incident as the replay raised it (src/lib/detect/replay.ts, ReplayIncident). */
-export interface ReplayIncident {
-	kind: string;
-	key: string;
-	severity: Severity;
-	openedAt_ms: number;
-	openedSeq: number | null;
-	clearedAt_ms: number | null;
-	clearedSeq: number | null;
-	summary: string;
-	evidence: Record<string, unknown>;
-	updates: number;
-	clearSummary: string | null;
-}
+export type { ReplayIncident };
+
 
 /** POST /api/runs/:id/replay's answer. */
 export interface ReplayResult {

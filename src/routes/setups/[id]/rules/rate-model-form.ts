@@ -1,25 +1,12 @@
 // The hand-edit form of a setup's rate model: text fields ⇄ the object the rate-model API takes,
 // checked with the same schema as the server (rateModelSchema).
+import type { z } from 'zod';
 import { rateModelSchema } from '$lib/physics/rate-model-schema';
 
 export type Process = 'switching' | 'escape';
 
 /** A rate model as GET /api/setups/:id/rate-model returns it: the model plus who saved it and when. */
-export interface SavedRateModel {
-	process: Process;
-	W0_per_s: number;
-	A: number;
-	mode_GHz: number;
-	nominal_mK: number;
-	W0_sigma?: number;
-	A_sigma?: number;
-	covariance?: number;
-	fittedRange?: { T_mK?: [number, number]; scale?: [number, number] };
-	reference?: { detuning: number; damping: number; drive: number };
-	source: 'planner' | 'calibration' | 'manual';
-	savedAt: string;
-	savedBy: string | null;
-}
+export type SavedRateModel = z.output<typeof rateModelSchema> & { savedAt: string; savedBy: string | null };
 
 export interface RateModelHistoryRow {
 	id: number | string;
