@@ -29,6 +29,8 @@ export const setups = pgTable('setups', {
 	states: integer('states').notNull(),
 	modeGHz: doublePrecision('mode_ghz').notNull(),
 	nominalMK: doublePrecision('nominal_mk').notNull(),
+	/** Days raw frames are kept; null keeps them for good. Rollups are never deleted. */
+	rawRetentionDays: integer('raw_retention_days'),
 	createdAt: created(),
 	createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' })
 });
@@ -94,9 +96,8 @@ export const runs = pgTable(
 		lastFrameAt: timestamp('last_frame_at', { withTimezone: true }),
 		lastLock: doublePrecision('last_lock'),
 		frameCount: integer('frame_count').notNull().default(0),
-		gapCount: integer('gap_count').notNull().default(0),
-		/** The detector engine's state after the last committed frame, so a restart resumes it. */
-		detectorState: jsonb('detector_state')
+		/** Seq ranges currently missing (a late frame can shrink or split one). */
+		gapCount: integer('gap_count').notNull().default(0)
 	},
 	(t) => [uniqueIndex('runs_setup_key_idx').on(t.setupId, t.key), index('runs_status_idx').on(t.status)]
 );
@@ -122,9 +123,67 @@ export const frames = pgTable(
 		amp: doublePrecision('amp'),
 		aux: jsonb('aux').$type<Record<string, number>>(),
 		iq: jsonb('iq').$type<{ bins: number; extent: number; counts: number[] }>(),
-		receivedAt: created()
+		/** Server clock at receipt, set by the writer: the same value the detectors saw. */
+		receivedAt: created(),
+		/**
+		 * Arrived after a higher seq (it filled a gap): stored, but never fed to the detectors,
+		 * so a restart that replays frames after the snapshot skips it exactly as live did.
+		 */
+		late: boolean('late').notNull().default(false)
 	},
 	(t) => [primaryKey({ columns: [t.runId, t.seq] })]
+);
+
+/**
+ * The detector engine's state of a run, saved at a bounded rate (not in every commit). On restart
+ * the engine restores it and replays the stored frames after `last_seq`.
+ */
+export const runSnapshots = pgTable('run_snapshots', {
+	runId: text('run_id')
+		.primaryKey()
+		.references(() => runs.id, { onDelete: 'cascade' }),
+	/** The engine's last fed seq when the snapshot was taken. */
+	lastSeq: integer('last_seq').notNull(),
+	savedAt: timestamp('saved_at', { withTimezone: true }).notNull().defaultNow(),
+	state: jsonb('state').notNull()
+});
+
+export type AuxAggregate = { min: number; max: number; sum: number; n: number };
+
+/**
+ * Aggregates of a run's frames over fixed buckets of agent time (`bucket_t` = start, ms), written
+ * in the same transaction as the frames. What the run timeline reads; never deleted by retention.
+ */
+export const frameRollups = pgTable(
+	'frame_rollups',
+	{
+		runId: text('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		resolutionS: integer('resolution_s').notNull(),
+		bucketT: bigint('bucket_t', { mode: 'number' }).notNull(),
+		frames: integer('frames').notNull(),
+		firstSeq: integer('first_seq').notNull(),
+		lastSeq: integer('last_seq').notNull(),
+		windowS: doublePrecision('window_s').notNull(),
+		shots: bigint('shots', { mode: 'number' }).notNull(),
+		vacuum: bigint('vacuum', { mode: 'number' }).notNull(),
+		counts: jsonb('counts').$type<number[]>().notNull(),
+		switches: bigint('switches', { mode: 'number' }).notNull(),
+		dwellS: doublePrecision('dwell_s').notNull(),
+		escapes: bigint('escapes', { mode: 'number' }).notNull(),
+		vacuumS: doublePrecision('vacuum_s').notNull(),
+		/** K·K switch counts summed over the frames that carried them; null when none did. */
+		transitions: jsonb('transitions').$type<number[]>(),
+		lockMin: doublePrecision('lock_min').notNull(),
+		lockSum: doublePrecision('lock_sum').notNull(),
+		lockMax: doublePrecision('lock_max').notNull(),
+		aux: jsonb('aux').$type<Record<string, AuxAggregate>>().notNull(),
+		/** Predicted counts from the rate model at each window's temperature; null without a model. */
+		expectedSwitches: doublePrecision('expected_switches'),
+		expectedEscapes: doublePrecision('expected_escapes')
+	},
+	(t) => [primaryKey({ columns: [t.runId, t.resolutionS, t.bucketT] })]
 );
 
 /** Seq ranges the agent never delivered: lost data, shown on the timeline. */

@@ -27,7 +27,7 @@ export function frameToRow(runId: string, f: Frame): FrameInsert {
 }
 
 /** A stored frame in the wire format (optional fields only when present). */
-export function rowToFrame(r: Pick<FrameRow, Exclude<keyof FrameRow, 'runId' | 'receivedAt'>>): Frame {
+export function rowToFrame(r: Pick<FrameRow, Exclude<keyof FrameRow, 'runId' | 'receivedAt' | 'late'>>): Frame {
 	const frame: Frame = {
 		seq: r.seq,
 		t: r.t,

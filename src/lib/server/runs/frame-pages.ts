@@ -1,0 +1,47 @@
+// Long reads of a run's frames, a page at a time by seq (keyset), yielding to the event loop
+// between pages so a day-long run never loads into memory at once nor blocks live ingest.
+import { and, asc, eq, gt, lte, type SQL } from 'drizzle-orm';
+import type { Frame } from '../../protocol/frame';
+import type { Db } from '../db';
+import { frames } from '../db/schema';
+import { rowToFrame } from '../ingest/frame-rows';
+
+export const FRAME_PAGE_ROWS = 2000;
+
+export interface StoredFrame {
+	frame: Frame;
+	receivedAt_ms: number;
+	late: boolean;
+}
+
+export interface FramePageOptions {
+	/** Frames with seq above this (default 0: from the start). */
+	afterSeq?: number;
+	/** Up to and including this seq. */
+	toSeq?: number;
+	/** Leave out frames that filled a gap after a higher seq (the detectors never saw them). */
+	skipLate?: boolean;
+	pageSize?: number;
+}
+
+/** Pages of stored frames in seq order. */
+export async function* framePages(db: Db, runId: string, options: FramePageOptions = {}): AsyncGenerator<StoredFrame[]> {
+	const pageSize = options.pageSize ?? FRAME_PAGE_ROWS;
+	let after = options.afterSeq ?? 0;
+	for (;;) {
+		const where: SQL[] = [eq(frames.runId, runId), gt(frames.seq, after)];
+		if (options.toSeq !== undefined) where.push(lte(frames.seq, options.toSeq));
+		if (options.skipLate) where.push(eq(frames.late, false));
+		const rows = await db
+			.select()
+			.from(frames)
+			.where(and(...where))
+			.orderBy(asc(frames.seq))
+			.limit(pageSize);
+		if (rows.length === 0) return;
+		after = rows[rows.length - 1].seq;
+		yield rows.map((r) => ({ frame: rowToFrame(r), receivedAt_ms: r.receivedAt.getTime(), late: r.late }));
+		if (rows.length < pageSize) return;
+		await new Promise((resolve) => setImmediate(resolve));
+	}
+}
