@@ -139,6 +139,19 @@ export class DetectorEngine {
 		return this.#each((d, state, ctx) => d.onFrame?.(state, frame, ctx, receivedAt_ms) ?? [], expected);
 	}
 
+	/**
+	 * The predicted counts of a window under the run's current rate models, or undefined without
+	 * a model. Reads no detector state, so it is the same whether or not the frame is fed.
+	 */
+	expect(frame: Frame): FrameExpectation | undefined {
+		return this.#rates.switching || this.#rates.escape ? expectFrame(frame, this.#rates) : undefined;
+	}
+
+	/** Highest seq fed so far (0 before the first frame). */
+	get lastSeq(): number {
+		return this.#s.lastSeq;
+	}
+
 	/** The run information as the engine holds it (rate models included). */
 	get run() {
 		return json(this.#s.run);

@@ -6,6 +6,8 @@ export const PROTOCOL_VERSION = 1;
 export const MAX_FRAMES_PER_MESSAGE = 500;
 /** Largest text message the server accepts, in bytes. */
 export const MAX_MESSAGE_BYTES = 4 * 1024 * 1024;
+/** Past this the WebSocket library stops reading and closes the link (1009) without an answer. */
+export const HARD_MAX_MESSAGE_BYTES = MAX_MESSAGE_BYTES * 16;
 
 export const runDescriptionSchema = z
 	.object({

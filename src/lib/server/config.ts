@@ -11,6 +11,10 @@ export interface Config {
 	catcherPort: number;
 	migrationsDir: string;
 	silenceCheckMs: number;
+	/** How often a live run's detector state is saved (a restart replays the frames since). */
+	snapshotEveryMs: number;
+	/** How often VACUUM, CHECKPOINT and raw-frame retention run. */
+	maintenanceEveryMs: number;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -23,6 +27,16 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		catcher: env.PHASEWARDEN_CATCHER === '1',
 		catcherPort: Number(env.PHASEWARDEN_CATCHER_PORT ?? 2525),
 		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
-		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000)
+		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
+		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
+		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000
 	};
+}
+
+function positiveSeconds(env: NodeJS.ProcessEnv, name: string, fallback: number): number {
+	const raw = env[name];
+	if (raw === undefined || raw === '') return fallback;
+	const value = Number(raw);
+	if (!Number.isFinite(value) || value <= 0) throw new Error(`${name} must be a positive number of seconds, got "${raw}"`);
+	return value;
 }

@@ -9,7 +9,9 @@ import { readConfig, type Config } from './config';
 import { lockDataDir, unlockDataDir } from './data-lock';
 import { openDatabase, type Db } from './db';
 import { Ingest } from './ingest/ingest';
+import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
 import { LiveBus } from './live/bus';
+import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
 import { createMailer } from './notify/mailer';
 
@@ -55,8 +57,10 @@ async function start(): Promise<Runtime> {
 			incidentOpened: (i) => void alerts.incidentOpened(i).catch((err) => console.error('alert failed', err)),
 			incidentResolved: () => {}
 		},
-		config.silenceCheckMs
+		config.silenceCheckMs,
+		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
 	);
+	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs);
 	return {
 		config,
 		db,
@@ -65,6 +69,7 @@ async function start(): Promise<Runtime> {
 		ingest,
 		catcher,
 		async close() {
+			stopMaintenance();
 			ingest.close();
 			await ingest.flush();
 			await catcher?.close();

@@ -76,7 +76,7 @@ export interface RunningServer {
 	kill9(): Promise<void>;
 }
 
-export async function startServer(dataDir: string, port?: number): Promise<RunningServer> {
+export async function startServer(dataDir: string, port?: number, extraEnv: Record<string, string> = {}): Promise<RunningServer> {
 	port ??= await freePort();
 	const url = `http://127.0.0.1:${port}`;
 	let log = '';
@@ -91,7 +91,8 @@ export async function startServer(dataDir: string, port?: number): Promise<Runni
 			PHASEWARDEN_CATCHER: '1',
 			PHASEWARDEN_CATCHER_PORT: '0',
 			PHASEWARDEN_SILENCE_CHECK_MS: '300',
-			BETTER_AUTH_SECRET: SECRET
+			BETTER_AUTH_SECRET: SECRET,
+			...extraEnv
 		},
 		stdio: ['ignore', 'pipe', 'pipe']
 	});

@@ -1,18 +1,31 @@
 // Opens the embedded PostgreSQL (PGlite) in the data directory and applies drizzle/ migrations.
+// On disk, commits are durable: PostgreSQL's fsync is on and reaches the disk (see durable-fs.ts),
+// so a commit that returned survives a power cut.
 import { mkdirSync } from 'node:fs';
 import { PGlite } from '@electric-sql/pglite';
 import { drizzle, type PgliteDatabase } from 'drizzle-orm/pglite';
 import { migrate } from 'drizzle-orm/pglite/migrator';
+import { DurableNodeFS, durableStartParams } from './durable-fs';
 import * as schema from './schema';
 
 export type Db = PgliteDatabase<typeof schema>;
 export { schema };
 
-export async function openDatabase(dir: string, migrationsFolder: string): Promise<{ db: Db; close: () => Promise<void> }> {
+/** The raw PGlite client for a folder (or `memory://`), durable on disk. */
+export function createPglite(dir: string): PGlite {
+	if (dir.startsWith('memory://')) return new PGlite(dir);
 	// PGlite does not create parent folders itself.
-	if (!dir.startsWith('memory://')) mkdirSync(dir, { recursive: true });
-	const client = new PGlite(dir);
+	mkdirSync(dir, { recursive: true });
+	const defaults = (PGlite as unknown as { defaultStartParams: string[] }).defaultStartParams;
+	return new PGlite({ fs: new DurableNodeFS(dir), startParams: durableStartParams(defaults) });
+}
+
+export async function openDatabase(
+	dir: string,
+	migrationsFolder: string
+): Promise<{ db: Db; client: PGlite; close: () => Promise<void> }> {
+	const client = createPglite(dir);
 	const db = drizzle(client, { schema });
 	await migrate(db, { migrationsFolder });
-	return { db, close: () => client.close() };
+	return { db, client, close: () => client.close() };
 }

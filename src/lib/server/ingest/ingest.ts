@@ -5,7 +5,7 @@ import type { Duplex } from 'node:stream';
 import { eq } from 'drizzle-orm';
 import { WebSocketServer } from 'ws';
 import type { Hello } from '../../protocol/messages';
-import { MAX_MESSAGE_BYTES } from '../../protocol/messages';
+import { HARD_MAX_MESSAGE_BYTES } from '../../protocol/messages';
 import type { Db } from '../db';
 import { runs } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
@@ -15,7 +15,7 @@ import { runFacts, runInfoFor } from '../runs/detector-context';
 import { endRun, findOrCreateRun, publicRun } from '../runs/service';
 import { findActiveToken, markTokenUsed } from '../setups/tokens';
 import { AgentConnection } from './connection';
-import { RunWriter, type CommitResult } from './run-writer';
+import { DEFAULT_SNAPSHOT_POLICY, RunWriter, type CommitResult, type SnapshotPolicy } from './run-writer';
 
 export const AGENT_STREAM_PATH = '/api/agent/stream';
 const HEARTBEAT_MS = 15_000;
@@ -26,8 +26,11 @@ export interface IngestHooks {
 }
 
 export class Ingest {
-	private wss = new WebSocketServer({ noServer: true, maxPayload: MAX_MESSAGE_BYTES * 2 });
+	// Messages over the protocol's limit are answered `too_large` by the connection; this bound only
+	// stops the WebSocket library from buffering something absurd.
+	private wss = new WebSocketServer({ noServer: true, maxPayload: HARD_MAX_MESSAGE_BYTES });
 	private writers = new Map<string, RunWriter>();
+	private opening = new Map<string, Promise<RunWriter>>();
 	private connections = new Set<AgentConnection>();
 	private timers: NodeJS.Timeout[] = [];
 
@@ -35,10 +38,13 @@ export class Ingest {
 		private db: Db,
 		private bus: LiveBus,
 		private hooks: IngestHooks,
-		silenceCheckMs: number
+		silenceCheckMs: number,
+		private snapshotPolicy: SnapshotPolicy = DEFAULT_SNAPSHOT_POLICY
 	) {
 		this.timers.push(setInterval(() => this.heartbeat(), HEARTBEAT_MS));
 		this.timers.push(setInterval(() => void this.tickClock(Date.now()), silenceCheckMs));
+		// Runs that went quiet still get their last frames' detector state saved.
+		this.timers.push(setInterval(() => void this.saveStaleSnapshots(Date.now()), Math.max(1000, snapshotPolicy.everyMs / 2)));
 		for (const t of this.timers) t.unref();
 	}
 
@@ -89,21 +95,28 @@ export class Ingest {
 		this.writers.delete(writer.run.id);
 	}
 
-	private async writerFor(runId: string): Promise<RunWriter> {
+	private writerFor(runId: string): Promise<RunWriter> {
 		const existing = this.writers.get(runId);
-		if (existing) return existing;
+		if (existing && !existing.failed) return Promise.resolve(existing);
+		let opening = this.opening.get(runId);
+		if (!opening) {
+			opening = this.openWriter(runId).finally(() => this.opening.delete(runId));
+			this.opening.set(runId, opening);
+		}
+		return opening;
+	}
+
+	private async openWriter(runId: string): Promise<RunWriter> {
 		const [run] = await this.db.select().from(runs).where(eq(runs.id, runId));
 		const [rules, info] = await Promise.all([getSetupRules(this.db, run.setupId), runInfoFor(this.db, run)]);
-		// Another await may have created it meanwhile.
-		const again = this.writers.get(runId);
-		if (again) return again;
-		const writer = new RunWriter(
+		const writer = await RunWriter.open(
 			this.db,
 			run,
 			rules,
 			info,
+			this.snapshotPolicy,
 			(result) => this.committed(result),
-			(err) => this.failed(runId, err)
+			(err) => this.failed(writer, err)
 		);
 		this.writers.set(runId, writer);
 		// A restored engine may carry rules or rate models from before a change made while no agent was connected.
@@ -129,11 +142,17 @@ export class Ingest {
 		}
 	}
 
-	private failed(runId: string, err: Error) {
+	private failed(writer: RunWriter, err: Error) {
+		const runId = writer.run.id;
 		console.error(`ingest: commit for run ${runId} failed; the agent will resend unacked frames`, err);
-		// Drop the writer and its sockets: the agent reconnects, learns lastSeq and resends.
-		this.writers.delete(runId);
+		// Drop the writer and its sockets: the agent reconnects, a new writer restores the detectors
+		// from the database, the agent learns lastSeq and resends.
+		if (this.writers.get(runId) === writer) this.writers.delete(runId);
 		for (const conn of this.connections) if (conn.runId === runId) conn.close(1011, 'commit failed');
+	}
+
+	private async saveStaleSnapshots(now_ms: number) {
+		await Promise.all([...this.writers.values()].map((w) => w.saveSnapshotIfStale(now_ms)));
 	}
 
 	/** New rules for a setup apply to its live runs from the next frame on. */
@@ -162,7 +181,7 @@ export class Ingest {
 		const open = await this.db.select({ id: runs.id }).from(runs).where(eq(runs.status, 'open'));
 		for (const { id } of open) {
 			const writer = await this.writerFor(id);
-			await writer.applyEngine((engine) => engine.onClock(now_ms));
+			await writer.applyEngine((engine) => engine.onClock(now_ms), { snapshot: 'on-event' });
 		}
 	}
 
@@ -173,9 +192,10 @@ export class Ingest {
 		}
 	}
 
-	/** Waits until every queued frame is committed (used at shutdown). */
+	/** Waits until every queued frame is committed and saves every detector state (used at shutdown). */
 	async flush() {
 		await Promise.all([...this.writers.values()].map((w) => w.idle()));
+		await Promise.all([...this.writers.values()].map((w) => w.saveSnapshotIfStale(Date.now(), 0)));
 	}
 
 	close() {

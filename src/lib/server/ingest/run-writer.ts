@@ -1,67 +1,114 @@
-// Commits one run's frames in batches: store, mark gaps, run the detectors, record incidents, then
-// ack. One writer per run, so frames of a run are committed strictly in seq order.
-import { eq, sql } from 'drizzle-orm';
+// Commits one run's frames in batches: store the frames and their rollups, keep the missing seq
+// ranges, run the detectors, record incidents, then ack. One writer per run, so a run's frames are
+// committed strictly one batch after another.
+//
+// The detector state is not written with every commit: it is saved every few seconds (and at run
+// end, on rule changes, on clock-driven events and at shutdown). A restart, or a failed commit,
+// rebuilds the engine from the last snapshot plus the frames stored after it (snapshots.ts).
+import { and, eq, sql } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
-import { DetectorEngine } from '../../detect/engine';
+import type { DetectorEngine } from '../../detect/engine';
 import type { DetectorEvent } from '../../detect/events';
+import type { FrameExpectation } from '../../detect/expected';
 import type { RunInfo } from '../../detect/run-info';
+import { rollupFrames } from '../../rollup/rollup';
 import type { Db } from '../db';
-import { frameGaps, frames, runs } from '../db/schema';
+import { frameGaps, runs } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
+import { RollupCache, writeRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';
-import { frameToRow } from './frame-rows';
+import { insertFrames, type FrameToStore } from './frame-insert';
+import { SeqGaps, type GapChange, type SeqGap } from './seq-gaps';
+import { restoreEngine, saveSnapshot } from './snapshots';
+
+type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 /** Frames written in one transaction; larger bursts are split so other work gets a turn between. */
 const BATCH = 500;
 
+export interface SnapshotPolicy {
+	/** Save at most this often while frames arrive. */
+	everyMs: number;
+	/** ...or after this many fed frames, whichever comes first (bounds the replay after a restart). */
+	everyFrames: number;
+}
+
+export const DEFAULT_SNAPSHOT_POLICY: SnapshotPolicy = { everyMs: 30_000, everyFrames: 20_000 };
+
 export interface CommitResult {
 	lastSeq: number;
+	/** Frames newly stored in seq order above the previous last seq (late gap fillers are left out). */
 	stored: Frame[];
 	opened: IncidentRow[];
 	resolved: IncidentRow[];
 	run: RunRow;
 }
 
-export function engineFor(run: RunRow, rules: unknown, info: RunInfo): DetectorEngine {
-	if (run.detectorState) {
-		try {
-			return DetectorEngine.restore(run.detectorState);
-		} catch (err) {
-			console.warn(`run ${run.id}: detector state unreadable, starting fresh: ${(err as Error).message}`);
-		}
-	}
-	return new DetectorEngine(rules, info);
+function expectedCounts(e: FrameExpectation | undefined) {
+	if (!e) return null;
+	return { switches: e.switching?.expected ?? null, escapes: e.escape?.expected ?? null };
 }
 
 export class RunWriter {
 	private pending: Frame[] = [];
 	private chain: Promise<void> = Promise.resolve();
 	private scheduled = false;
-	engine: DetectorEngine;
+	/** Set when a commit failed: the engine may be ahead of the database, so this writer stops. */
+	private broken = false;
+	private fedSinceSnapshot = 0;
+	private lastSnapshotAt = Date.now();
+	private rollups = new RollupCache();
 
-	constructor(
+	private constructor(
 		private db: Db,
 		public run: RunRow,
-		rules: unknown,
-		info: RunInfo,
+		public engine: DetectorEngine,
+		private gaps: SeqGaps,
+		private policy: SnapshotPolicy,
 		private onCommit: (result: CommitResult) => void,
 		private onFailure: (err: Error) => void
-	) {
-		this.engine = engineFor(run, rules, info);
+	) {}
+
+	/** The writer of a run: its engine restored from the last snapshot and the frames after it. */
+	static async open(
+		db: Db,
+		run: RunRow,
+		rules: unknown,
+		info: RunInfo,
+		policy: SnapshotPolicy,
+		onCommit: (result: CommitResult) => void,
+		onFailure: (err: Error) => void
+	): Promise<RunWriter> {
+		const [{ engine, replayed }, gapRows] = await Promise.all([
+			restoreEngine(db, run.id, rules, info),
+			db
+				.select({ fromSeq: frameGaps.fromSeq, toSeq: frameGaps.toSeq, detectedAt: frameGaps.detectedAt })
+				.from(frameGaps)
+				.where(eq(frameGaps.runId, run.id))
+		]);
+		const writer = new RunWriter(db, run, engine, new SeqGaps(gapRows), policy, onCommit, onFailure);
+		// Frames replayed since the snapshot count towards the next one.
+		writer.fedSinceSnapshot = replayed;
+		return writer;
 	}
 
 	get lastSeq() {
 		return this.run.lastSeq;
 	}
 
+	get failed() {
+		return this.broken;
+	}
+
 	/** Queues frames (already validated); they are committed together with whatever else arrives this tick. */
 	enqueue(batch: Frame[]) {
+		if (this.broken) return;
 		this.pending.push(...batch);
 		if (this.scheduled) return;
 		this.scheduled = true;
 		setImmediate(() => {
 			this.scheduled = false;
-			this.chain = this.chain.then(() => this.drain()).catch((err) => this.onFailure(err as Error));
+			this.chain = this.chain.then(() => this.drain()).catch((err) => this.fail(err as Error));
 		});
 	}
 
@@ -71,26 +118,51 @@ export class RunWriter {
 	}
 
 	/**
-	 * Runs engine work that comes with no frame (clock ticks, end of run) in turn with the commits,
-	 * and records its events in a transaction of their own.
+	 * Runs engine work that comes with no frame (clock ticks, rule changes, end of run) in turn with
+	 * the commits, and records its events with a snapshot in a transaction of their own. Clock
+	 * ticks that change nothing (no event) write nothing.
 	 */
-	async applyEngine(produce: (engine: DetectorEngine) => DetectorEvent[]) {
+	async applyEngine(produce: (engine: DetectorEngine) => DetectorEvent[], options: { snapshot: 'always' | 'on-event' } = { snapshot: 'always' }) {
 		const done = this.chain.then(async () => {
+			if (this.broken) return;
 			const events = produce(this.engine);
-			if (events.length === 0) return;
+			if (events.length === 0 && options.snapshot === 'on-event') return;
 			const result = await this.db.transaction(async (tx) => {
-				const r = await recordEvents(tx as unknown as Db, this.run, events);
-				await tx.update(runs).set({ detectorState: this.engine.snapshot() }).where(eq(runs.id, this.run.id));
+				const r = await recordEvents(tx, this.run, events);
+				await saveSnapshot(tx, this.run.id, this.engine);
 				return r;
 			});
-			this.onCommit({ lastSeq: this.run.lastSeq, stored: [], run: this.run, ...result });
+			this.snapshotSaved(Date.now());
+			if (events.length) this.onCommit({ lastSeq: this.run.lastSeq, stored: [], run: this.run, ...result });
 		});
-		this.chain = done.catch((err) => this.onFailure(err as Error));
+		this.chain = done.catch((err) => this.fail(err as Error));
 		return done;
 	}
 
+	/** Saves the detector state if frames were fed since the last save and it is older than `olderThanMs`. */
+	saveSnapshotIfStale(now_ms: number, olderThanMs = this.policy.everyMs): Promise<void> {
+		const done = this.chain.then(async () => {
+			if (this.broken || this.fedSinceSnapshot === 0 || now_ms - this.lastSnapshotAt < olderThanMs) return;
+			await saveSnapshot(this.db, this.run.id, this.engine);
+			this.snapshotSaved(now_ms);
+		});
+		this.chain = done.catch((err) => this.fail(err as Error));
+		return done;
+	}
+
+	private snapshotSaved(at_ms: number) {
+		this.fedSinceSnapshot = 0;
+		this.lastSnapshotAt = at_ms;
+	}
+
+	private fail(err: Error) {
+		this.broken = true;
+		this.pending = [];
+		this.onFailure(err);
+	}
+
 	private async drain() {
-		while (this.pending.length > 0) {
+		while (this.pending.length > 0 && !this.broken) {
 			const batch = this.pending.splice(0, BATCH);
 			await this.commit(batch);
 			if (this.pending.length > 0) await new Promise((r) => setImmediate(r));
@@ -98,55 +170,84 @@ export class RunWriter {
 	}
 
 	private async commit(batch: Frame[]) {
-		// Duplicates (at or below the committed seq) are acked but never stored twice.
-		const fresh = batch.filter((f) => f.seq > this.run.lastSeq).sort((a, b) => a.seq - b.seq);
-		const unique = fresh.filter((f, i) => i === 0 || f.seq !== fresh[i - 1].seq);
-		if (unique.length === 0) {
+		const sorted = [...batch].sort((a, b) => a.seq - b.seq);
+		// Above the last seq: new. At or below it: late data when its seq is missing, else a duplicate
+		// (acked, never stored twice).
+		const fresh: Frame[] = [];
+		const late: Frame[] = [];
+		sorted.forEach((f, i) => {
+			if (i > 0 && f.seq === sorted[i - 1].seq) return;
+			if (f.seq > this.run.lastSeq) fresh.push(f);
+			else if (this.gaps.contains(f.seq)) late.push(f);
+		});
+		if (fresh.length === 0 && late.length === 0) {
 			this.onCommit({ lastSeq: this.run.lastSeq, stored: [], opened: [], resolved: [], run: this.run });
 			return;
 		}
-		const before = this.engine.snapshot();
+
 		const receivedAt = Date.now();
-		const gaps: { fromSeq: number; toSeq: number }[] = [];
+		const filled: GapChange[] = late.map((f) => this.gaps.fill(f.seq)!);
+		const opened: SeqGap[] = [];
 		const events: DetectorEvent[] = [];
 		let prev = this.run.lastSeq;
-		for (const f of unique) {
-			if (f.seq > prev + 1) gaps.push({ fromSeq: prev + 1, toSeq: f.seq - 1 });
+		for (const f of fresh) {
+			if (f.seq > prev + 1) opened.push(this.gaps.add(prev + 1, f.seq - 1, new Date(receivedAt)));
 			prev = f.seq;
 			events.push(...this.engine.onFrame(f, receivedAt));
 		}
-		const last = unique[unique.length - 1];
+		this.fedSinceSnapshot += fresh.length;
+		const snapshotDue =
+			fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
+		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: false }))];
+		const last = fresh.at(-1);
+
 		try {
-			const { run, opened, resolved } = await this.db.transaction(async (tx) => {
-				await tx.insert(frames).values(unique.map((f) => frameToRow(this.run.id, f))).onConflictDoNothing();
-				if (gaps.length) await tx.insert(frameGaps).values(gaps.map((g) => ({ runId: this.run.id, ...g })));
-				const recorded = await recordEvents(tx as unknown as Db, this.run, events);
-				const [run] = await tx
+			const { recorded, storedCount } = await this.db.transaction(async (tx) => {
+				const storedSeqs = await insertFrames(tx, this.run.id, new Date(receivedAt), toStore);
+				const storedFrames = toStore.filter((s) => storedSeqs.has(s.frame.seq)).map((s) => s.frame);
+				await writeRollups(tx, this.run.id, rollupFrames(storedFrames, (f) => expectedCounts(this.engine.expect(f))), this.rollups);
+				await writeGapChanges(tx, this.run.id, filled, opened);
+				const recorded = await recordEvents(tx, this.run, events);
+				await tx
 					.update(runs)
 					.set({
-						lastSeq: last.seq,
-						lastFrameT: Math.round(last.t),
-						lastFrameAt: new Date(receivedAt),
-						lastLock: last.lock,
-						frameCount: sql`${runs.frameCount} + ${unique.length}`,
-						gapCount: sql`${runs.gapCount} + ${gaps.length}`,
-						detectorState: this.engine.snapshot()
+						...(last
+							? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock }
+							: {}),
+						frameCount: sql`${runs.frameCount} + ${storedSeqs.size}`,
+						gapCount: this.gaps.count
 					})
-					.where(eq(runs.id, this.run.id))
-					.returning();
-				return { run, ...recorded };
+					.where(eq(runs.id, this.run.id));
+				if (snapshotDue) await saveSnapshot(tx, this.run.id, this.engine);
+				return { recorded, storedCount: storedSeqs.size };
 			});
-			this.run = run;
-			this.onCommit({ lastSeq: run.lastSeq, stored: unique, opened, resolved, run });
+			if (snapshotDue) this.snapshotSaved(receivedAt);
+			this.run = {
+				...this.run,
+				...(last ? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock } : {}),
+				frameCount: this.run.frameCount + storedCount,
+				gapCount: this.gaps.count
+			};
+			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh, run: this.run, ...recorded });
 		} catch (err) {
-			// Nothing was committed: put the detectors back so a resend replays the same frames.
-			this.engine = DetectorEngine.restore(before);
+			// Nothing was committed, but the engine and the gap list moved on: this writer is done, and
+			// the next one restores both from the database.
+			this.broken = true;
 			throw err;
 		}
 	}
 }
 
-async function recordEvents(tx: Db, run: RunRow, events: DetectorEvent[]) {
+async function writeGapChanges(tx: Tx, runId: string, filled: GapChange[], opened: SeqGap[]) {
+	// In order: a range split by one late frame may be split again by the next.
+	for (const change of filled) {
+		await tx.delete(frameGaps).where(and(eq(frameGaps.runId, runId), eq(frameGaps.fromSeq, change.removed.fromSeq)));
+		if (change.added.length) await tx.insert(frameGaps).values(change.added.map((g) => ({ runId, ...g })));
+	}
+	if (opened.length) await tx.insert(frameGaps).values(opened.map((g) => ({ runId, ...g })));
+}
+
+async function recordEvents(tx: Tx | Db, run: RunRow, events: DetectorEvent[]) {
 	const opened: IncidentRow[] = [];
 	const resolved: IncidentRow[] = [];
 	for (const e of events) {

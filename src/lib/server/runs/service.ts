@@ -33,10 +33,9 @@ export async function findOrCreateRun(db: Db, setupId: string, desc_: RunDescrip
 	return again;
 }
 
-/** A run as the API shows it: everything but the detector's internal state. */
+/** A run as the API shows it. */
 export function publicRun(row: RunRow) {
-	const { detectorState: _state, ...rest } = row;
-	return rest;
+	return { ...row };
 }
 
 export async function getRun(db: Db, id: string) {

@@ -61,7 +61,7 @@ export async function listSetupsWithStatus(db: Db) {
 	]);
 	return all.map((s) => ({
 		...s,
-		openRuns: openRuns.filter((r) => r.setupId === s.id).map(({ detectorState: _d, ...r }) => r),
+		openRuns: openRuns.filter((r) => r.setupId === s.id),
 		openIncidents: openIncidents.filter((i) => i.setupId === s.id).reduce((n, i) => n + i.n, 0),
 		openCritical: openIncidents.filter((i) => i.setupId === s.id && i.severity === 'critical').reduce((n, i) => n + i.n, 0)
 	}));
@@ -94,4 +94,22 @@ export async function alertRecipients(db: Db, setupId: string) {
 		.select({ id: user.id, name: user.name, email: user.email, role: user.role })
 		.from(user)
 		.where(inArray(user.role, ['operator', 'admin']));
+}
+
+/** Raw-frame retention of a setup: whole days, or empty for "keep for good". Same schema for form and API. */
+export const retentionSchema = z.object({
+	rawRetentionDays: z.preprocess(
+		(v) => (v === '' || v === undefined ? null : v),
+		z.coerce
+			.number()
+			.int('rawRetentionDays must be a whole number of days')
+			.min(1, 'rawRetentionDays is at least 1 day (leave it empty to keep raw frames for good)')
+			.max(36_500, 'rawRetentionDays is at most 36500 days')
+			.nullable()
+	)
+});
+
+export async function setRawRetention(db: Db, setupId: string, rawRetentionDays: number | null) {
+	const [row] = await db.update(setups).set({ rawRetentionDays }).where(eq(setups.id, setupId)).returning();
+	return row ?? null;
 }

@@ -3,11 +3,24 @@ import { fail } from '@sveltejs/kit';
 import { hasRole } from '$lib/roles';
 import { apiGet, apiGetOptional, apiSend, field } from '$lib/ui/api';
 import { fieldError } from '$lib/ui/fields';
+import { describeZodError } from '$lib/protocol/messages';
+import { getRuntime } from '$lib/server/runtime';
+import { retentionSchema, setRawRetention } from '$lib/server/setups/service';
 import type { AgentToken, Person, Run } from '$lib/ui/types';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 interface SetupDetail {
-	setup: { id: string; name: string; description: string; order: number; states: number; modeGHz: number; nominalMK: number; createdAt: string };
+	setup: {
+		id: string;
+		name: string;
+		description: string;
+		order: number;
+		states: number;
+		modeGHz: number;
+		nominalMK: number;
+		rawRetentionDays: number | null;
+		createdAt: string;
+	};
 	runs: Run[];
 	tokens: AgentToken[];
 	members: Person[];
@@ -32,6 +45,16 @@ function operatorOnly(event: RequestEvent, intent: string) {
 const base = (event: RequestEvent) => `/api/setups/${encodeURIComponent(event.params.id)}`;
 
 export const actions: Actions = {
+	setRetention: async (event) => {
+		const denied = operatorOnly(event, 'setRetention');
+		if (denied) return denied;
+		const parsed = retentionSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { intent: 'setRetention', message: describeZodError(parsed.error) });
+		const { db } = await getRuntime();
+		const setup = await setRawRetention(db, event.params.id, parsed.data.rawRetentionDays);
+		if (!setup) return fail(404, { intent: 'setRetention', message: 'This setup no longer exists.' });
+		return { intent: 'setRetention' };
+	},
 	createToken: async (event) => {
 		const denied = operatorOnly(event, 'createToken');
 		if (denied) return denied;

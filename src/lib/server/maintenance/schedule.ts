@@ -1,0 +1,47 @@
+// Housekeeping the embedded database cannot do for itself: PGlite runs PostgreSQL as one
+// single-user backend, so autovacuum and the checkpointer never run. Without VACUUM, every
+// updated row (runs, rollups, snapshots) leaves a dead copy behind and the folder grows without
+// bound; without CHECKPOINT, the write-ahead log grows until its size limit forces one.
+import { sql } from 'drizzle-orm';
+import type { Db } from '../db';
+import { applyRetention } from './retention';
+
+/** Tables rewritten in place by ingest: small, so vacuuming them is cheap and frequent. */
+const UPDATED_TABLES = ['runs', 'run_snapshots', 'frame_rollups', 'frame_gaps', 'incidents'] as const;
+
+export interface MaintenanceReport {
+	framesDeleted: number;
+	vacuumed: string[];
+}
+
+export async function runMaintenance(db: Db, now = new Date()): Promise<MaintenanceReport> {
+	const framesDeleted = await applyRetention(db, now);
+	const vacuumed: string[] = [...UPDATED_TABLES];
+	// Insert-only until retention deletes from it; then its freed space is made reusable.
+	if (framesDeleted > 0) vacuumed.push('frames');
+	for (const table of vacuumed) {
+		await db.execute(sql.raw(`VACUUM ${table}`));
+		await new Promise((r) => setImmediate(r));
+	}
+	await db.execute(sql`CHECKPOINT`);
+	return { framesDeleted, vacuumed };
+}
+
+/** Runs maintenance every `everyMs`, one pass at a time; returns a stop function. */
+export function scheduleMaintenance(db: Db, everyMs: number, log: (message: string) => void = console.log): () => void {
+	let running = false;
+	const timer = setInterval(async () => {
+		if (running) return;
+		running = true;
+		try {
+			const report = await runMaintenance(db);
+			if (report.framesDeleted) log(`maintenance: ${report.framesDeleted} raw frames past retention deleted`);
+		} catch (err) {
+			console.error('maintenance failed', err);
+		} finally {
+			running = false;
+		}
+	}, everyMs);
+	timer.unref();
+	return () => clearInterval(timer);
+}
