@@ -7,7 +7,7 @@ import { bucketStart, mergeRollups, rollupFrames, rollupKey, type ExpectedOf, ty
 import type { Db } from '../db';
 import { frameRollups, frames, runs } from '../db/schema';
 import { runInfoFor } from '../runs/detector-context';
-import { framePages } from '../runs/frame-pages';
+import { FRAME_PAGE_ROWS, framePages } from '../runs/frame-pages';
 
 type RollupRow = typeof frameRollups.$inferSelect;
 type RollupInsert = typeof frameRollups.$inferInsert;
@@ -199,14 +199,15 @@ export async function rebuildRollups(
 	db: Db,
 	runId: string,
 	expectedOf?: ExpectedOf,
-	onProgress?: (p: RebuildProgress) => void
+	onProgress?: (p: RebuildProgress) => void,
+	pageSize = FRAME_PAGE_ROWS
 ): Promise<{ frames: number; rows: number }> {
 	const expect = expectedOf ?? (await currentExpectedOf(db, runId));
 	const [{ total }] = await db.select({ total: count() }).from(frames).where(eq(frames.runId, runId));
 	await db.delete(frameRollups).where(eq(frameRollups.runId, runId));
 	const cache = new RollupCache();
 	let done = 0;
-	for await (const page of framePages(db, runId)) {
+	for await (const page of framePages(db, runId, { pageSize })) {
 		const pageFrames = page.map((s) => s.frame);
 		const deltas = rollupFrames(pageFrames, (f, i) => expect(f, done + i));
 		await db.transaction(async (tx) => {
