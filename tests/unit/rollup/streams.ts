@@ -39,7 +39,7 @@ const frameArb = (states: number) =>
 		vacuum_s: real(0, 10),
 		transitions: fc.option(fc.array(fc.integer({ min: 0, max: 9 }), { minLength: states * states, maxLength: states * states }), { nil: undefined }),
 		aux: fc.option(
-			fc.dictionary(fc.constantFrom(...AUX_POOL), real(-1e3, 1e3), { maxKeys: AUX_POOL.length }),
+			fc.dictionary(fc.constantFrom(...AUX_POOL), real(-1e3, 1e3), { maxKeys: AUX_POOL.length, noNullPrototype: true }),
 			{ nil: undefined }
 		),
 		expected: expectedArb
