@@ -209,6 +209,8 @@ export class DetectorEngine {
 	 */
 	setRun(change: RunChange, at_ms: number): DetectorEvent[] {
 		const next = parseRunInfo({ ...this.#s.run, ...change });
+		// The same facts again (a restarted server re-reads them) change nothing: no restart of statistics.
+		if (JSON.stringify(next) === JSON.stringify(parseRunInfo(this.#s.run))) return [];
 		const rates = compileRates(next);
 		this.#s.run = next;
 		this.#rates = rates;

@@ -123,7 +123,7 @@ export const frames = pgTable(
 		amp: doublePrecision('amp'),
 		aux: jsonb('aux').$type<Record<string, number>>(),
 		iq: jsonb('iq').$type<{ bins: number; extent: number; counts: number[] }>(),
-		/** Server clock at receipt, set by the writer: the same value the detectors saw. */
+		/** Server clock at receipt (column created_at), set by the writer: the same value the detectors saw. */
 		receivedAt: created(),
 		/**
 		 * Arrived after a higher seq (it filled a gap): stored, but never fed to the detectors,

@@ -20,7 +20,7 @@ export async function insertFrames(tx: Tx | Db, runId: string, receivedAt: Date,
 	const payload = JSON.stringify(batch.map(({ frame, late }) => ({ ...frame, t: Math.round(frame.t), late })));
 	const result = await tx.execute<{ seq: number }>(sql`
 		INSERT INTO frames (run_id, seq, t, window_s, shots, vacuum, counts, lock, switches, dwell_s, escapes, vacuum_s,
-			transitions, amp, aux, iq, received_at, late)
+			transitions, amp, aux, iq, created_at, late)
 		SELECT ${runId}, x.seq, x.t, x.window_s, x.shots, x.vacuum, x.counts, x.lock, x.switches, x.dwell_s, x.escapes,
 			x.vacuum_s, x.transitions, x.amp, x.aux, x.iq, ${receivedAt.toISOString()}::timestamptz, x.late
 		FROM jsonb_to_recordset(${payload}::jsonb) AS x(seq integer, t bigint, window_s float8, shots integer,
