@@ -2,6 +2,7 @@
 // independent aggregation as the pure tests: batches written through writeRollups with and without
 // a cache, late frames landing in old buckets, and a rebuild from the frames table.
 import { randomUUID } from 'node:crypto';
+import type { PGlite } from '@electric-sql/pglite';
 import { eq } from 'drizzle-orm';
 import fc from 'fast-check';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
@@ -108,6 +109,42 @@ describe('writeRollups', () => {
 		// Only buckets overlapping the range, including the one under way at fromT.
 		expect((await readRollups(db, runId, 10, T0_MS + 11_000, T0_MS + 20_000)).map((r) => r.bucket_t)).toEqual([T0_MS + 10_000]);
 		expect(await readRollups(db, runId, 60)).toEqual([]);
+	});
+
+	it('reads all missing buckets in one SELECT and writes all rows in one upsert', async () => {
+		const runId = await newRun(2);
+		const f = (seq: number, t: number): Frame => ({
+			seq,
+			t,
+			window_s: 1,
+			shots: 10,
+			vacuum: 1,
+			counts: [4, 5],
+			lock: 0.7,
+			switches: 1,
+			dwell_s: 0.9,
+			escapes: 0,
+			vacuum_s: 0.1
+		});
+		const batch = [f(1, T0_MS + 1000), f(2, T0_MS + 15_000), f(3, T0_MS + 70_000), f(4, T0_MS + 700_000)];
+		await writeRollups(db, runId, rollupFrames(batch.slice(0, 2), () => null));
+		// drizzle's PGlite driver sends every statement through the client's query().
+		const spy = vi.spyOn((db as Db & { $client: PGlite }).$client, 'query');
+		try {
+			await writeRollups(db, runId, rollupFrames(batch, () => null));
+			const statements = spy.mock.calls.map(([text]: [string, ...unknown[]]) => String(text).trim().split(/\s+/)[0].toLowerCase());
+			expect(statements).toEqual(['select', 'insert']);
+			expect(String(spy.mock.calls[1][0])).toMatch(/on conflict \("run_id", ?"resolution_s", ?"bucket_t"\) do update set/i);
+		} finally {
+			spy.mockRestore();
+		}
+		const tens = await readRollups(db, runId, 10);
+		expect(tens.map((r) => [r.bucket_t - T0_MS, r.frames])).toEqual([
+			[0, 2],
+			[10_000, 2],
+			[70_000, 1],
+			[700_000, 1]
+		]);
 	});
 
 	it('maps rows and rollups both ways without loss', async () => {

@@ -193,7 +193,8 @@ export type RebuildProgress = { runId: string; framesDone: number; framesTotal: 
  * Replaces a run's rollups with ones recomputed from its stored frames, a page at a time (one
  * transaction per page) so memory stays bounded on long runs. `expectedOf` defaults to the
  * setup's current rate models (see currentExpectedOf). Frames that raw retention already deleted
- * are gone from the result, so callers check that first (see storedFrameShortfall).
+ * are gone from the result, so callers check that first (see storedFrameShortfall). Not atomic as a
+ * whole: a rebuild that fails part-way leaves the run with partial rollups; run it again.
  */
 export async function rebuildRollups(
 	db: Db,
