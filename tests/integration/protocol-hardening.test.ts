@@ -50,7 +50,7 @@ async function storedSeqs(runId: string): Promise<number[]> {
 	return (await res.json()).frames.map((f: { seq: number }) => f.seq);
 }
 
-const isError = (code: string) => (m: { type: string; code?: string }) => m.type === 'error' && m.code === code;
+const isError = (code: string) => (m: { type: string; code?: unknown }) => m.type === 'error' && m.code === code;
 
 describe('numbers the columns cannot hold', () => {
 	it('names seq = 2^31 and t = 1e19, stores the frames around them and keeps the link', async () => {
