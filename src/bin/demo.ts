@@ -1,13 +1,13 @@
 // npm run demo: a fresh demo lab on the embedded database, the production server with the mail
 // catcher, and a simulated agent whose run loses lock within the first two minutes.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { rmSync } from 'node:fs';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { addUser } from '../lib/server/auth/users';
 import { createAuth } from '../lib/server/auth/options';
 import { loadAuthSecret } from '../lib/server/auth/secret';
-import { lockDataDir, unlockDataDir } from '../lib/server/data-lock';
+import { dataDirHolder, lockDataDir, unlockDataDir } from '../lib/server/data-lock';
+import { DEMO_DATA_ENV, prepareDemoFolder } from '../lib/server/demo/data-folder';
 import { openDatabase } from '../lib/server/db';
 import { user } from '../lib/server/db/schema';
 import { saveRateModel } from '../lib/server/models/rate-models';
@@ -16,13 +16,12 @@ import { createAgentToken } from '../lib/server/setups/tokens';
 import { DEMO_PASSWORD, demoPeople, demoSetups } from './demo-lab';
 
 const root = path.resolve(import.meta.dirname, '../..');
-const dataDir = path.resolve(process.env.PHASEWARDEN_DATA || path.join(root, '.data/demo'));
+// Never PHASEWARDEN_DATA: someone who exported it for production must not have it cleared by a demo.
+const dataDir = path.resolve(process.env[DEMO_DATA_ENV] || path.join(root, '.data/demo'));
 const port = Number(process.env.PORT ?? 3000);
 const origin = process.env.ORIGIN ?? `http://localhost:${port}`;
 
 async function seed(): Promise<string> {
-	// The demo always starts from a clean lab; it only ever clears its own folder.
-	rmSync(dataDir, { recursive: true, force: true });
 	lockDataDir(dataDir);
 	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
 	try {
@@ -61,6 +60,21 @@ async function waitForServer(url: string, child: ChildProcess) {
 	throw new Error(`the server did not answer at ${url}`);
 }
 
+if (process.env.PHASEWARDEN_DATA) {
+	console.log(`note: PHASEWARDEN_DATA (${process.env.PHASEWARDEN_DATA}) is ignored by the demo; it uses ${dataDir} (set ${DEMO_DATA_ENV} to change it).`);
+}
+// The demo always starts from a clean lab, and clears only a folder it made itself.
+const holder = dataDirHolder(dataDir);
+if (holder) {
+	console.error(`demo: ${dataDir} is in use by process ${holder} (another demo or server); stop it first.`);
+	process.exit(1);
+}
+try {
+	prepareDemoFolder(dataDir);
+} catch (err) {
+	console.error(`demo: ${(err as Error).message}`);
+	process.exit(1);
+}
 const token = await seed();
 const env = { ...process.env, PHASEWARDEN_DATA: dataDir, PHASEWARDEN_CATCHER: '1', PORT: String(port), ORIGIN: origin };
 const server = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });

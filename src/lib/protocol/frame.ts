@@ -2,7 +2,15 @@
 // browser so that every side rejects the same frames for the same reasons.
 import { z } from 'zod';
 
-const count = z.number().int().min(0);
+/** Largest value of a Postgres `integer` column: seq and every count are stored in one. */
+export const MAX_PG_INTEGER = 2_147_483_647;
+/**
+ * Latest frame time, in Unix ms: the end of the JavaScript Date range (year 275760). Far below 2^53,
+ * so `t` stays an exact integer in JSON, in JS and in the bigint column.
+ */
+export const MAX_T_MS = 8.64e15;
+
+const count = z.number().int().min(0).max(MAX_PG_INTEGER);
 // Upper case is allowed so the conventional names keep their units (mxc_mK, pump_dBm, bias_uV).
 const AUX_NAME = /^[A-Za-z0-9_]{1,32}$/;
 
@@ -26,8 +34,8 @@ export const auxSchema = z
 	.refine((aux) => Object.keys(aux).length <= MAX_AUX, { message: `at most ${MAX_AUX} aux values` });
 
 export const frameSchema = z.object({
-	seq: z.number().int().min(1),
-	t: z.number().finite().positive(),
+	seq: z.number().int().min(1).max(MAX_PG_INTEGER),
+	t: z.number().finite().positive().max(MAX_T_MS),
 	window_s: z.number().finite().positive(),
 	shots: count,
 	vacuum: count,

@@ -1,2 +1,3 @@
 export * from './frame';
 export * from './messages';
+export * from './safe-text';

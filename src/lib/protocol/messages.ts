@@ -1,22 +1,27 @@
 // Messages of wire protocol v1, agent → server and server → agent.
 import { z } from 'zod';
 import { frameSchema } from './frame';
+import { safeText } from './safe-text';
 
 export const PROTOCOL_VERSION = 1;
 export const MAX_FRAMES_PER_MESSAGE = 500;
 /** Largest text message the server accepts, in bytes. */
 export const MAX_MESSAGE_BYTES = 4 * 1024 * 1024;
-/** Past this the WebSocket library stops reading and closes the link (1009) without an answer. */
+/**
+ * Where the WebSocket library stops reading (its maxPayload). Between MAX_MESSAGE_BYTES and this the
+ * server still reads the message, so it can answer `too_large` before closing; above it the socket
+ * is closed with 1009 and no answer, which bounds the memory one connection can take.
+ */
 export const HARD_MAX_MESSAGE_BYTES = MAX_MESSAGE_BYTES * 16;
 
 export const runDescriptionSchema = z
 	.object({
-		key: z.string().min(1).max(200),
-		name: z.string().min(1).max(200),
+		key: safeText(z.string().min(1).max(200)),
+		name: safeText(z.string().min(1).max(200)),
 		order: z.number().int().min(2).max(8),
 		states: z.number().int().min(2).max(16),
 		mode_GHz: z.number().positive().max(100),
-		operatingPoint: z.record(z.string(), z.union([z.number(), z.string(), z.boolean()])).optional()
+		operatingPoint: z.record(safeText(z.string()), z.union([z.number(), safeText(z.string()), z.boolean()])).optional()
 	})
 	.refine((run) => run.states === run.order || run.states === 2 * run.order, {
 		message: 'states must be order (M) or twice the order (2M)',
@@ -26,7 +31,7 @@ export const runDescriptionSchema = z
 export const helloSchema = z.object({
 	type: z.literal('hello'),
 	protocol: z.number().int(),
-	agent: z.string().min(1).max(100),
+	agent: safeText(z.string().min(1).max(100)),
 	run: runDescriptionSchema
 });
 
@@ -38,7 +43,7 @@ export const framesEnvelopeSchema = z.object({
 
 export const endSchema = z.object({
 	type: z.literal('end'),
-	reason: z.string().max(500).optional()
+	reason: safeText(z.string().max(500)).optional()
 });
 
 export const agentMessageSchema = z.discriminatedUnion('type', [helloSchema, framesEnvelopeSchema, endSchema]);

@@ -20,6 +20,8 @@ export interface TokenInfo {
 
 export class AgentConnection {
 	private writer: RunWriter | null = null;
+	/** Set on the first hello, before its async attach, so a second hello sent right behind it is refused. */
+	private helloSeen = false;
 	alive = true;
 
 	constructor(
@@ -60,7 +62,11 @@ export class AgentConnection {
 
 	private async onMessage(data: Buffer, isBinary: boolean) {
 		if (isBinary) return this.error('invalid_message', 'messages are JSON text, not binary');
-		if (data.length > MAX_MESSAGE_BYTES) return this.error('too_large', `a message is at most ${MAX_MESSAGE_BYTES} bytes`);
+		if (data.length > MAX_MESSAGE_BYTES) {
+			// Answer first: close() sends its close frame after the error on the same socket.
+			this.error('too_large', `a message is at most ${MAX_MESSAGE_BYTES} bytes (4 MiB), this one has ${data.length}`);
+			return this.close(1009, 'message too big');
+		}
 		let json: unknown;
 		try {
 			json = JSON.parse(data.toString('utf8'));
@@ -81,11 +87,12 @@ export class AgentConnection {
 	}
 
 	private async onHello(msg: Extract<import('../../protocol/messages').AgentMessage, { type: 'hello' }>) {
+		if (this.helloSeen) return this.error('invalid_message', 'hello: this connection already sent hello');
+		this.helloSeen = true;
 		if (msg.protocol !== PROTOCOL_VERSION) {
 			this.error('protocol_unsupported', `protocol: this server speaks version ${PROTOCOL_VERSION}, not ${msg.protocol}`);
 			return this.close(1002, 'protocol unsupported');
 		}
-		if (this.writer) return this.error('invalid_message', 'hello: this connection already has a run');
 		const result = await this.ingest.attach(this, msg);
 		if ('error' in result) {
 			this.error(result.error, result.message);
