@@ -39,8 +39,11 @@ export class ReplayCancelled extends Error {
 async function startWorker(data: ReplayWorkerData): Promise<Worker> {
 	const { replayWorkerUrl } = await import('./replay-worker');
 	const url = new URL(replayWorkerUrl);
-	const fromSource = url.pathname.endsWith('.ts');
-	return new Worker(url, { workerData: data, ...(fromSource ? { execArgv: ['--import', 'tsx'] } : {}) });
+	if (!url.pathname.endsWith('.ts')) return new Worker(url, { workerData: data });
+	// From source (tests, vite dev): the worker registers tsx's loader before loading the entry;
+	// a worker does not take `--import` from execArgv.
+	const load = `import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(url.href)}); })`;
+	return new Worker(load, { eval: true, workerData: data });
 }
 
 export async function replayInWorker(pages: AsyncIterable<FramePage>, job: ReplayJob, control: ReplayControl = {}): Promise<ReplayOutcome> {
