@@ -6,6 +6,8 @@ import { RUN, frame, startAgent, type TestAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
 
 const FRAMES = 20_000;
+/** The replay page's form as a browser without JavaScript posts it: no field changed, so the rules in force. */
+const formPost: RequestInit = { method: 'POST', body: 'replay=1', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' } };
 const PER_MESSAGE = 500;
 
 let seeded: Seeded;
@@ -66,6 +68,10 @@ it('replays a 20,000-frame run while another run keeps streaming, and refuses a 
 	const second = await observer(`/api/runs/${runId}/replay`, { method: 'POST', body: '{}' });
 	expect(second.status).toBe(409);
 	expect((await second.json()).message).toMatch(/replay is already running.*of 20000 frames/);
+	// The page's form, posted without JavaScript, says the same.
+	const secondByForm = await observer(`/runs/${runId}/replay?/replay`, formPost);
+	expect(secondByForm.status).toBe(409);
+	expect(await secondByForm.text()).toMatch(/replay is already running/);
 
 	const res = await replaying;
 	const lastDuring = sideSeq;
@@ -95,6 +101,11 @@ it('replays a 20,000-frame run while another run keeps streaming, and refuses a 
 	expect(stored.frames.map((f: { seq: number }) => f.seq)).toEqual(Array.from({ length: lastDuring - firstDuring + 1 }, (_, i) => firstDuring + i));
 	await side.close();
 
-	// Done: the slot is free again.
+	// Done: the slot is free again, and the page's form (no JavaScript) replays and shows the outcome.
 	expect(await (await observer(`/api/runs/${runId}/replay`)).json()).toEqual({ running: false, done: 0, total: FRAMES });
+	const byForm = await observer(`/runs/${runId}/replay?/replay`, formPost);
+	expect(byForm.status).toBe(200);
+	const html = await byForm.text();
+	expect(html).toMatch(/Frames replayed/);
+	expect(html).toMatch(/Raised by both/);
 }, 240_000);
