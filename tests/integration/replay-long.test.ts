@@ -39,6 +39,9 @@ it('replays a 20,000-frame run while another run keeps streaming, and refuses a 
 	const runId = long.welcome.run;
 
 	const observer = await signIn(server, 'observer');
+	const unknown = '00000000-0000-4000-8000-000000000000';
+	expect((await observer(`/api/runs/${unknown}/replay`, { method: 'POST', body: '{}' })).status).toBe(404);
+	expect((await observer(`/api/runs/${unknown}/replay`)).status).toBe(404);
 	const live = await (await observer(`/api/incidents?run=${runId}`)).json();
 	expect(live.incidents).toHaveLength(3);
 
