@@ -17,9 +17,12 @@ export { designFor, bandOf, type CusumDesign } from './cusum-design';
 export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
 export {
 	replayRun,
+	Replayer,
+	IncidentFold,
 	replayIncidents,
 	compareReplay,
 	type ReplayOptions,
+	type ReplayerOptions,
 	type ReplayIncident,
 	type ActualIncident,
 	type ReplayComparison

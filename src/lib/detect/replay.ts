@@ -25,40 +25,85 @@ export type ReplayOptions = {
 
 /** Replays frames (in seq order) through a fresh engine with the given rules; returns every event. */
 export function replayRun(frames: readonly Frame[], rules: unknown, run: RunInfo, options: ReplayOptions = {}): DetectorEvent[] {
-	const engine = new DetectorEngine(rules, run);
-	const events: DetectorEvent[] = [];
-	const ruleChanges = [...(options.ruleChanges ?? [])];
-	const runChanges = [...(options.runChanges ?? [])];
-	let silenceLimit_ms = engine.rules.agent_silent.after_s * 1000;
-	let lastHeard_ms = run.openedAt_ms;
-	const tickUntil = (now_ms: number) => {
-		// One tick when the silence reaches the limit, if it does before `now_ms`.
-		if (lastHeard_ms !== undefined && now_ms - lastHeard_ms >= silenceLimit_ms) {
-			events.push(...engine.onClock(lastHeard_ms + silenceLimit_ms));
-		}
-	};
-	for (let i = 0; i < frames.length; i++) {
-		const frame = frames[i];
-		const received = options.receivedAt_ms?.(frame, i);
-		const heard_ms = received ?? frame.t;
-		tickUntil(heard_ms);
-		events.push(...engine.onFrame(frame, received));
-		lastHeard_ms = heard_ms;
-		while (ruleChanges.length > 0 && ruleChanges[0].afterSeq <= frame.seq) {
-			const change = ruleChanges.shift()!;
-			events.push(...engine.setRules(change.rules, change.at_ms));
-			silenceLimit_ms = engine.rules.agent_silent.after_s * 1000;
-		}
-		while (runChanges.length > 0 && runChanges[0].afterSeq <= frame.seq) {
-			const change = runChanges.shift()!;
-			events.push(...engine.setRun(change.change, change.at_ms));
-		}
-	}
-	if (options.endedAt_ms !== undefined) {
-		tickUntil(options.endedAt_ms);
-		events.push(...engine.endRun(options.endedAt_ms));
-	}
+	const replayer = new Replayer(rules, run, options);
+	const receivedAt = options.receivedAt_ms ? frames.map((f, i) => options.receivedAt_ms!(f, i)) : undefined;
+	const events = replayer.push(frames, receivedAt);
+	events.push(...replayer.finish(options.endedAt_ms));
 	return events;
+}
+
+/** What a Replayer needs besides rules and run: the changes during the run (frames come by push). */
+export type ReplayerOptions = Pick<ReplayOptions, 'ruleChanges' | 'runChanges'>;
+
+/**
+ * The replay fed a page of frames at a time, so a long run never has to be in memory at once.
+ * Pushing the frames in any number of pages, then finishing, gives exactly the events
+ * replayRun gives for all of them at once.
+ */
+export class Replayer {
+	readonly #engine: DetectorEngine;
+	readonly #ruleChanges: NonNullable<ReplayOptions['ruleChanges']>;
+	readonly #runChanges: NonNullable<ReplayOptions['runChanges']>;
+	#silenceLimit_ms: number;
+	#lastHeard_ms: number | undefined;
+	#finished = false;
+	/** Frames pushed so far. */
+	frameCount = 0;
+
+	constructor(rules: unknown, run: RunInfo, options: ReplayerOptions = {}) {
+		this.#engine = new DetectorEngine(rules, run);
+		this.#ruleChanges = [...(options.ruleChanges ?? [])];
+		this.#runChanges = [...(options.runChanges ?? [])];
+		this.#silenceLimit_ms = this.#engine.rules.agent_silent.after_s * 1000;
+		this.#lastHeard_ms = run.openedAt_ms;
+	}
+
+	/**
+	 * Feeds frames (in seq order, after those pushed before); `receivedAt_ms[i]` is the server
+	 * clock at receipt of `frames[i]` when stored. Returns the events these frames caused.
+	 */
+	push(frames: readonly Frame[], receivedAt_ms?: readonly (number | undefined)[]): DetectorEvent[] {
+		if (this.#finished) throw new Error('replay: frames pushed after finish');
+		const events: DetectorEvent[] = [];
+		for (let i = 0; i < frames.length; i++) {
+			const frame = frames[i];
+			const received = receivedAt_ms?.[i];
+			const heard_ms = received ?? frame.t;
+			this.#tickUntil(heard_ms, events);
+			events.push(...this.#engine.onFrame(frame, received));
+			this.#lastHeard_ms = heard_ms;
+			while (this.#ruleChanges.length > 0 && this.#ruleChanges[0].afterSeq <= frame.seq) {
+				const change = this.#ruleChanges.shift()!;
+				events.push(...this.#engine.setRules(change.rules, change.at_ms));
+				this.#silenceLimit_ms = this.#engine.rules.agent_silent.after_s * 1000;
+			}
+			while (this.#runChanges.length > 0 && this.#runChanges[0].afterSeq <= frame.seq) {
+				const change = this.#runChanges.shift()!;
+				events.push(...this.#engine.setRun(change.change, change.at_ms));
+			}
+		}
+		this.frameCount += frames.length;
+		return events;
+	}
+
+	/** Ends the replay: with the run's end (server clock), the engine's end-of-run signals. */
+	finish(endedAt_ms?: number): DetectorEvent[] {
+		if (this.#finished) throw new Error('replay: finished twice');
+		this.#finished = true;
+		const events: DetectorEvent[] = [];
+		if (endedAt_ms !== undefined) {
+			this.#tickUntil(endedAt_ms, events);
+			events.push(...this.#engine.endRun(endedAt_ms));
+		}
+		return events;
+	}
+
+	/** One tick when the silence reaches the limit, if it does before `now_ms`. */
+	#tickUntil(now_ms: number, into: DetectorEvent[]) {
+		if (this.#lastHeard_ms !== undefined && now_ms - this.#lastHeard_ms >= this.#silenceLimit_ms) {
+			into.push(...this.#engine.onClock(this.#lastHeard_ms + this.#silenceLimit_ms));
+		}
+	}
 }
 
 /** One incident as the replay would have raised it: an open, its updates, and its clear if any. */
@@ -78,40 +123,49 @@ export type ReplayIncident = {
 
 /** Folds events into incidents, in the order they opened. */
 export function replayIncidents(events: readonly DetectorEvent[]): ReplayIncident[] {
-	const incidents: ReplayIncident[] = [];
-	const open = new Map<string, ReplayIncident>();
-	for (const e of events) {
-		const id = `${e.kind}\u0000${e.key ?? ''}`;
-		if (e.type === 'open') {
-			const incident: ReplayIncident = {
-				kind: e.kind,
-				key: e.key ?? '',
-				severity: e.severity,
-				openedAt_ms: e.at_ms,
-				openedSeq: e.seq ?? null,
-				clearedAt_ms: null,
-				clearedSeq: null,
-				summary: e.summary,
-				evidence: e.evidence,
-				updates: 0,
-				clearSummary: null
-			};
-			incidents.push(incident);
-			open.set(id, incident);
-			continue;
+	const fold = new IncidentFold();
+	fold.add(events);
+	return fold.incidents;
+}
+
+/** replayIncidents a page of events at a time: a long replay keeps incidents, not every event. */
+export class IncidentFold {
+	readonly incidents: ReplayIncident[] = [];
+	readonly #open = new Map<string, ReplayIncident>();
+
+	add(events: readonly DetectorEvent[]) {
+		for (const e of events) {
+			const id = `${e.kind}\u0000${e.key ?? ''}`;
+			if (e.type === 'open') {
+				const incident: ReplayIncident = {
+					kind: e.kind,
+					key: e.key ?? '',
+					severity: e.severity,
+					openedAt_ms: e.at_ms,
+					openedSeq: e.seq ?? null,
+					clearedAt_ms: null,
+					clearedSeq: null,
+					summary: e.summary,
+					evidence: e.evidence,
+					updates: 0,
+					clearSummary: null
+				};
+				this.incidents.push(incident);
+				this.#open.set(id, incident);
+				continue;
+			}
+			const incident = this.#open.get(id);
+			if (!incident) continue;
+			if (e.type === 'update') {
+				incident.updates += 1;
+				continue;
+			}
+			incident.clearedAt_ms = e.at_ms;
+			incident.clearedSeq = e.seq ?? null;
+			incident.clearSummary = e.summary;
+			this.#open.delete(id);
 		}
-		const incident = open.get(id);
-		if (!incident) continue;
-		if (e.type === 'update') {
-			incident.updates += 1;
-			continue;
-		}
-		incident.clearedAt_ms = e.at_ms;
-		incident.clearedSeq = e.seq ?? null;
-		incident.clearSummary = e.summary;
-		open.delete(id);
 	}
-	return incidents;
 }
 
 /**

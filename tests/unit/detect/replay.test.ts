@@ -2,7 +2,7 @@
 // also across a snapshot/restore at any point; the comparison helper matches incidents.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { compareReplay, DetectorEngine, replayIncidents, replayRun, type DetectorEvent } from '../../../src/lib/detect';
+import { compareReplay, DetectorEngine, IncidentFold, Replayer, replayIncidents, replayRun, type DetectorEvent } from '../../../src/lib/detect';
 import type { Frame } from '../../../src/lib/protocol/frame';
 import { countFrames, ringFrames, T0_ms } from './sim';
 import { run6, warmSwitching } from './models';
@@ -126,5 +126,54 @@ describe('replay of agent_silent and of changes during the run', () => {
 		}
 		const replayed = replayRun(fs, rules, run, { ruleChanges: [{ afterSeq: 1000, at_ms: fs[999].t, rules: change }] });
 		expect(replayed).toEqual(liveEvents);
+	});
+});
+
+describe('incremental replay', () => {
+	// Receipt times with a silence long enough for agent_silent (60 s by default) inside a page and
+	// one across a page boundary, so the clock ticks fall on both sides of a push.
+	const frames = scriptedRun().slice(0, 3000);
+	const receivedAt = frames.map((f) => f.t + 40 + (f.seq > 700 ? 90_000 : 0) + (f.seq > 1500 ? 120_000 : 0));
+	const change = { ...rules, lock_lost: { threshold: 0.5, windows: 3 } };
+	const options = {
+		receivedAt_ms: (_f: Frame, i: number) => receivedAt[i],
+		ruleChanges: [{ afterSeq: 1200, at_ms: frames[1199].t, rules: change }],
+		endedAt_ms: receivedAt[receivedAt.length - 1] + 100_000
+	};
+	const whole = replayRun(frames, rules, run, options);
+
+	it('the stream has silences and a rule change to carry across pages', () => {
+		expect(whole.filter((e) => e.kind === 'agent_silent' && e.type === 'open').length).toBe(3);
+	});
+
+	it('pushed in pages of any size, it gives the events of replayRun (property, seeded)', () => {
+		fc.assert(
+			fc.property(fc.array(fc.integer({ min: 1, max: 900 }), { minLength: 1, maxLength: 12 }), (sizes) => {
+				const replayer = new Replayer(rules, run, { ruleChanges: options.ruleChanges });
+				const events: DetectorEvent[] = [];
+				let at = 0;
+				for (let k = 0; at < frames.length; k++) {
+					const size = sizes[k % sizes.length];
+					events.push(...replayer.push(frames.slice(at, at + size), receivedAt.slice(at, at + size)));
+					at += size;
+				}
+				events.push(...replayer.finish(options.endedAt_ms));
+				expect(replayer.frameCount).toBe(frames.length);
+				expect(events).toEqual(whole);
+			}),
+			{ seed: 7, numRuns: 10 }
+		);
+	});
+
+	it('folding incidents page by page gives replayIncidents of all events', () => {
+		const fold = new IncidentFold();
+		for (let at = 0; at < whole.length; at += 37) fold.add(whole.slice(at, at + 37));
+		expect(fold.incidents).toEqual(replayIncidents(whole));
+	});
+
+	it('refuses frames after finish', () => {
+		const replayer = new Replayer(rules, run);
+		replayer.finish();
+		expect(() => replayer.push(frames.slice(0, 1))).toThrow(/after finish/);
 	});
 });

@@ -1,35 +1,43 @@
 // Replays a stored run through a fresh detector engine with given rules and compares the result
-// with the incidents raised live. Reads only: nothing real is changed.
-import { and, asc, eq, inArray } from 'drizzle-orm';
-import { compareReplay, replayIncidents, replayRun, type ActualIncident } from '../../detect/replay';
+// with the incidents raised live. Reads only: nothing real is changed. The frames are read a page
+// at a time and the engine runs in a worker thread, so live agents keep their turn meanwhile.
+import { and, eq, inArray } from 'drizzle-orm';
+import { compareReplay, type ActualIncident } from '../../detect/replay';
 import { parseDetectorRules } from '../../detect/rules';
 import type { Db } from '../db';
 import { frames as framesTable, incidentEvents } from '../db/schema';
-import { rowToFrame } from '../ingest/frame-rows';
 import { listIncidents } from '../incidents/service';
 import { runInfoFor } from '../runs/detector-context';
+import { framePages } from '../runs/frame-pages';
 import type { RunRow } from '../runs/service';
+import { replayInWorker, type ReplayControl } from './replay-in-worker';
+import type { FramePage } from './worker-protocol';
 
-export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown) {
+/**
+ * Rows per page read for a replay. PGlite runs in this process, so a query holds the event loop
+ * for as long as it takes: pages stay small, and live ingest gets a turn between them.
+ */
+export const REPLAY_PAGE_ROWS = 500;
+
+export interface ReplayStoredRunOptions extends ReplayControl {
+	pageSize?: number;
+}
+
+export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown, control: ReplayStoredRunOptions = {}) {
 	// Throws a RangeError naming the field for a bad rule set (the route answers 400).
 	const rules = parseDetectorRules(rulesInput);
-	const [rows, info, actualList] = await Promise.all([
-		db.select().from(framesTable).where(eq(framesTable.runId, run.id)).orderBy(asc(framesTable.seq)),
+	const [info, actualList] = await Promise.all([
 		runInfoFor(db, run),
 		listIncidents(db, { run: run.id, sort: 'openedAt', order: 'asc', page: 1, pageSize: 200 })
 	]);
-	const frames = rows.map(rowToFrame);
-	const receivedAt = rows.map((r) => r.receivedAt.getTime());
-	const events = replayRun(frames, rules, info, {
-		receivedAt_ms: (_f, i) => receivedAt[i],
-		endedAt_ms: run.endedAt?.getTime()
-	});
-	const replayed = replayIncidents(events);
-	const actual = await asReplayable(db, actualList.incidents, new Map(frames.map((f) => [f.seq, f.t])));
+	// Late frames (filled a gap after a higher seq) were stored but never fed to the live detectors.
+	const pages = pagesOf(framePages(db, run.id, { pageSize: control.pageSize ?? REPLAY_PAGE_ROWS, skipLate: true }));
+	const { frameCount, incidents: replayed } = await replayInWorker(pages, { rules, run: info, endedAt_ms: run.endedAt?.getTime() }, control);
+	const actual = await asReplayable(db, run.id, actualList.incidents);
 	const comparison = compareReplay(actual, replayed);
 	return {
 		rules,
-		frameCount: frames.length,
+		frameCount,
 		replayed,
 		// Live incidents with the clear time on the replay's clock, so both can share one timeline.
 		actual: actualList.incidents.map((inc, k) => ({ ...inc, clearedAt_ms: actual[k].clearedAt_ms })),
@@ -41,13 +49,19 @@ export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown) 
 	};
 }
 
+async function* pagesOf(stored: ReturnType<typeof framePages>): AsyncGenerator<FramePage> {
+	for await (const page of stored) {
+		yield { frames: page.map((s) => s.frame), receivedAt_ms: page.map((s) => s.receivedAt_ms) };
+	}
+}
+
 type Listed = Awaited<ReturnType<typeof listIncidents>>['incidents'][number];
 
 /**
  * Live incidents on the replay's clock: frame-driven kinds on the agent's time (the frame that
  * opened and the frame that cleared them), agent_silent on the server's.
  */
-async function asReplayable(db: Db, list: Listed[], tOfSeq: Map<number, number>): Promise<ActualIncident[]> {
+async function asReplayable(db: Db, runId: string, list: Listed[]): Promise<ActualIncident[]> {
 	const ids = list.map((i) => i.id);
 	const cleared = ids.length
 		? await db
@@ -56,6 +70,15 @@ async function asReplayable(db: Db, list: Listed[], tOfSeq: Map<number, number>)
 				.where(and(inArray(incidentEvents.incidentId, ids), eq(incidentEvents.action, 'auto_resolved')))
 		: [];
 	const clearOf = new Map(cleared.map((c) => [c.incidentId, c]));
+	// The frames' own time of the frames that cleared them: a few rows, not the whole run.
+	const clearSeqs = [...new Set(cleared.map((c) => c.data?.seq).filter((q): q is number => typeof q === 'number'))];
+	const tRows = clearSeqs.length
+		? await db
+				.select({ seq: framesTable.seq, t: framesTable.t })
+				.from(framesTable)
+				.where(and(eq(framesTable.runId, runId), inArray(framesTable.seq, clearSeqs)))
+		: [];
+	const tOfSeq = new Map(tRows.map((r) => [r.seq, r.t]));
 	return list.map((i) => {
 		const clear = clearOf.get(i.id);
 		const clearSeq = typeof clear?.data?.seq === 'number' ? clear.data.seq : null;

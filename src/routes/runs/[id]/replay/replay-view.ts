@@ -20,6 +20,19 @@ export interface ReplayResult {
 	};
 }
 
+/** GET /api/runs/:id/replay's answer: the signed-in person's replay of the run, if running. */
+export interface ReplayProgress {
+	running: boolean;
+	done: number;
+	total: number;
+}
+
+/** How far the replay is (0..1), or null when there is nothing to measure yet. */
+export function progressFraction(p: ReplayProgress | null): number | null {
+	if (!p?.running || !(p.total > 0)) return null;
+	return Math.min(1, Math.max(0, p.done / p.total));
+}
+
 export type Outcome = 'both' | 'replay' | 'live';
 
 export interface Interval {
