@@ -234,16 +234,25 @@ export async function storedFrameShortfall(db: Db, runId: string): Promise<numbe
 
 /**
  * A run's rollups at one resolution in bucket order; with fromT/toT (agent ms) only the buckets
- * that overlap [fromT, toT], including the one already under way at fromT.
+ * that overlap [fromT, toT], including the one already under way at fromT. With `limit`, the
+ * first `limit` of those buckets.
  */
-export async function readRollups(db: Db, runId: string, resolution_s: number, fromT?: number, toT?: number): Promise<Rollup[]> {
+export async function readRollups(
+	db: Db,
+	runId: string,
+	resolution_s: number,
+	fromT?: number,
+	toT?: number,
+	limit?: number
+): Promise<Rollup[]> {
 	const where: SQL[] = [eq(frameRollups.runId, runId), eq(frameRollups.resolutionS, resolution_s)];
 	if (fromT !== undefined) where.push(gte(frameRollups.bucketT, bucketStart(fromT, resolution_s)));
 	if (toT !== undefined) where.push(lte(frameRollups.bucketT, toT));
-	const rows = await db
+	const query = db
 		.select()
 		.from(frameRollups)
 		.where(and(...where))
 		.orderBy(asc(frameRollups.bucketT));
+	const rows = limit === undefined ? await query : await query.limit(limit);
 	return rows.map(rowToRollup);
 }
