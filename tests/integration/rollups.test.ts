@@ -47,7 +47,11 @@ const nonNegative = (max: number) => fc.oneof(fc.constant(0), positive(max));
 
 const frameBody = fc.record({
 	seqStep: fc.oneof({ arbitrary: fc.constant(1), weight: 4 }, { arbitrary: fc.integer({ min: 2, max: 6 }), weight: 1 }),
-	dt_ms: fc.double({ min: 50, max: 25_000, noNaN: true }),
+	// Mostly seconds apart; now and then a pause of up to two hours, so 600 s and 3600 s edges are crossed too.
+	dt_ms: fc.oneof(
+		{ arbitrary: fc.double({ min: 50, max: 25_000, noNaN: true }), weight: 12 },
+		{ arbitrary: fc.double({ min: 25_000, max: 7_200_000, noNaN: true }), weight: 1 }
+	),
 	// Snap onto a 10 s edge (every coarser edge is one too), to the half ms either side.
 	snap_ms: fc.oneof({ arbitrary: fc.constant(null), weight: 3 }, { arbitrary: fc.constantFrom(-0.5, -0.49, 0, 0.49, 0.5), weight: 1 }),
 	window_s: positive(30),
@@ -71,8 +75,8 @@ const frameBody = fc.record({
 const stream = fc.record({
 	firstSeq: fc.integer({ min: 1, max: 50 }),
 	t0_ms: fc.integer({ min: 0, max: 3_600_000 }).map((o) => 1_796_000_000_000 + o),
-	frames: fc.array(frameBody, { minLength: 20, maxLength: 120 }),
-	batchSizes: fc.array(fc.integer({ min: 1, max: 40 }), { minLength: 1, maxLength: 8 })
+	frames: fc.array(frameBody, { minLength: 20, maxLength: 150, size: 'medium' }),
+	batchSizes: fc.array(fc.integer({ min: 1, max: 25 }), { minLength: 1, maxLength: 8 })
 });
 type Stream = fc.infer<typeof stream>;
 
