@@ -5,7 +5,7 @@
 // floor(round(t)/width)·width on agent ms — is shared, as the definition of a bucket).
 import fc from 'fast-check';
 import { afterAll, beforeAll, expect, it } from 'vitest';
-import { RUN, startAgent } from './support/agent-socket';
+import { RUN, frame, startAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
 
 const K = 6; // the seeded setup: order 3, states 6
@@ -78,7 +78,7 @@ const stream = fc.record({
 	frames: fc.array(frameBody, { minLength: 20, maxLength: 150, size: 'medium' }),
 	batchSizes: fc.array(fc.integer({ min: 1, max: 25 }), { minLength: 1, maxLength: 8 })
 });
-type Stream = fc.infer<typeof stream>;
+type Stream = typeof stream extends fc.Arbitrary<infer S> ? S : never;
 
 /** The distinct frames, in seq order, and the messages that deliver them (duplicates included). */
 function plan(s: Stream): { distinct: WireFrame[]; messages: WireFrame[][] } {
@@ -354,4 +354,31 @@ it('sums the switching model W0·exp(−A/(2n̄+1))·dwell_s into expectedSwitch
 	// temperature (or the nominal one standing in for a measured one) moves the sum well past 1e-9.
 	const [s] = fc.sample(stream, { seed: 20261202, numRuns: 1 });
 	await deliverAndCompare(s, 'rollup-model', model);
+});
+
+// The 5000-row cap itself is checked on readRollups' limit (tests/unit/rollup/store.test.ts):
+// storing 5001 frames through the server takes longer than this file may.
+it('keeps to the [from, to] range, taking the bucket under way at from', async () => {
+	const t0_ms = 1_796_400_000_000; // a whole 3600 s bucket
+	const total = 400;
+	const frames = Array.from({ length: total }, (_, i) => ({ ...frame(i + 1, 0.9, t0_ms), t: t0_ms + i * 10_000 + 1 }));
+	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'rollup-range' });
+	for (let i = 0; i < total; i += 200) agent.send({ type: 'frames', frames: frames.slice(i, i + 200) });
+	await agent.waitFor((m) => m.type === 'ack' && m.seq === total, 30_000);
+	await agent.close();
+	const observer = await signIn(server, 'observer');
+	const base = `/api/runs/${agent.welcome.run}/rollups`;
+
+	const tens = await getJson(observer, `${base}?resolution=10`);
+	expect(tens.truncated).toBe(false);
+	expect(tens.rollups.map((r: Bucket) => r.bucket_t)).toEqual(Array.from({ length: total }, (_, i) => t0_ms + i * 10_000));
+	const window = await getJson(observer, `${base}?resolution=60&from=${t0_ms + 61_000}&to=${t0_ms + 180_000}`);
+	expect(window.rollups.map((r: Bucket) => [r.bucket_t, r.frames, r.firstSeq])).toEqual([
+		[t0_ms + 60_000, 6, 7],
+		[t0_ms + 120_000, 6, 13],
+		[t0_ms + 180_000, 6, 19]
+	]);
+	// 400 frames 10 s apart: 360 in the first hour, 40 in the second.
+	const hours = await getJson(observer, `${base}?resolution=3600`);
+	expect(hours.rollups.map((r: Bucket) => r.frames)).toEqual([360, 40]);
 });
