@@ -356,8 +356,6 @@ it('sums the switching model W0·exp(−A/(2n̄+1))·dwell_s into expectedSwitch
 	await deliverAndCompare(s, 'rollup-model', model);
 });
 
-// The 5000-row cap itself is checked on readRollups' limit (tests/unit/rollup/store.test.ts):
-// storing 5001 frames through the server takes longer than this file may.
 it('keeps to the [from, to] range, taking the bucket under way at from', async () => {
 	const t0_ms = 1_796_400_000_000; // a whole 3600 s bucket
 	const total = 400;
@@ -382,3 +380,22 @@ it('keeps to the [from, to] range, taking the bucket under way at from', async (
 	const hours = await getJson(observer, `${base}?resolution=3600`);
 	expect(hours.rollups.map((r: Bucket) => r.frames)).toEqual([360, 40]);
 });
+
+it('returns at most 5000 rows from `from` on and says when more exist (500-frame messages, one bucket per frame)', async () => {
+	const t0_ms = 1_796_400_000_000;
+	const total = 5003;
+	const frames = Array.from({ length: total }, (_, i) => ({ ...frame(i + 1, 0.9, t0_ms), t: t0_ms + i * 10_000 + 1 }));
+	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'rollup-many' });
+	for (let i = 0; i < total; i += 500) agent.send({ type: 'frames', frames: frames.slice(i, i + 500) });
+	await agent.waitFor((m) => m.type === 'ack' && m.seq === total, 50_000);
+	await agent.close();
+	const observer = await signIn(server, 'observer');
+	const base = `/api/runs/${agent.welcome.run}/rollups`;
+
+	const first = await getJson(observer, `${base}?resolution=10`);
+	expect(first.truncated).toBe(true);
+	expect(first.rollups.map((r: Bucket) => r.bucket_t)).toEqual(Array.from({ length: 5000 }, (_, i) => t0_ms + i * 10_000));
+	const rest = await getJson(observer, `${base}?resolution=10&from=${t0_ms + 5000 * 10_000}`);
+	expect(rest.truncated).toBe(false);
+	expect(rest.rollups.map((r: Bucket) => r.firstSeq)).toEqual([5001, 5002, 5003]);
+}, 60_000);

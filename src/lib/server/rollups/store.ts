@@ -13,10 +13,11 @@ type RollupRow = typeof frameRollups.$inferSelect;
 type RollupInsert = typeof frameRollups.$inferInsert;
 
 /**
- * Rows per statement. Each row binds 21 parameters and PostgreSQL allows 65 535 per statement; a
- * live batch touches far fewer buckets, so only a rebuild of sparse frames is ever split.
+ * Rows per statement. PostgreSQL would allow 65 535 parameters (21 per row), but PGlite's upsert of
+ * a few hundred rows fails inside the engine ("bad buffer ID: 0", ReleaseBuffer) — a 500-frame
+ * backlog of 10 s windows touches ~600 buckets — so statements stay well below that.
  */
-const ROWS_PER_STATEMENT = 1000;
+const ROWS_PER_STATEMENT = 100;
 
 export function rollupToRow(runId: string, r: Rollup): RollupInsert {
 	return {
