@@ -109,6 +109,9 @@ describe('writeRollups', () => {
 		// Only buckets overlapping the range, including the one under way at fromT.
 		expect((await readRollups(db, runId, 10, T0_MS + 11_000, T0_MS + 20_000)).map((r) => r.bucket_t)).toEqual([T0_MS + 10_000]);
 		expect(await readRollups(db, runId, 60)).toEqual([]);
+		// With a limit, the first buckets of the range in order.
+		expect((await readRollups(db, runId, 10, undefined, undefined, 1)).map((r) => r.bucket_t)).toEqual([T0_MS]);
+		expect((await readRollups(db, runId, 10, T0_MS, undefined, 5)).map((r) => r.bucket_t)).toEqual([T0_MS, T0_MS + 10_000]);
 	});
 
 	it('reads all missing buckets in one SELECT and writes all rows in one upsert', async () => {

@@ -42,7 +42,8 @@ export async function openIncident(tx: Tx | Db, run: { id: string; setupId: stri
 			summary: c.summary,
 			evidence: c.evidence,
 			openedSeq: c.seq ?? null,
-			openedT: c.t ?? null
+			// Agent ms may carry a fraction; stored like the frame's own t (frameToRow) in the bigint column.
+			openedT: c.t === undefined || c.t === null ? null : Math.round(c.t)
 		})
 		.returning();
 	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'opened', data: { summary: c.summary, seq: c.seq ?? null } });

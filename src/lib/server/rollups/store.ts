@@ -13,10 +13,11 @@ type RollupRow = typeof frameRollups.$inferSelect;
 type RollupInsert = typeof frameRollups.$inferInsert;
 
 /**
- * Rows per statement. Each row binds 21 parameters and PostgreSQL allows 65 535 per statement; a
- * live batch touches far fewer buckets, so only a rebuild of sparse frames is ever split.
+ * Rows per statement. PostgreSQL would allow 65 535 parameters (21 per row), but PGlite's upsert of
+ * a few hundred rows fails inside the engine ("bad buffer ID: 0", ReleaseBuffer) — a 500-frame
+ * backlog of 10 s windows touches ~600 buckets — so statements stay well below that.
  */
-const ROWS_PER_STATEMENT = 1000;
+const ROWS_PER_STATEMENT = 100;
 
 export function rollupToRow(runId: string, r: Rollup): RollupInsert {
 	return {
@@ -234,16 +235,25 @@ export async function storedFrameShortfall(db: Db, runId: string): Promise<numbe
 
 /**
  * A run's rollups at one resolution in bucket order; with fromT/toT (agent ms) only the buckets
- * that overlap [fromT, toT], including the one already under way at fromT.
+ * that overlap [fromT, toT], including the one already under way at fromT. With `limit`, the
+ * first `limit` of those buckets.
  */
-export async function readRollups(db: Db, runId: string, resolution_s: number, fromT?: number, toT?: number): Promise<Rollup[]> {
+export async function readRollups(
+	db: Db,
+	runId: string,
+	resolution_s: number,
+	fromT?: number,
+	toT?: number,
+	limit?: number
+): Promise<Rollup[]> {
 	const where: SQL[] = [eq(frameRollups.runId, runId), eq(frameRollups.resolutionS, resolution_s)];
 	if (fromT !== undefined) where.push(gte(frameRollups.bucketT, bucketStart(fromT, resolution_s)));
 	if (toT !== undefined) where.push(lte(frameRollups.bucketT, toT));
-	const rows = await db
+	const query = db
 		.select()
 		.from(frameRollups)
 		.where(and(...where))
 		.orderBy(asc(frameRollups.bucketT));
+	const rows = limit === undefined ? await query : await query.limit(limit);
 	return rows.map(rowToRollup);
 }
