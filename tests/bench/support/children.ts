@@ -1,0 +1,64 @@
+// Starts the benchmark's helper processes (raw baseline server, bare database) from their
+// TypeScript sources through tsx's loader, and waits for the line that says they are ready.
+import { spawn, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { repoRoot } from './seed';
+
+export interface Child {
+	pid: number;
+	process: ChildProcess;
+	/** The ready line the child printed. */
+	readyLine: string;
+	output: () => string;
+	stop(): Promise<void>;
+}
+
+export async function startChild(script: string, args: string[], readyPattern: RegExp, what: string): Promise<Child> {
+	const child = spawn(process.execPath, ['--import', 'tsx', path.join(import.meta.dirname, script), ...args], {
+		cwd: repoRoot,
+		stdio: ['ignore', 'pipe', 'pipe']
+	});
+	let log = '';
+	const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
+	const readyLine = await new Promise<string>((resolve, reject) => {
+		const timer = setTimeout(() => reject(new Error(`${what} not ready within 60 s:\n${log}`)), 60_000);
+		child.stdout!.on('data', (d) => {
+			log = (log + d).slice(-20_000);
+			const line = log.split('\n').find((l) => readyPattern.test(l));
+			if (line) {
+				clearTimeout(timer);
+				resolve(line);
+			}
+		});
+		child.stderr!.on('data', (d) => (log = (log + d).slice(-20_000)));
+		child.once('exit', (code) => {
+			clearTimeout(timer);
+			reject(new Error(`${what} exited (${code}) during start-up:\n${log}`));
+		});
+	});
+	return {
+		pid: child.pid!,
+		process: child,
+		readyLine,
+		output: () => log,
+		async stop() {
+			if (child.exitCode === null) child.kill('SIGTERM');
+			await exited;
+		}
+	};
+}
+
+export interface RawServer extends Child {
+	wsUrl: string;
+}
+
+/** The raw ceiling (see raw-server.ts) on its own copy of the seeded folder. */
+export async function startRawServer(dataDir: string, setupId: string): Promise<RawServer> {
+	const child = await startChild('raw-server.ts', [dataDir, setupId], /^listening \d+/, 'raw baseline server');
+	const port = Number(child.readyLine.split(' ')[1]);
+	return { ...child, wsUrl: `ws://127.0.0.1:${port}/` };
+}
+
+export function startBareDb(dataDir: string): Promise<Child> {
+	return startChild('bare-db.ts', [dataDir], /^ready/, 'bare database process');
+}
