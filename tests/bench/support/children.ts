@@ -1,8 +1,11 @@
-// Starts the benchmark's helper processes (raw baseline server, bare database) from their
-// TypeScript sources through tsx's loader, and waits for the line that says they are ready.
+// Starts the benchmark's helper processes (raw baseline server, bare database) and waits for the
+// line that says they are ready. Their TypeScript is bundled with esbuild (packages left external)
+// and run by plain node, so no loader thread adds to their memory or start-up as tsx's would.
 import { spawn, type ChildProcess } from 'node:child_process';
+import { mkdirSync } from 'node:fs';
 import path from 'node:path';
-import { repoRoot } from './seed';
+import { build } from 'esbuild';
+import { migrationsDir, repoRoot } from './seed';
 
 export interface Child {
 	pid: number;
@@ -13,11 +16,27 @@ export interface Child {
 	stop(): Promise<void>;
 }
 
-export async function startChild(script: string, args: string[], readyPattern: RegExp, what: string): Promise<Child> {
-	const child = spawn(process.execPath, ['--import', 'tsx', path.join(import.meta.dirname, script), ...args], {
-		cwd: repoRoot,
-		stdio: ['ignore', 'pipe', 'pipe']
+/** Inside the repository, so the bundle's bare imports resolve from its node_modules. */
+const bundleDir = path.join(repoRoot, 'node_modules/.cache/phasewarden-bench');
+
+async function bundle(script: string): Promise<string> {
+	mkdirSync(bundleDir, { recursive: true });
+	const outfile = path.join(bundleDir, script.replace(/\.ts$/, '.mjs'));
+	await build({
+		entryPoints: [path.join(import.meta.dirname, script)],
+		outfile,
+		bundle: true,
+		platform: 'node',
+		format: 'esm',
+		target: 'node20',
+		packages: 'external',
+		logLevel: 'warning'
 	});
+	return outfile;
+}
+
+export async function startChild(script: string, args: string[], readyPattern: RegExp, what: string): Promise<Child> {
+	const child = spawn(process.execPath, [await bundle(script), ...args], { cwd: repoRoot, stdio: ['ignore', 'pipe', 'pipe'] });
 	let log = '';
 	const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
 	const readyLine = await new Promise<string>((resolve, reject) => {
@@ -54,11 +73,11 @@ export interface RawServer extends Child {
 
 /** The raw ceiling (see raw-server.ts) on its own copy of the seeded folder. */
 export async function startRawServer(dataDir: string, setupId: string): Promise<RawServer> {
-	const child = await startChild('raw-server.ts', [dataDir, setupId], /^listening \d+/, 'raw baseline server');
+	const child = await startChild('raw-server.ts', [dataDir, migrationsDir, setupId], /^listening \d+/, 'raw baseline server');
 	const port = Number(child.readyLine.split(' ')[1]);
 	return { ...child, wsUrl: `ws://127.0.0.1:${port}/` };
 }
 
 export function startBareDb(dataDir: string): Promise<Child> {
-	return startChild('bare-db.ts', [dataDir], /^ready/, 'bare database process');
+	return startChild('bare-db.ts', [dataDir, migrationsDir], /^ready/, 'bare database process');
 }

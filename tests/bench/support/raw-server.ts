@@ -2,15 +2,14 @@
 // message and stores its frames with one multi-row INSERT into PGlite, acking after the commit.
 // No validation, no detectors, no live bus. The database is opened with the app's openDatabase,
 // so the frames table and PGlite's durability settings are the app's own.
-// Usage: node --import tsx raw-server.ts <data dir> <setup id>; prints "listening <port>".
+// Usage: raw-server <data dir> <migrations dir> <setup id> (bundled by children.ts); prints "listening <port>".
 import { randomUUID } from 'node:crypto';
 import type { PGlite } from '@electric-sql/pglite';
 import { WebSocketServer } from 'ws';
 import { openDatabase } from '../../../src/lib/server/db';
-import { migrationsDir } from './seed';
 
-const [dataDir, setupId] = process.argv.slice(2);
-if (!dataDir || !setupId) throw new Error('usage: raw-server.ts <data dir> <setup id>');
+const [dataDir, migrationsDir, setupId] = process.argv.slice(2);
+if (!dataDir || !migrationsDir || !setupId) throw new Error('usage: raw-server <data dir> <migrations dir> <setup id>');
 
 const { db, close } = await openDatabase(dataDir, migrationsDir);
 const pg = (db as unknown as { $client: PGlite }).$client;

@@ -1,0 +1,119 @@
+// Ways to insert a batch of frames into PGlite's frames table, at 1 frame (live) and 500 frames
+// (bulk) per statement, each as a ratio to the fastest of its batch size in the same run:
+//  - drizzle's query builder, .values(rows), as the writer does today;
+//  - one jsonb parameter unpacked by jsonb_to_recordset;
+//  - a multi-row INSERT whose text is built once per batch size and cached (positional parameters);
+//  - drizzle's .prepare() over sql.placeholder values, built once per batch size.
+// Every strategy starts from wire frames, so converting them is part of its cost.
+// Run: npx tsx tests/bench/insert-strategies.bench.ts. Nothing here is asserted.
+import { performance } from 'node:perf_hooks';
+import type { PGlite } from '@electric-sql/pglite';
+import { sql } from 'drizzle-orm';
+import { openDatabase, type Db } from '../../src/lib/server/db';
+import { frames as framesTable } from '../../src/lib/server/db/schema';
+import { frameToRow } from '../../src/lib/server/ingest/frame-rows';
+import type { Frame } from '../../src/lib/protocol/frame';
+import { sizeFromEnv } from './support/env';
+import { benchFrame } from './support/frames';
+import { copySeed, migrationsDir, seedTemplate } from './support/seed';
+import { median } from './support/stats';
+
+/** Frames per timing at each batch size (so small batches do not take all day). */
+const FRAMES_BULK = sizeFromEnv('BENCH_INSERT_FRAMES_BULK', 10_000);
+const FRAMES_LIVE = sizeFromEnv('BENCH_INSERT_FRAMES_LIVE', 300);
+const REPEATS = sizeFromEnv('BENCH_REPEATS', 5);
+const T0_MS = Date.UTC(2026, 0, 1);
+
+const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'] as const;
+const RECORD_TYPES = 'run_id text, seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
+const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
+
+type Insert = (runId: string, batch: Frame[]) => Promise<unknown>;
+
+function strategies(db: Db, pg: PGlite): Record<string, Insert> {
+	const textCache = new Map<number, string>();
+	const preparedCache = new Map<number, { execute(values: Record<string, unknown>): Promise<unknown> }>();
+	const FIELDS = ['runId', 'seq', 't', 'windowS', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwellS', 'escapes', 'vacuumS', 'transitions', 'amp', 'aux', 'iq'] as const;
+	return {
+		'drizzle .values(rows)': (runId, batch) => db.insert(framesTable).values(batch.map((f) => frameToRow(runId, f))).onConflictDoNothing(),
+		'jsonb_to_recordset($1::jsonb)': (runId, batch) => {
+			const records = batch.map((f) => ({ run_id: runId, seq: f.seq, t: Math.round(f.t), window_s: f.window_s, shots: f.shots, vacuum: f.vacuum, counts: f.counts, lock: f.lock, switches: f.switches, dwell_s: f.dwell_s, escapes: f.escapes, vacuum_s: f.vacuum_s, transitions: f.transitions ?? null, amp: f.amp ?? null, aux: f.aux ?? null, iq: f.iq ?? null }));
+			return pg.query(`INSERT INTO frames (${COLUMNS.join(',')}) SELECT ${COLUMNS.join(',')} FROM jsonb_to_recordset($1::jsonb) AS x(${RECORD_TYPES}) ON CONFLICT DO NOTHING`, [JSON.stringify(records)]);
+		},
+		'cached multi-row text, $n parameters': (runId, batch) => {
+			let text = textCache.get(batch.length);
+			if (!text) {
+				const tuples = batch.map((_, r) => `(${COLUMNS.map((__, c) => `$${r * COLUMNS.length + c + 1}`).join(',')})`);
+				text = `INSERT INTO frames (${COLUMNS.join(',')}) VALUES ${tuples.join(',')} ON CONFLICT DO NOTHING`;
+				textCache.set(batch.length, text);
+			}
+			const params: unknown[] = [];
+			for (const f of batch) params.push(runId, f.seq, Math.round(f.t), f.window_s, f.shots, f.vacuum, json(f.counts), f.lock, f.switches, f.dwell_s, f.escapes, f.vacuum_s, json(f.transitions), f.amp ?? null, json(f.aux), json(f.iq));
+			return pg.query(text, params);
+		},
+		'drizzle .prepare() with placeholders': (runId, batch) => {
+			let prepared = preparedCache.get(batch.length);
+			if (!prepared) {
+				const rows = batch.map((_, r) => Object.fromEntries(FIELDS.map((k) => [k, sql.placeholder(`${k}${r}`)])));
+				prepared = db.insert(framesTable).values(rows as never).onConflictDoNothing().prepare(`frames_${batch.length}`);
+				preparedCache.set(batch.length, prepared);
+			}
+			const values: Record<string, unknown> = {};
+			batch.forEach((f, r) => {
+				const row = frameToRow(runId, f) as Record<string, unknown>;
+				for (const k of FIELDS) values[`${k}${r}`] = row[k] ?? null;
+			});
+			return prepared.execute(values);
+		}
+	};
+}
+
+async function main() {
+	console.log(`insert strategies: ${FRAMES_BULK} frames in batches of 500, ${FRAMES_LIVE} frames one per statement; ${REPEATS} repeats, strategies in rotating order; median frames/s`);
+	const template = await seedTemplate();
+	const seed = copySeed(template, 'insert');
+	const { db, close } = await openDatabase(seed.dataDir, migrationsDir);
+	const pg = (db as unknown as { $client: PGlite }).$client;
+	try {
+		const all = strategies(db, pg);
+		const names = Object.keys(all);
+		const runIds = new Map<string, string>();
+		const nextSeq = new Map<string, number>();
+		for (const [i, name] of names.entries()) {
+			const id = `insert-bench-${i}`;
+			await pg.query('INSERT INTO runs (id, setup_id, key, name, "order", states, mode_ghz) VALUES ($1, $2, $3, $4, 3, 6, 5)', [id, seed.setupId, id, name]);
+			runIds.set(name, id);
+			nextSeq.set(name, 0);
+		}
+		const time = async (name: string, batchSize: number, total: number) => {
+			const batches: Frame[][] = [];
+			let seq = nextSeq.get(name)!;
+			for (let done = 0; done < total; done += batchSize) batches.push(Array.from({ length: batchSize }, () => (seq++, benchFrame(seq, T0_MS + seq * 1000)) as Frame));
+			nextSeq.set(name, seq);
+			const t0 = performance.now();
+			for (const b of batches) await all[name](runIds.get(name)!, b);
+			return (batches.length * batchSize) / ((performance.now() - t0) / 1000);
+		};
+		for (const [batchSize, total] of [[500, FRAMES_BULK], [1, FRAMES_LIVE]] as const) {
+			for (const name of names) await time(name, batchSize, Math.min(total, batchSize * 10)); // warm-up
+			const rates = new Map<string, number[]>(names.map((n) => [n, []]));
+			for (let rep = 0; rep < REPEATS; rep++) {
+				const order = names.map((_, i) => names[(i + rep) % names.length]);
+				for (const name of order) rates.get(name)!.push(await time(name, batchSize, total));
+			}
+			const medians = names.map((n) => ({ name: n, rate: median(rates.get(n)!) }));
+			const best = Math.max(...medians.map((m) => m.rate));
+			console.log(`### Frame INSERT strategies, ${batchSize} frame${batchSize > 1 ? 's' : ''} per statement\n`);
+			console.log('| strategy | frames/s | ratio to the fastest |\n| --- | ---: | ---: |');
+			for (const m of medians) console.log(`| ${m.name} | ${Math.round(m.rate).toLocaleString('en-US')} | ${(m.rate / best).toFixed(2)} |`);
+			console.log('');
+		}
+	} finally {
+		await close();
+	}
+}
+
+main().catch((e) => {
+	console.error(e);
+	process.exit(1);
+});
