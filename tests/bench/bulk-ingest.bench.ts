@@ -4,7 +4,7 @@
 // Run: npm run build && npx tsx tests/bench/bulk-ingest.bench.ts. Nothing here is asserted.
 import { performance } from 'node:perf_hooks';
 import { BenchAgent } from './support/agent';
-import { startRawServer } from './support/children';
+import { RAW_BASELINE, startRawServer } from './support/children';
 import { sizeFromEnv } from './support/env';
 import { copySeed, seedTemplate } from './support/seed';
 import { startAppServer } from './support/server';
@@ -69,7 +69,7 @@ async function main() {
 		printTable('Bulk ingest, 500 frames per message (frames/s, median)', [
 			{ measure: 'one run', app: median(single.app), baseline: median(single.raw), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } },
 			{ measure: `${RUNS} runs at once`, app: median(many.app), baseline: median(many.raw), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } }
-		], ['baseline: bare ws + JSON.parse + one multi-row INSERT per message into PGlite (opened by openDatabase), ack after commit']);
+		], [`baseline: ${RAW_BASELINE}`]);
 	} finally {
 		await app.stop();
 		await raw.stop();

@@ -7,7 +7,7 @@
 import { performance } from 'node:perf_hooks';
 import { parseDetectorRules } from '../../src/lib/detect/rules';
 import { BenchAgent } from './support/agent';
-import { startRawServer } from './support/children';
+import { RAW_BASELINE, startRawServer } from './support/children';
 import { sizeFromEnv, sleep } from './support/env';
 import { benchFrame, GOOD_LOCK, LOW_LOCK, type BenchFrame } from './support/frames';
 import { copySeed, seedTemplate } from './support/seed';
@@ -129,7 +129,7 @@ async function main() {
 			],
 			[
 				`incidents received: ${incidentLatency.length} of ${triggers} lock drops sent to the app`,
-				'baseline: the raw ceiling’s ack latency for the same triggering frames at the same load (bare ws + JSON.parse + INSERT into PGlite, ack after commit)'
+				`baseline: the raw ceiling’s ack latency for the same triggering frames at the same load (${RAW_BASELINE})`
 			]
 		);
 	} finally {

@@ -3,7 +3,8 @@
 //  - drizzle's query builder, .values(rows), as the writer does today;
 //  - one jsonb parameter unpacked by jsonb_to_recordset;
 //  - a multi-row INSERT whose text is built once per batch size and cached (positional parameters);
-//  - drizzle's .prepare() over sql.placeholder values, built once per batch size.
+//  - drizzle's .prepare() over sql.placeholder values, built once per batch size;
+//  - and, for reference, the app's own insertFrames (src/lib/server/ingest/frame-insert.ts).
 // Every strategy starts from wire frames, so converting them is part of its cost.
 // Run: npx tsx tests/bench/insert-strategies.bench.ts. Nothing here is asserted.
 import { performance } from 'node:perf_hooks';
@@ -11,6 +12,7 @@ import type { PGlite } from '@electric-sql/pglite';
 import { sql } from 'drizzle-orm';
 import { openDatabase, type Db } from '../../src/lib/server/db';
 import { frames as framesTable } from '../../src/lib/server/db/schema';
+import { insertFrames } from '../../src/lib/server/ingest/frame-insert';
 import { frameToRow } from '../../src/lib/server/ingest/frame-rows';
 import type { Frame } from '../../src/lib/protocol/frame';
 import { sizeFromEnv } from './support/env';
@@ -64,7 +66,8 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 				for (const k of FIELDS) values[`${k}${r}`] = row[k] ?? null;
 			});
 			return prepared.execute(values);
-		}
+		},
+		'app insertFrames (frame-insert.ts)': (runId, batch) => insertFrames(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })))
 	};
 }
 
@@ -72,8 +75,7 @@ async function main() {
 	console.log(`insert strategies: ${FRAMES_BULK} frames in batches of 500, ${FRAMES_LIVE} frames one per statement; ${REPEATS} repeats, strategies in rotating order; median frames/s`);
 	const template = await seedTemplate();
 	const seed = copySeed(template, 'insert');
-	const { db, close } = await openDatabase(seed.dataDir, migrationsDir);
-	const pg = (db as unknown as { $client: PGlite }).$client;
+	const { db, client: pg, close } = await openDatabase(seed.dataDir, migrationsDir);
 	try {
 		const all = strategies(db, pg);
 		const names = Object.keys(all);

@@ -4,7 +4,7 @@
 // read after the server's periodic maintenance has run. Same run, A/B interleaved, medians.
 // Run: npm run build && npx tsx tests/bench/live-commit.bench.ts. Nothing here is asserted.
 import { BenchAgent } from './support/agent';
-import { startRawServer } from './support/children';
+import { RAW_BASELINE, startRawServer } from './support/children';
 import { sizeFromEnv, sleep } from './support/env';
 import { benchFrame } from './support/frames';
 import { copySeed, folderBytes, migrationsDir, seedTemplate } from './support/seed';
@@ -112,7 +112,7 @@ async function main() {
 			],
 			[
 				`raw frame row: ${rawRow.row.toFixed(0)} B (pg_column_size), ${rawRow.tablePerRow.toFixed(0)} B per row in the frames table with its index and TOAST (pg_total_relation_size / rows), baseline database`,
-				'baseline: bare ws + JSON.parse + one INSERT per message into PGlite (opened by openDatabase), ack after commit',
+				`baseline: ${RAW_BASELINE}`,
 				`growth: apparent size of every file in the data folder, read ${SETTLE_MS / 1000} s after the last ack`
 			]
 		);

@@ -67,13 +67,17 @@ export async function startChild(script: string, args: string[], readyPattern: R
 	};
 }
 
+/** The raw ceiling's INSERT: 'values' (multi-row VALUES, the default) or 'jsonb' (jsonb_to_recordset). */
+export const RAW_INSERT = process.env.BENCH_RAW_INSERT || 'values';
+export const RAW_BASELINE = `bare ws + JSON.parse + one ${RAW_INSERT === 'jsonb' ? 'jsonb_to_recordset' : 'multi-row VALUES'} INSERT per message into PGlite (opened by openDatabase), ack after commit`;
+
 export interface RawServer extends Child {
 	wsUrl: string;
 }
 
 /** The raw ceiling (see raw-server.ts) on its own copy of the seeded folder. */
 export async function startRawServer(dataDir: string, setupId: string): Promise<RawServer> {
-	const child = await startChild('raw-server.ts', [dataDir, migrationsDir, setupId], /^listening \d+/, 'raw baseline server');
+	const child = await startChild('raw-server.ts', [dataDir, migrationsDir, setupId, RAW_INSERT], /^listening \d+/, 'raw baseline server');
 	const port = Number(child.readyLine.split(' ')[1]);
 	return { ...child, wsUrl: `ws://127.0.0.1:${port}/` };
 }

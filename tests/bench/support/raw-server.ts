@@ -2,17 +2,19 @@
 // message and stores its frames with one multi-row INSERT into PGlite, acking after the commit.
 // No validation, no detectors, no live bus. The database is opened with the app's openDatabase,
 // so the frames table and PGlite's durability settings are the app's own.
-// Usage: raw-server <data dir> <migrations dir> <setup id> (bundled by children.ts); prints "listening <port>".
+// The INSERT is a multi-row VALUES list with positional parameters, or with `jsonb` one jsonb
+// parameter unpacked by jsonb_to_recordset (the faster of the two in insert-strategies.bench.ts).
+// Usage: raw-server <data dir> <migrations dir> <setup id> [values|jsonb] (bundled by children.ts);
+// prints "listening <port>".
 import { randomUUID } from 'node:crypto';
-import type { PGlite } from '@electric-sql/pglite';
 import { WebSocketServer } from 'ws';
 import { openDatabase } from '../../../src/lib/server/db';
 
-const [dataDir, migrationsDir, setupId] = process.argv.slice(2);
-if (!dataDir || !migrationsDir || !setupId) throw new Error('usage: raw-server <data dir> <migrations dir> <setup id>');
+const [dataDir, migrationsDir, setupId, insertKind = 'values'] = process.argv.slice(2);
+if (!dataDir || !migrationsDir || !setupId) throw new Error('usage: raw-server <data dir> <migrations dir> <setup id> [values|jsonb]');
+if (insertKind !== 'values' && insertKind !== 'jsonb') throw new Error(`insert kind: expected values or jsonb, got "${insertKind}"`);
 
-const { db, close } = await openDatabase(dataDir, migrationsDir);
-const pg = (db as unknown as { $client: PGlite }).$client;
+const { client: pg, close } = await openDatabase(dataDir, migrationsDir);
 
 const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'];
 
@@ -36,7 +38,17 @@ interface WireFrame {
 
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
 
+const RECORD_TYPES = 'seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
+
 async function insertFrames(runId: string, frames: WireFrame[]) {
+	if (insertKind === 'jsonb') {
+		const rest = COLUMNS.slice(1);
+		await pg.query(
+			`INSERT INTO frames (${COLUMNS.join(',')}) SELECT $1, ${rest.map((c) => `x.${c}`).join(',')} FROM jsonb_to_recordset($2::jsonb) AS x(${RECORD_TYPES}) ON CONFLICT DO NOTHING`,
+			[runId, JSON.stringify(frames.map((f) => ({ ...f, t: Math.round(f.t) })))]
+		);
+		return;
+	}
 	const params: unknown[] = [];
 	const tuples: string[] = [];
 	for (const f of frames) {
