@@ -1,8 +1,11 @@
 // The live case, one frame per message: the commit cost (send → ack) of the real built server
-// against the raw ceiling (bare ws + JSON.parse + one INSERT per message into PGlite), and how much
-// the data folder grows per frame over the first and the second half of GROWTH_FRAMES frames,
-// read after the server's periodic maintenance has run. Same run, A/B interleaved, medians.
+// against the raw ceiling (bare ws + JSON.parse + one INSERT per message into PGlite), A/B
+// interleaved in the same run, medians; and how much the app's data folder grows per frame over
+// the first and the second half of GROWTH_FRAMES frames, read after the server's periodic
+// maintenance has run, beside the raw baseline's stored bytes per frame row.
 // Run: npm run build && npx tsx tests/bench/live-commit.bench.ts. Nothing here is asserted.
+import { sql } from 'drizzle-orm';
+import { openDatabase } from '../../src/lib/server/db';
 import { BenchAgent } from './support/agent';
 import { RAW_BASELINE, startRawServer } from './support/children';
 import { sizeFromEnv, sleep } from './support/env';
@@ -11,15 +14,15 @@ import { copySeed, folderBytes, migrationsDir, seedTemplate } from './support/se
 import { MAINTENANCE_S, startAppServer } from './support/server';
 import { median, percentile } from './support/stats';
 import { printTable } from './support/table';
-import { openDatabase } from '../../src/lib/server/db';
-import { sql } from 'drizzle-orm';
 
 /** Commits timed per side, in blocks alternating app / raw. */
 const COMMIT_SAMPLES = sizeFromEnv('BENCH_LIVE_COMMITS', 400);
 const BLOCK = 50;
-/** Frames over which the data folder's growth is read (in two halves), sent by GROWTH_RUNS runs at once, each waiting for its ack. */
+/** Frames over which the app's data folder growth is read (in two halves), sent by GROWTH_RUNS runs at once, each waiting for its ack. */
 const GROWTH_FRAMES = sizeFromEnv('BENCH_LIVE_GROWTH_FRAMES', 20_000);
 const GROWTH_RUNS = sizeFromEnv('BENCH_LIVE_GROWTH_RUNS', 10);
+/** Frames stored in the raw baseline (in bulk) before its bytes per row are read. */
+const RAW_ROWS = 5_000;
 /** Wait before each size reading: one maintenance period and a margin. */
 const SETTLE_MS = (MAINTENANCE_S + 3) * 1000;
 const T0_MS = Date.UTC(2026, 0, 1);
@@ -31,15 +34,14 @@ async function oneByOne(agent: BenchAgent, from: number, count: number): Promise
 	return times;
 }
 
-/** GROWTH_RUNS agents each sending its share of `frames` one by one; returns bytes/frame the folder grew by. */
-async function grow(agents: BenchAgent[], next: number[], frames: number, dataDir: string, before: number) {
-	const share = Math.ceil(frames / agents.length);
-	await Promise.all(agents.map(async (a, i) => (await oneByOne(a, next[i], share), (next[i] += share))));
-	await sleep(SETTLE_MS);
-	const after = folderBytes(dataDir);
-	return { perFrame: (after - before) / (share * agents.length), after };
+interface FolderSize {
+	all: number;
+	withoutWal: number;
 }
 
+const sizeOf = (dir: string): FolderSize => ({ all: folderBytes(dir), withoutWal: folderBytes(dir, ['pg_wal']) });
+
+/** Bytes a frame row takes in the baseline database: the row itself, and the table with its index and TOAST per row. */
 async function rowSize(dataDir: string) {
 	const { db, close } = await openDatabase(dataDir, migrationsDir);
 	try {
@@ -54,7 +56,7 @@ async function rowSize(dataDir: string) {
 }
 
 async function main() {
-	console.log(`live commits: ${COMMIT_SAMPLES} timed commits per side in blocks of ${BLOCK}; growth over ${GROWTH_FRAMES} frames from ${GROWTH_RUNS} runs, 1 frame/message; size read ${SETTLE_MS / 1000} s after the last frame (maintenance every ${MAINTENANCE_S} s)`);
+	console.log(`live commits: ${COMMIT_SAMPLES} timed commits per side in blocks of ${BLOCK}; app folder growth over ${GROWTH_FRAMES} frames from ${GROWTH_RUNS} runs, 1 frame/message, read ${SETTLE_MS / 1000} s after the last ack (maintenance every ${MAINTENANCE_S} s)`);
 	const template = await seedTemplate();
 	const appSeed = copySeed(template, 'live-app');
 	const rawSeed = copySeed(template, 'live-raw');
@@ -75,45 +77,41 @@ async function main() {
 		}
 		await appAgent.close();
 		await rawAgent.close();
-
-		// Growth: both sides take the first half, then both the second half.
-		const open = (url: string, token: string, side: string) =>
-			Promise.all(Array.from({ length: GROWTH_RUNS }, (_, i) => BenchAgent.open(url, token, `live-growth-${side}-${i}`)));
-		const appRuns = await open(app.wsUrl, appSeed.token, 'app');
-		const rawRuns = await open(raw.wsUrl, rawSeed.token, 'raw');
-		const appNext = appRuns.map(() => 0);
-		const rawNext = rawRuns.map(() => 0);
-		await sleep(SETTLE_MS);
-		let appBytes = folderBytes(appSeed.dataDir);
-		let rawBytes = folderBytes(rawSeed.dataDir);
-		const halves: { app: number; raw: number }[] = [];
-		for (let half = 0; half < 2; half++) {
-			const a = await grow(appRuns, appNext, GROWTH_FRAMES / 2, appSeed.dataDir, appBytes);
-			const r = await grow(rawRuns, rawNext, GROWTH_FRAMES / 2, rawSeed.dataDir, rawBytes);
-			appBytes = a.after;
-			rawBytes = r.after;
-			halves.push({ app: a.perFrame, raw: r.perFrame });
-			console.log(`half ${half + 1}: app ${a.perFrame.toFixed(0)} B/frame, raw ${r.perFrame.toFixed(0)} B/frame`);
-		}
-		await Promise.all([...appRuns, ...rawRuns].map((a) => a.close()));
-		await app.stop();
+		const rawRows = await BenchAgent.open(raw.wsUrl, rawSeed.token, 'live-rows');
+		await rawRows.stream(0, RAW_ROWS, 500, 4, T0_MS);
+		await rawRows.close();
 		await raw.stop();
 		const rawRow = await rowSize(rawSeed.dataDir);
 
-		const half = GROWTH_FRAMES / 2;
+		// Growth of the app's folder, read after maintenance at the start, the middle and the end.
+		const runs = await Promise.all(Array.from({ length: GROWTH_RUNS }, (_, i) => BenchAgent.open(app.wsUrl, appSeed.token, `live-growth-${i}`)));
+		const share = Math.ceil(GROWTH_FRAMES / 2 / GROWTH_RUNS);
+		const half = share * GROWTH_RUNS;
+		await sleep(SETTLE_MS);
+		const sizes: FolderSize[] = [sizeOf(appSeed.dataDir)];
+		for (let h = 0; h < 2; h++) {
+			await Promise.all(runs.map((a) => oneByOne(a, h * share, share)));
+			await sleep(SETTLE_MS);
+			sizes.push(sizeOf(appSeed.dataDir));
+			console.log(`after ${(h + 1) * half} frames: folder ${(sizes[h + 1].all / 1e6).toFixed(1)} MB, without pg_wal ${(sizes[h + 1].withoutWal / 1e6).toFixed(1)} MB`);
+		}
+		await Promise.all(runs.map((a) => a.close()));
+		const perFrame = (h: number, k: keyof FolderSize) => (sizes[h + 1][k] - sizes[h][k]) / half / 1024;
+
 		printTable(
 			'Live ingest, one frame per message',
 			[
 				{ measure: 'commit cost, send → ack, median', app: median(times.app), baseline: median(times.raw), unit: 'ms', target: { on: 'ratio', atMost: 2 } },
 				{ measure: 'commit cost, send → ack, p95', app: percentile(times.app, 0.95), baseline: percentile(times.raw, 0.95), unit: 'ms', target: { on: 'none' } },
-				{ measure: `folder growth per frame, frames 1–${half}`, app: halves[0].app / 1024, baseline: halves[0].raw / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
-				{ measure: `folder growth per frame, frames ${half + 1}–${GROWTH_FRAMES}`, app: halves[1].app / 1024, baseline: halves[1].raw / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
-				{ measure: 'growth per frame, second half ÷ first half', app: halves[1].app / halves[0].app, baseline: halves[1].raw / halves[0].raw, unit: '', target: { on: 'none' } }
+				{ measure: `folder growth per frame, frames 1–${half}`, app: perFrame(0, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
+				{ measure: `folder growth per frame, frames ${half + 1}–${2 * half}`, app: perFrame(1, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
+				{ measure: `… without pg_wal, frames 1–${half}`, app: perFrame(0, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } },
+				{ measure: `… without pg_wal, frames ${half + 1}–${2 * half}`, app: perFrame(1, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } }
 			],
 			[
-				`raw frame row: ${rawRow.row.toFixed(0)} B (pg_column_size), ${rawRow.tablePerRow.toFixed(0)} B per row in the frames table with its index and TOAST (pg_total_relation_size / rows), baseline database`,
-				`baseline: ${RAW_BASELINE}`,
-				`growth: apparent size of every file in the data folder, read ${SETTLE_MS / 1000} s after the last ack`
+				`commit cost baseline: ${RAW_BASELINE}`,
+				`growth baseline: the raw baseline's frames table with its index and TOAST per row (pg_total_relation_size / rows, ${RAW_ROWS} rows); one raw row is ${rawRow.row.toFixed(0)} B (pg_column_size)`,
+				`growth: apparent size of every file in the app's data folder, read ${SETTLE_MS / 1000} s after the last ack; pg_wal grows in 16 MB segments up to max_wal_size, so it moves in steps`
 			]
 		);
 	} finally {

@@ -58,12 +58,12 @@ export function copySeed(template: Seeded, label: string): Seeded {
 	return { ...template, dataDir };
 }
 
-/** Bytes of every file under dir (apparent sizes), like `du --apparent-size -b`. */
-export function folderBytes(dir: string): number {
+/** Bytes of every file under dir (apparent sizes), like `du --apparent-size -b`; folders named in `skip` are left out. */
+export function folderBytes(dir: string, skip: readonly string[] = []): number {
 	let total = 0;
 	for (const entry of readdirSync(dir, { withFileTypes: true })) {
 		const p = path.join(dir, entry.name);
-		if (entry.isDirectory()) total += folderBytes(p);
+		if (entry.isDirectory()) total += skip.includes(entry.name) ? 0 : folderBytes(p, skip);
 		else if (entry.isFile()) total += statSync(p).size;
 	}
 	return total;
