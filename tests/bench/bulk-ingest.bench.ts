@@ -12,14 +12,15 @@ import { median } from './support/stats';
 import { printTable } from './support/table';
 
 /** Frames of the single-run trial. */
-const SINGLE_FRAMES = sizeFromEnv('BENCH_BULK_FRAMES', 30_000);
+const SINGLE_FRAMES = sizeFromEnv('BENCH_BULK_FRAMES', 10_000);
 /** Runs streaming at once in the concurrent trial, and frames each of them sends. */
 const RUNS = sizeFromEnv('BENCH_BULK_RUNS', 10);
-const FRAMES_PER_RUN = sizeFromEnv('BENCH_BULK_FRAMES_PER_RUN', 5_000);
+const FRAMES_PER_RUN = sizeFromEnv('BENCH_BULK_FRAMES_PER_RUN', 2_000);
 const PER_MESSAGE = 500;
 /** Unacked messages an agent keeps in flight. */
 const IN_FLIGHT = sizeFromEnv('BENCH_BULK_IN_FLIGHT', 4);
-const REPEATS = sizeFromEnv('BENCH_REPEATS', 5);
+/** Short trials, many pairs: on a shared machine the load changes from one minute to the next. */
+const REPEATS = sizeFromEnv('BENCH_REPEATS', 9);
 const T0_MS = Date.UTC(2026, 0, 1);
 
 interface Target {
@@ -30,8 +31,9 @@ interface Target {
 
 let trial = 0;
 
-/** The app ÷ raw ratio of each repeat, so a reader can see how much the pairs agree. */
-const pairs = (r: { app: number[]; raw: number[] }) => r.app.map((a, i) => (a / r.raw[i]).toFixed(2)).join(', ');
+/** The app ÷ raw ratio of each A/B pair: their median is the table's ratio, steadier than a ratio of medians. */
+const pairRatios = (r: { app: number[]; raw: number[] }) => r.app.map((a, i) => a / r.raw[i]);
+const pairs = (r: { app: number[]; raw: number[] }) => pairRatios(r).map((x) => x.toFixed(2)).join(', ');
 
 /** Frames per second of `runs` agents streaming `perRun` frames each at once (connecting not timed). */
 async function streamRate(target: Target, runs: number, perRun: number): Promise<number> {
@@ -70,11 +72,11 @@ async function main() {
 			console.log(`repeat ${rep + 1}: single app ${single.app.at(-1)!.toFixed(0)} raw ${single.raw.at(-1)!.toFixed(0)}; ${RUNS} runs app ${many.app.at(-1)!.toFixed(0)} raw ${many.raw.at(-1)!.toFixed(0)} frames/s`);
 		}
 		printTable('Bulk ingest, 500 frames per message (frames/s, median)', [
-			{ measure: 'one run', app: median(single.app), baseline: median(single.raw), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } },
-			{ measure: `${RUNS} runs at once`, app: median(many.app), baseline: median(many.raw), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } }
+			{ measure: 'one run', app: median(single.app), baseline: median(single.raw), ratio: median(pairRatios(single)), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } },
+			{ measure: `${RUNS} runs at once`, app: median(many.app), baseline: median(many.raw), ratio: median(pairRatios(many)), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } }
 		], [
 			`baseline: ${RAW_BASELINE}`,
-			`ratio of each A/B pair, one run: ${pairs(single)}; ${RUNS} runs: ${pairs(many)}`
+			`ratio = median of the A/B pairs' ratios; each pair, one run: ${pairs(single)}; ${RUNS} runs: ${pairs(many)}`
 		]);
 	} finally {
 		await app.stop();

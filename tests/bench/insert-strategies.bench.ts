@@ -20,10 +20,9 @@ import { benchFrame } from './support/frames';
 import { copySeed, migrationsDir, seedTemplate } from './support/seed';
 import { median } from './support/stats';
 
-/** Frames per timing at each batch size (so small batches do not take all day). */
-const FRAMES_BULK = sizeFromEnv('BENCH_INSERT_FRAMES_BULK', 10_000);
-const FRAMES_LIVE = sizeFromEnv('BENCH_INSERT_FRAMES_LIVE', 300);
-const REPEATS = sizeFromEnv('BENCH_REPEATS', 5);
+/** Rounds per batch size; in each round every strategy inserts one batch, in rotating order. */
+const ROUNDS_BULK = sizeFromEnv('BENCH_INSERT_ROUNDS_BULK', 20);
+const ROUNDS_LIVE = sizeFromEnv('BENCH_INSERT_ROUNDS_LIVE', 200);
 const T0_MS = Date.UTC(2026, 0, 1);
 
 const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'] as const;
@@ -72,7 +71,7 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 }
 
 async function main() {
-	console.log(`insert strategies: ${FRAMES_BULK} frames in batches of 500, ${FRAMES_LIVE} frames one per statement; ${REPEATS} repeats, strategies in rotating order; median frames/s`);
+	console.log(`insert strategies: ${ROUNDS_BULK} rounds of 500-frame statements, ${ROUNDS_LIVE} rounds of 1-frame statements; strategies in rotating order within each round; autocommit, PGlite as openDatabase opens it`);
 	const template = await seedTemplate();
 	const seed = copySeed(template, 'insert');
 	const { db, client: pg, close } = await openDatabase(seed.dataDir, migrationsDir);
@@ -87,27 +86,30 @@ async function main() {
 			runIds.set(name, id);
 			nextSeq.set(name, 0);
 		}
-		const time = async (name: string, batchSize: number, total: number) => {
-			const batches: Frame[][] = [];
+		/** ms one batch of `batchSize` fresh frames takes with `name`. */
+		const once = async (name: string, batchSize: number) => {
 			let seq = nextSeq.get(name)!;
-			for (let done = 0; done < total; done += batchSize) batches.push(Array.from({ length: batchSize }, () => (seq++, benchFrame(seq, T0_MS + seq * 1000)) as Frame));
+			const batch = Array.from({ length: batchSize }, () => (seq++, benchFrame(seq, T0_MS + seq * 1000)) as Frame);
 			nextSeq.set(name, seq);
 			const t0 = performance.now();
-			for (const b of batches) await all[name](runIds.get(name)!, b);
-			return (batches.length * batchSize) / ((performance.now() - t0) / 1000);
+			await all[name](runIds.get(name)!, batch);
+			return performance.now() - t0;
 		};
-		for (const [batchSize, total] of [[500, FRAMES_BULK], [1, FRAMES_LIVE]] as const) {
-			for (const name of names) await time(name, batchSize, Math.min(total, batchSize * 10)); // warm-up
-			const rates = new Map<string, number[]>(names.map((n) => [n, []]));
-			for (let rep = 0; rep < REPEATS; rep++) {
-				const order = names.map((_, i) => names[(i + rep) % names.length]);
-				for (const name of order) rates.get(name)!.push(await time(name, batchSize, total));
+		for (const [batchSize, rounds] of [[500, ROUNDS_BULK], [1, ROUNDS_LIVE]] as const) {
+			for (const name of names) for (let w = 0; w < 3; w++) await once(name, batchSize); // warm-up
+			// Statement by statement in rotation, so every strategy meets the same disk and machine load.
+			const times = new Map<string, number[]>(names.map((n) => [n, []]));
+			for (let r = 0; r < rounds; r++) {
+				for (let i = 0; i < names.length; i++) {
+					const name = names[(i + r) % names.length];
+					times.get(name)!.push(await once(name, batchSize));
+				}
 			}
-			const medians = names.map((n) => ({ name: n, rate: median(rates.get(n)!) }));
-			const best = Math.max(...medians.map((m) => m.rate));
-			console.log(`### Frame INSERT strategies, ${batchSize} frame${batchSize > 1 ? 's' : ''} per statement\n`);
+			const rates = names.map((n) => ({ name: n, rate: batchSize / (median(times.get(n)!) / 1000) }));
+			const best = Math.max(...rates.map((m) => m.rate));
+			console.log(`### Frame INSERT strategies, ${batchSize} frame${batchSize > 1 ? 's' : ''} per statement (median of ${rounds} statements each)\n`);
 			console.log('| strategy | frames/s | ratio to the fastest |\n| --- | ---: | ---: |');
-			for (const m of medians) console.log(`| ${m.name} | ${Math.round(m.rate).toLocaleString('en-US')} | ${(m.rate / best).toFixed(2)} |`);
+			for (const m of rates) console.log(`| ${m.name} | ${Math.round(m.rate).toLocaleString('en-US')} | ${(m.rate / best).toFixed(2)} |`);
 			console.log('');
 		}
 	} finally {

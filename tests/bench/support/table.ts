@@ -7,6 +7,8 @@ export interface BenchRow {
 	baseline: number;
 	/** Unit of app and baseline, shown beside the numbers. */
 	unit: string;
+	/** app ÷ baseline unless given, e.g. the median of paired ratios of interleaved trials. */
+	ratio?: number;
 	/** How the ratio or value is judged, e.g. { on: 'ratio', atLeast: 0.6 }. */
 	target: Target;
 }
@@ -42,7 +44,7 @@ export function printTable(title: string, rows: BenchRow[], notes: string[] = []
 	let failed = 0;
 	const lines = [`### ${title}`, '', '| measure | app | baseline | ratio | target | result |', '| --- | ---: | ---: | ---: | --- | --- |'];
 	for (const row of rows) {
-		const ratio = row.app / row.baseline;
+		const ratio = row.ratio ?? row.app / row.baseline;
 		const { target, verdict } = judge(row, ratio);
 		if (verdict === 'FAIL') failed++;
 		lines.push(`| ${row.measure} | ${fmt(row.app)} ${row.unit} | ${fmt(row.baseline)} ${row.unit} | ${fmt(ratio)} | ${target} | ${verdict} |`);
