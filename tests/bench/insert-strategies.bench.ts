@@ -21,8 +21,8 @@ import { copySeed, migrationsDir, seedTemplate } from './support/seed';
 import { median } from './support/stats';
 
 /** Rounds per batch size; in each round every strategy inserts one batch, in rotating order. */
-const ROUNDS_BULK = sizeFromEnv('BENCH_INSERT_ROUNDS_BULK', 20);
-const ROUNDS_LIVE = sizeFromEnv('BENCH_INSERT_ROUNDS_LIVE', 200);
+const ROUNDS_BULK = sizeFromEnv('BENCH_INSERT_ROUNDS_BULK', 60);
+const ROUNDS_LIVE = sizeFromEnv('BENCH_INSERT_ROUNDS_LIVE', 600);
 const T0_MS = Date.UTC(2026, 0, 1);
 
 const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'] as const;

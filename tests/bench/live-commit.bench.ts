@@ -60,7 +60,7 @@ async function main() {
 	const template = await seedTemplate();
 	const appSeed = copySeed(template, 'live-app');
 	const rawSeed = copySeed(template, 'live-raw');
-	const app = await startAppServer(appSeed.dataDir);
+	const app = await startAppServer(appSeed.dataDir, { PHASEWARDEN_MAINTENANCE_S: String(MAINTENANCE_S) });
 	const raw = await startRawServer(rawSeed.dataDir, rawSeed.setupId);
 	try {
 		// Commit cost: one run on each side, blocks alternating which side goes first.
