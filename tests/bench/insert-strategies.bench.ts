@@ -4,7 +4,7 @@
 //  - one jsonb parameter unpacked by jsonb_to_recordset;
 //  - a multi-row INSERT whose text is built once per batch size and cached (positional parameters);
 //  - drizzle's .prepare() over sql.placeholder values, built once per batch size;
-//  - and, for reference, the app's own insertFrames (src/lib/server/ingest/frame-insert.ts).
+//  - and, for reference, the app's own single-statement batch (src/lib/server/ingest/batch-write.ts).
 // Every strategy starts from wire frames, so converting them is part of its cost.
 // Run: npx tsx tests/bench/insert-strategies.bench.ts. Nothing here is asserted.
 import { performance } from 'node:perf_hooks';
@@ -12,7 +12,7 @@ import type { PGlite } from '@electric-sql/pglite';
 import { sql } from 'drizzle-orm';
 import { openDatabase, type Db } from '../../src/lib/server/db';
 import { frames as framesTable } from '../../src/lib/server/db/schema';
-import { insertFrames } from '../../src/lib/server/ingest/frame-insert';
+import { writeBatch } from '../../src/lib/server/ingest/batch-write';
 import { frameToRow } from '../../src/lib/server/ingest/frame-rows';
 import type { Frame } from '../../src/lib/protocol/frame';
 import { sizeFromEnv } from './support/env';
@@ -66,7 +66,9 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 			});
 			return prepared.execute(values);
 		},
-		'app insertFrames (frame-insert.ts)': (runId, batch) => insertFrames(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })))
+		// The app's statement: frames, rollups and the run's progress in one (batch-write.ts).
+		'app writeBatch (batch-write.ts)': (runId, batch) =>
+			writeBatch(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })), [], null, 0)
 	};
 }
 

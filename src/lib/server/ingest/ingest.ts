@@ -15,6 +15,7 @@ import { runFacts, runInfoFor } from '../runs/detector-context';
 import { endRun, findOrCreateRun, publicRun } from '../runs/service';
 import { findActiveToken, markTokenUsed } from '../setups/tokens';
 import { AgentConnection } from './connection';
+import { GroupCommitter } from './group-commit';
 import { DEFAULT_SNAPSHOT_POLICY, RunWriter, type CommitResult, type SnapshotPolicy } from './run-writer';
 
 export const AGENT_STREAM_PATH = '/api/agent/stream';
@@ -33,6 +34,7 @@ export class Ingest {
 	private opening = new Map<string, Promise<RunWriter>>();
 	private connections = new Set<AgentConnection>();
 	private timers: NodeJS.Timeout[] = [];
+	private committer: GroupCommitter;
 
 	constructor(
 		private db: Db,
@@ -41,6 +43,7 @@ export class Ingest {
 		silenceCheckMs: number,
 		private snapshotPolicy: SnapshotPolicy = DEFAULT_SNAPSHOT_POLICY
 	) {
+		this.committer = new GroupCommitter(db);
 		this.timers.push(setInterval(() => this.heartbeat(), HEARTBEAT_MS));
 		this.timers.push(setInterval(() => void this.tickClock(Date.now()), silenceCheckMs));
 		// Runs that went quiet still get their last frames' detector state saved.
@@ -111,6 +114,7 @@ export class Ingest {
 		const [rules, info] = await Promise.all([getSetupRules(this.db, run.setupId), runInfoFor(this.db, run)]);
 		const writer = await RunWriter.open(
 			this.db,
+			this.committer,
 			run,
 			rules,
 			info,

@@ -15,13 +15,12 @@ import { rollupFrames } from '../../rollup/rollup';
 import type { Db } from '../db';
 import { frameGaps, runs } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
-import { RollupCache, writeRollups } from '../rollups/store';
+import { mergeWithStored, RollupCache, upsertRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';
-import { insertFrames, type FrameToStore } from './frame-insert';
+import { ROLLUP_ROWS_PER_STATEMENT, writeBatch, type FrameToStore, type RunProgress } from './batch-write';
+import type { GroupCommitter, Tx } from './group-commit';
 import { SeqGaps, type GapChange, type SeqGap } from './seq-gaps';
 import { restoreEngine, saveSnapshot } from './snapshots';
-
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 /** Frames written in one transaction; larger bursts are split so other work gets a turn between. */
 const BATCH = 500;
@@ -61,6 +60,7 @@ export class RunWriter {
 
 	private constructor(
 		private db: Db,
+		private committer: GroupCommitter,
 		public run: RunRow,
 		public engine: DetectorEngine,
 		private gaps: SeqGaps,
@@ -72,6 +72,7 @@ export class RunWriter {
 	/** The writer of a run: its engine restored from the last snapshot and the frames after it. */
 	static async open(
 		db: Db,
+		committer: GroupCommitter,
 		run: RunRow,
 		rules: unknown,
 		info: RunInfo,
@@ -86,7 +87,7 @@ export class RunWriter {
 				.from(frameGaps)
 				.where(eq(frameGaps.runId, run.id))
 		]);
-		const writer = new RunWriter(db, run, engine, new SeqGaps(gapRows), policy, onCommit, onFailure);
+		const writer = new RunWriter(db, committer, run, engine, new SeqGaps(gapRows), policy, onCommit, onFailure);
 		// Frames replayed since the snapshot count towards the next one.
 		writer.fedSinceSnapshot = replayed;
 		return writer;
@@ -200,35 +201,49 @@ export class RunWriter {
 			fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
 		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: false }))];
 		const last = fresh.at(-1);
+		const progress: RunProgress | null = last
+			? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock }
+			: null;
 
 		try {
-			const { recorded, storedCount } = await this.db.transaction(async (tx) => {
-				const storedSeqs = await insertFrames(tx, this.run.id, new Date(receivedAt), toStore);
-				const storedFrames = toStore.filter((s) => storedSeqs.has(s.frame.seq)).map((s) => s.frame);
-				await writeRollups(tx, this.run.id, rollupFrames(storedFrames, (f) => expectedCounts(this.engine.expect(f))), this.rollups);
+			const deltas = rollupFrames(
+				toStore.map((s) => s.frame),
+				(f) => expectedCounts(this.engine.expect(f))
+			);
+			const rollups = await mergeWithStored(this.db, this.run.id, deltas, this.rollups);
+			const fits = rollups.length <= ROLLUP_ROWS_PER_STATEMENT;
+			const extra = events.length > 0 || filled.length > 0 || opened.length > 0 || snapshotDue || !fits;
+			const gapCount = this.gaps.count;
+			// Only the database is touched in here: the group committer may run it twice.
+			const work = async (tx: Tx | Db) => {
+				const storedSeqs = await writeBatch(tx, this.run.id, new Date(receivedAt), toStore, fits ? rollups : [], progress, gapCount);
+				if (!extra) return { storedSeqs, recorded: { opened: [], resolved: [] } };
+				if (!fits) await upsertRollups(tx as Db, this.run.id, rollups);
 				await writeGapChanges(tx, this.run.id, filled, opened);
 				const recorded = await recordEvents(tx, this.run, events);
-				await tx
-					.update(runs)
-					.set({
-						...(last
-							? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock }
-							: {}),
-						frameCount: sql`${runs.frameCount} + ${storedSeqs.size}`,
-						gapCount: this.gaps.count
-					})
-					.where(eq(runs.id, this.run.id));
 				if (snapshotDue) await saveSnapshot(tx, this.run.id, this.engine);
-				return { recorded, storedCount: storedSeqs.size };
-			});
+				return { storedSeqs, recorded };
+			};
+			const { storedSeqs, recorded } = await this.committer.run(work, { singleStatement: !extra });
+			if (storedSeqs.size !== toStore.length) {
+				// The writer's gap list said these seqs were missing, yet some were stored already: only
+				// another writer of the same run could do that. Its rollups may now count them twice.
+				console.error(
+					`run ${this.run.id}: ${toStore.length - storedSeqs.size} frames believed missing were already stored; ` +
+						'the rollups of this span may be off (npm run rollups:rebuild fixes them); restarting this writer'
+				);
+				this.broken = true;
+			}
+			for (const r of rollups) this.rollups.remember(r);
 			if (snapshotDue) this.snapshotSaved(receivedAt);
 			this.run = {
 				...this.run,
-				...(last ? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock } : {}),
-				frameCount: this.run.frameCount + storedCount,
-				gapCount: this.gaps.count
+				...(progress ?? {}),
+				frameCount: this.run.frameCount + storedSeqs.size,
+				gapCount
 			};
-			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh, run: this.run, ...recorded });
+			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh.filter((f) => storedSeqs.has(f.seq)), run: this.run, ...recorded });
+			if (this.broken) throw new Error(`run ${this.run.id}: writer out of step with the database`);
 		} catch (err) {
 			// Nothing was committed, but the engine and the gap list moved on: this writer is done, and
 			// the next one restores both from the database.
@@ -238,7 +253,7 @@ export class RunWriter {
 	}
 }
 
-async function writeGapChanges(tx: Tx, runId: string, filled: GapChange[], opened: SeqGap[]) {
+async function writeGapChanges(tx: Tx | Db, runId: string, filled: GapChange[], opened: SeqGap[]) {
 	// In order: a range split by one late frame may be split again by the next.
 	for (const change of filled) {
 		await tx.delete(frameGaps).where(and(eq(frameGaps.runId, runId), eq(frameGaps.fromSeq, change.removed.fromSeq)));

@@ -132,11 +132,12 @@ const replaceAll: Record<string, SQL> = Object.fromEntries(
 );
 
 /**
- * Adds rollup deltas to the run's stored rows. Call it inside the transaction that stores the
- * frames the deltas came from (and only with frames that were actually inserted), so rollups and
- * frames commit or roll back together.
+ * The rows that adding `deltas` to the run's stored rollups gives: stored rows come from the
+ * cache when it holds them, else from one read. Changes nothing (neither the database nor the
+ * cache), so a caller can write the rows in any transaction and retry it; after the commit it
+ * calls `cache.remember` on the rows.
  */
-export async function writeRollups(tx: Db, runId: string, deltas: Rollup[], cache?: RollupCache): Promise<void> {
+export async function mergeWithStored(db: Db, runId: string, deltas: Rollup[], cache?: RollupCache): Promise<Rollup[]> {
 	// Deltas of one key are summed first: one upsert may not touch a row twice.
 	const combined = new Map<string, Rollup>();
 	for (const d of deltas) {
@@ -144,7 +145,7 @@ export async function writeRollups(tx: Db, runId: string, deltas: Rollup[], cach
 		const prev = combined.get(key);
 		combined.set(key, prev ? mergeRollups(prev, d) : d);
 	}
-	if (combined.size === 0) return;
+	if (combined.size === 0) return [];
 
 	const stored = new Map<string, Rollup>();
 	const missing: Rollup[] = [];
@@ -153,22 +154,36 @@ export async function writeRollups(tx: Db, runId: string, deltas: Rollup[], cach
 		if (held) stored.set(key, held);
 		else missing.push(d);
 	}
-	if (missing.length > 0) for (const [key, r] of await selectStored(tx, runId, missing)) stored.set(key, r);
+	if (missing.length > 0) for (const [key, r] of await selectStored(db, runId, missing)) stored.set(key, r);
 
 	// Sorted so that concurrent writers would take row locks in one order.
-	const merged = [...combined.entries()]
+	return [...combined.entries()]
 		.map(([key, d]) => {
 			const prev = stored.get(key);
 			return prev ? mergeRollups(prev, d) : d;
 		})
 		.sort((a, b) => a.resolution_s - b.resolution_s || a.bucket_t - b.bucket_t);
+}
 
+/** Stores merged rows (from mergeWithStored), replacing what is there. */
+export async function upsertRollups(tx: Db, runId: string, merged: Rollup[]): Promise<void> {
 	for (const part of chunks(merged, ROWS_PER_STATEMENT)) {
 		await tx
 			.insert(frameRollups)
 			.values(part.map((r) => rollupToRow(runId, r)))
 			.onConflictDoUpdate({ target: [frameRollups.runId, frameRollups.resolutionS, frameRollups.bucketT], set: replaceAll });
 	}
+}
+
+/**
+ * Adds rollup deltas to the run's stored rows. Call it inside the transaction that stores the
+ * frames the deltas came from (and only with frames that were actually inserted), so rollups and
+ * frames commit or roll back together.
+ */
+export async function writeRollups(tx: Db, runId: string, deltas: Rollup[], cache?: RollupCache): Promise<void> {
+	const merged = await mergeWithStored(tx, runId, deltas, cache);
+	if (merged.length === 0) return;
+	await upsertRollups(tx, runId, merged);
 	if (cache) for (const r of merged) cache.remember(r);
 }
 
