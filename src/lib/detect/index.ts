@@ -23,7 +23,8 @@ export {
 	type StatusNote,
 	type StatusNoteCode,
 	type StatusOptions,
-	type EngineView
+	type EngineView,
+	type StatusRun
 } from './status';
 export { designFor, bandOf, type CusumDesign } from './cusum-design';
 export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';

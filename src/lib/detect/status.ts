@@ -9,10 +9,8 @@
 // changed state shape costs a detail, not a wrong "inactive".
 import type { JsonValue } from './events';
 import { measuredTemperature, TEMPERATURE_AUX, type RateProcess } from './expected';
-import { isSymmetric } from './occupancy-imbalance';
 import { fmt } from './rate-evidence';
 import type { DetectorRules, RuleKind } from './rules';
-import type { ParsedRunInfo } from './run-info';
 
 /** The fixed detector order, the same as the engine's. */
 export const DETECTOR_KINDS: readonly RuleKind[] = ['lock_lost', 'agent_silent', 'switching_burst', 'rate_drift', 'occupancy_imbalance', 'aux_limit'];
@@ -67,10 +65,21 @@ export type DetectorStatus = {
 	detail?: { [key: string]: JsonValue };
 };
 
+/**
+ * The facts about a run (or a setup) that decide what can run: the engine's run information, or
+ * for a setup its number of states, nominal temperature and saved models (presence is what counts).
+ */
+export type StatusRun = {
+	states: number;
+	nominal_mK?: number;
+	rateModels?: { switching?: { nominal_mK?: number } | null; escape?: { nominal_mK?: number } | null };
+	operatingPoint?: { detuning?: number };
+};
+
 /** What the engine holds (its snapshot, or the same object read in place): only read here. */
 export type EngineView = {
 	rules: DetectorRules;
-	run: ParsedRunInfo;
+	run: StatusRun;
 	lastSeq: number;
 	ended: boolean;
 	detectors: Record<string, unknown>;
@@ -118,12 +127,19 @@ function active(kind: RuleKind, notes: StatusNote[], detail?: DetectorStatus['de
 
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 
-function nominalOf(run: ParsedRunInfo, p: RateProcess): number | null {
+/** The occupancy rule's symmetry, as occupancy-imbalance.ts decides it: 'auto' means zero or unknown detuning. */
+function symmetricHere(rule: DetectorRules['occupancy_imbalance'], run: StatusRun): boolean {
+	if (rule.symmetric !== 'auto') return rule.symmetric;
+	const detuning = run.operatingPoint?.detuning;
+	return detuning === undefined || detuning === 0;
+}
+
+function nominalOf(run: StatusRun, p: RateProcess): number | null {
 	return run.nominal_mK ?? run.rateModels?.[p]?.nominal_mK ?? null;
 }
 
 /** The processes a rate detector would predict for under this rule, and which of them have a model. */
-function rateProcesses(kind: 'switching_burst' | 'rate_drift', rules: DetectorRules, run: ParsedRunInfo) {
+function rateProcesses(kind: 'switching_burst' | 'rate_drift', rules: DetectorRules, run: StatusRun) {
 	const wanted: RateProcess[] =
 		kind === 'rate_drift'
 			? [...(rules.rate_drift.processes ?? ['switching'])]
@@ -147,7 +163,7 @@ function noRateModel(kind: RuleKind, wanted: RateProcess[]): DetectorStatus {
  * Whether each rule can run on a setup with these rules and rate models (run information without
  * frames): the rules page's view. The same checks open `detectorStatus`.
  */
-export function ruleStatus(rules: DetectorRules, run: ParsedRunInfo): DetectorStatus[] {
+export function ruleStatus(rules: DetectorRules, run: StatusRun): DetectorStatus[] {
 	return DETECTOR_KINDS.map((kind) => {
 		const blocked = configStatus(kind, rules, run);
 		if (blocked) return blocked;
@@ -156,7 +172,7 @@ export function ruleStatus(rules: DetectorRules, run: ParsedRunInfo): DetectorSt
 }
 
 /** An inactive status when the configuration alone stops the detector, else null. */
-function configStatus(kind: RuleKind, rules: DetectorRules, run: ParsedRunInfo): DetectorStatus | null {
+function configStatus(kind: RuleKind, rules: DetectorRules, run: StatusRun): DetectorStatus | null {
 	const rule = rules[kind];
 	if (!rule?.enabled) return inactive(kind, 'disabled', 'Turned off in the rules.');
 	switch (kind) {
@@ -175,7 +191,7 @@ function configStatus(kind: RuleKind, rules: DetectorRules, run: ParsedRunInfo):
 }
 
 /** What an active detector cannot see, from the configuration alone. */
-function configNotes(kind: RuleKind, rules: DetectorRules, run: ParsedRunInfo): StatusNote[] {
+function configNotes(kind: RuleKind, rules: DetectorRules, run: StatusRun): StatusNote[] {
 	const notes: StatusNote[] = [];
 	if (kind === 'switching_burst' || kind === 'rate_drift') {
 		const { missing } = rateProcesses(kind, rules, run);
@@ -233,7 +249,7 @@ function runStatus(kind: RuleKind, engine: EngineView, options: StatusOptions): 
 }
 
 /** A rate prediction without a measured temperature stands at the nominal one. */
-function temperatureNote(run: ParsedRunInfo, processes: RateProcess[], options: StatusOptions): StatusNote | null {
+function temperatureNote(run: StatusRun, processes: RateProcess[], options: StatusOptions): StatusNote | null {
 	const frame = options.lastFrame;
 	if (!frame || measuredTemperature({ aux: frame.aux ?? undefined }) !== null) return null;
 	const nominal = processes.map((p) => nominalOf(run, p)).find((t) => t !== null);
@@ -291,7 +307,7 @@ function occupancyStatus(engine: EngineView, state: Record<string, unknown> | nu
 	const { rules, run } = engine;
 	const rule = rules.occupancy_imbalance;
 	const K = run.states;
-	const symmetric = isSymmetric(rule, run);
+	const symmetric = symmetricHere(rule, run);
 	const h = horizonOf(state?.horizon);
 	// The layout occupancy-imbalance.ts writes: K counts, switches, escapes, unexpected, pair switches, seq, t.
 	if (!h || h.width !== K + 6 || h.sums.length < K + 4) {
