@@ -294,9 +294,12 @@ function rateDriftStatus(engine: EngineView, state: Record<string, unknown> | nu
 		if (n === null) continue;
 		steps[p] = n;
 		if (n === 0) {
+			const block = rec(rec(state?.[p])?.block);
+			const pooled = num(block?.windows);
+			const so_far = pooled === null ? '' : ` (${plural(pooled, 'window')} pooled so far)`;
 			notes.push({
 				code: 'first_step',
-				text: `The ${p} chart is pooling windows until their predicted count reaches ${fmt(rules.rate_drift.minExpectedPerStep)} for its first step.`
+				text: `The ${p} chart is pooling windows until their predicted count reaches ${fmt(rules.rate_drift.minExpectedPerStep)} for its first step${so_far}.`
 			});
 		}
 	}

@@ -41,10 +41,16 @@ async function storedEngine(db: Db, run: RunRow): Promise<DetectorEngine> {
 	return engine;
 }
 
-export async function runDetectorStatus(db: Db, ingest: Pick<Ingest, 'engineStatus'> | null, run: RunRow): Promise<DetectorStatus[]> {
-	const lastFrame = await latestFrameAux(db, run.id);
-	const live = ingest?.engineStatus(run.id, { lastFrame }) ?? null;
-	if (live) return live;
-	const engine = await storedEngine(db, run);
-	return engine.status({ lastFrame, runEnded: run.status === 'ended' });
+/** Null when it cannot be worked out (logged): the run page then says so, and the rest of the run still loads. */
+export async function runDetectorStatus(db: Db, ingest: Pick<Ingest, 'engineStatus'> | null, run: RunRow): Promise<DetectorStatus[] | null> {
+	try {
+		const lastFrame = await latestFrameAux(db, run.id);
+		const live = ingest?.engineStatus(run.id, { lastFrame }) ?? null;
+		if (live) return live;
+		const engine = await storedEngine(db, run);
+		return engine.status({ lastFrame, runEnded: run.status === 'ended' });
+	} catch (err) {
+		console.error(`run ${run.id}: detector status unavailable`, err);
+		return null;
+	}
 }

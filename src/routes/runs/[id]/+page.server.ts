@@ -11,7 +11,7 @@ interface RunDetail {
 	incidents: Incident[];
 	gaps: Gap[];
 	occupancy: Occupancy | null;
-	detectors: DetectorStatus[];
+	detectors: DetectorStatus[] | null;
 }
 
 export const load: PageServerLoad = async ({ fetch, params, depends }) => {
