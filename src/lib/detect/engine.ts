@@ -15,6 +15,7 @@ import { switchingBurst } from './switching-burst';
 import { rateDrift } from './rate-drift';
 import { occupancyImbalance } from './occupancy-imbalance';
 import { auxLimit } from './aux-limit';
+import { detectorStatus, type DetectorStatus, type StatusOptions } from './status';
 
 /** Every detector, in the fixed order that makes the order of events deterministic. */
 const DETECTORS = [lockLost, agentSilent, switchingBurst, rateDrift, occupancyImbalance, auxLimit] as const;
@@ -145,6 +146,14 @@ export class DetectorEngine {
 	 */
 	expect(frame: Frame): FrameExpectation | undefined {
 		return this.#rates.switching || this.#rates.escape ? expectFrame(frame, this.#rates) : undefined;
+	}
+
+	/**
+	 * Whether each detector can see, and why not (status.ts), in the fixed order. Reads the state
+	 * in place, without copying it, so it is cheap enough to call after every commit.
+	 */
+	status(options: StatusOptions = {}): DetectorStatus[] {
+		return detectorStatus(this.#s, options);
 	}
 
 	/** Highest seq fed so far (0 before the first frame). */

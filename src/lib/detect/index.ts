@@ -13,6 +13,19 @@ export { occupancyImbalance, isSymmetric, type OccupancyImbalanceState } from '.
 export { auxLimit, AUX_EVIDENCE_WINDOWS, type AuxLimitState } from './aux-limit';
 export { expectFrame, compileRates, measuredTemperature, TEMPERATURE_AUX, type FrameExpectation, type ProcessExpectation } from './expected';
 export { windowAlpha, budgetWindows } from './budget';
+export {
+	detectorStatus,
+	ruleStatus,
+	DETECTOR_KINDS,
+	DETECTOR_TITLES,
+	type DetectorStatus,
+	type StatusCode,
+	type StatusNote,
+	type StatusNoteCode,
+	type StatusOptions,
+	type EngineView,
+	type StatusRun
+} from './status';
 export { designFor, bandOf, type CusumDesign } from './cusum-design';
 export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
 export {

@@ -4,6 +4,7 @@ import type { IncomingMessage } from 'node:http';
 import type { Duplex } from 'node:stream';
 import { eq } from 'drizzle-orm';
 import { WebSocketServer } from 'ws';
+import type { DetectorStatus, StatusOptions } from '../../detect/status';
 import type { Hello } from '../../protocol/messages';
 import { HARD_MAX_MESSAGE_BYTES } from '../../protocol/messages';
 import type { Db } from '../db';
@@ -93,7 +94,7 @@ export class Ingest {
 		const ended = await endRun(this.db, writer.run.id, reason);
 		if (ended) {
 			writer.run = ended;
-			this.bus.publish({ type: 'run', runId: ended.id, setupId: ended.setupId, run: publicRun(ended) });
+			this.bus.publish({ type: 'run', runId: ended.id, setupId: ended.setupId, run: publicRun(ended), detectors: writer.engine.status({ runEnded: true }) });
 		}
 		this.writers.delete(writer.run.id);
 	}
@@ -134,8 +135,11 @@ export class Ingest {
 		for (const conn of this.connections) {
 			if (conn.runId === run.id) conn.send({ type: 'ack', seq: result.lastSeq });
 		}
-		if (result.stored.length) this.bus.publish({ type: 'frames', runId: run.id, setupId: run.setupId, frames: result.stored });
-		this.bus.publish({ type: 'run', runId: run.id, setupId: run.setupId, run: publicRun(run) });
+		const newest = result.stored.at(-1);
+		if (newest) this.bus.publish({ type: 'frames', runId: run.id, setupId: run.setupId, frames: result.stored });
+		// With a new frame the detectors' status may have changed; it is cheap to read (no copy).
+		const detectors = newest ? this.engineStatus(run.id, { lastFrame: newest }) : null;
+		this.bus.publish({ type: 'run', runId: run.id, setupId: run.setupId, run: publicRun(run), ...(detectors ? { detectors } : {}) });
 		for (const i of result.opened) {
 			this.bus.publish({ type: 'incident', runId: run.id, setupId: run.setupId, incident: i });
 			this.hooks.incidentOpened(i);
@@ -144,6 +148,13 @@ export class Ingest {
 			this.bus.publish({ type: 'incident', runId: run.id, setupId: run.setupId, incident: i });
 			this.hooks.incidentResolved(i);
 		}
+	}
+
+	/** Whether each detector of a run can see, from its live writer's engine; null when no writer holds the run. */
+	engineStatus(runId: string, options: StatusOptions = {}): DetectorStatus[] | null {
+		const writer = this.writers.get(runId);
+		if (!writer || writer.failed) return null;
+		return writer.engine.status({ ...options, runEnded: writer.run.status === 'ended' });
 	}
 
 	private failed(writer: RunWriter, err: Error) {

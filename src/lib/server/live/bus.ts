@@ -3,7 +3,7 @@ import { EventEmitter } from 'node:events';
 
 export type LiveEvent =
 	| { type: 'frames'; runId: string; setupId: string; frames: unknown[] }
-	| { type: 'run'; runId: string; setupId: string; run: unknown }
+	| { type: 'run'; runId: string; setupId: string; run: unknown; detectors?: unknown }
 	| { type: 'incident'; runId: string; setupId: string; incident: unknown };
 
 export class LiveBus {

@@ -1,4 +1,5 @@
 // Live run page: the run with its incidents and gaps, and its latest frames; incident actions.
+import type { DetectorStatus } from '$lib/detect/status';
 import { apiGet } from '$lib/ui/api';
 import type { Frame, Gap, Incident, Occupancy, Run } from '$lib/ui/types';
 import { incidentActions } from '../../incidents/incident-actions.server';
@@ -10,6 +11,7 @@ interface RunDetail {
 	incidents: Incident[];
 	gaps: Gap[];
 	occupancy: Occupancy | null;
+	detectors: DetectorStatus[] | null;
 }
 
 export const load: PageServerLoad = async ({ fetch, params, depends }) => {
