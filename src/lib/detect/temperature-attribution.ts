@@ -6,29 +6,34 @@
 // Fisher scoring), with Wald intervals from the inverse Fisher information at the maximum — as in
 // McCullagh & Nelder, Generalized Linear Models (2nd ed. 1989), ch. 2 and 6; written from memory.
 // Each window i has count y_i ~ Poisson(μ_i) with
-//     ln μ_i = ln E_i + α + β·(x_i − x_nom),   x = 1/(2n̄(f,T)+1),
-// E_i the count predicted at the nominal temperature, x_nom the temperature term there. The
-// activation law ln W = ln W0 − A·s·x makes β the measured −A·s (whatever the model's A), and α
-// the log rate factor at the nominal temperature that no temperature change accounts for. Counts
-// per window are small, so the fit uses the Poisson likelihood and not least squares on log
-// ratios (ln 0 is undefined and small-count log ratios are biased).
+//     ln μ_i = ln E_i + α + β·(x_i − x_nom) [+ γ·s_i],   x = 1/(2n̄(f,T)+1),
+// E_i the count predicted at the nominal temperature, x_nom the temperature term there, s_i = 1
+// for windows in the span of the excess. The activation law ln W = ln W0 − A·s·x makes β the
+// measured −A·s, whatever the model's A: the fit tests the temperature, not the model's law.
+// The residual constant is γ, the rate factor that began with the excess beyond what the
+// temperature accounts for, when windows before the span hold counts; otherwise α, the factor at
+// the nominal temperature. Counts per window are small, so the fit uses the Poisson likelihood,
+// not least squares on log ratios (ln 0 is undefined and small-count log ratios are biased).
+// The temperature's share is β·(mean of x − x_nom over the span, weighted by E) divided by
+// ln(observed/E) over the span; its interval is β's Wald interval scaled (the observed excess is
+// taken as given).
 //
-// Hand-written because no well-known npm package fits a Poisson GLM with an offset; with two
-// coefficients Newton's method is a few lines and its 2×2 inverse is exact.
+// Hand-written because no well-known npm package fits a Poisson GLM with an offset; with two or
+// three coefficients Newton's method is a few lines.
 //
 // The verdict (true = explained by temperature, false = not, null = cannot tell):
-//   - the temperature never left the nominal point (the term's largest departure moves the modelled
-//     rate by less than minLogSpread): the temperature cannot carry an excess → false when the
-//     constant alone differs significantly from 1, else null;
-//   - the temperature barely varied (the term's spread moves the modelled rate by less than
-//     minLogSpread) but away from the nominal point: the constant and the temperature term are not
-//     separable → null;
-//   - otherwise: true when the temperature term carries the excess (its share's interval excludes
-//     0 and the share is at least largeShare) AND the residual constant's interval contains 1 AND
-//     excludes the constant that would explain the whole excess the chart saw (so the constant is
-//     measured, not merely imprecise); false when the residual constant's interval excludes 1, or
-//     the share's interval lies below largeShare; else null.
+//   - the temperature barely moved (its term's spread moves the modelled rate, by the model's A,
+//     by less than minLogSpread): it cannot account for a change. At the nominal point: false when
+//     the span's rate differs significantly from the nominal prediction. Elsewhere: false when the
+//     rate stepped significantly at the span's start, else null (a wrong temperature law and a
+//     constant factor fit equally well);
+//   - otherwise the fit: false when the residual constant's interval excludes 1, or the share's
+//     interval lies below largeShare; true when the share's interval excludes 0, the share is at
+//     least largeShare, and the residual's interval contains 1 but excludes the constant that
+//     would explain the whole excess the chart saw (so it is measured, not merely imprecise);
+//     else null.
 import jStat from 'jstat';
+import { solveLinearSystem } from '../stats/linear-system';
 
 export type AttributionWindow = {
 	/** Events counted in the window. */
@@ -69,6 +74,7 @@ export type AttributionReason =
 	| 'no_fit'
 	| 'temperature_at_nominal'
 	| 'temperature_steady'
+	| 'changed_at_steady_temperature'
 	| 'temperature_carries_it'
 	| 'residual_constant'
 	| 'temperature_share_small'
@@ -79,6 +85,12 @@ export type Interval = [number, number];
 export type TemperatureAttribution = {
 	explainedByTemperature: boolean | null;
 	reason: AttributionReason;
+	/**
+	 * What the residual constant is: the rate factor that began with the span, beyond what the
+	 * temperature accounts for (when windows before the span hold counts), or the factor at the
+	 * nominal temperature (the span alone).
+	 */
+	residualBasis: 'change_at_span_start' | 'nominal_intercept' | null;
 	windowsFitted: number;
 	spanWindowsFitted: number;
 	/** ln(observed/predicted at nominal) over the span's fitted windows. */
@@ -89,7 +101,7 @@ export type TemperatureAttribution = {
 	/** β·(mean x − x_nom over the span) / logExcess: the share of the log excess the temperature carries. */
 	temperatureShare: number | null;
 	temperatureShareInterval: Interval | null;
-	/** e^α: the rate factor at the nominal temperature that the temperature does not account for. */
+	/** The residual constant as a rate factor (see residualBasis). */
 	residualRatio: number | null;
 	residualInterval: Interval | null;
 	/** Modelled log-rate spread and largest departure from nominal of the temperature term. */
@@ -100,96 +112,120 @@ export type TemperatureAttribution = {
 };
 
 export type PoissonFit = {
-	coefficients: [number, number];
-	/** Inverse Fisher information at the maximum. */
-	covariance: [[number, number], [number, number]];
+	coefficients: number[];
+	/** Inverse Fisher information at the maximum, row by row. */
+	covariance: number[][];
 	iterations: number;
 };
 
 const MAX_ITERATIONS = 100;
+/** Counts before the span needed to measure a change at its start. */
+const MIN_COUNTS_BEFORE = 10;
+/** Beyond this correlation a step at the span's start and the temperature term are not separable. */
+const MAX_STEP_CORRELATION = 0.98;
 const TOLERANCE = 1e-10;
 
 /**
- * Maximum-likelihood fit of ln μ_i = offset_i + b0 + b1·z_i for Poisson counts y_i, by Newton's
- * method with step halving. Null when the maximum is not finite (all counts zero, no spread in z,
- * or counts that separate perfectly) — there is then nothing to report.
+ * Maximum-likelihood fit of ln μ_i = offset_i + Σ_j b_j·X_ij for Poisson counts y_i (X's rows
+ * are the windows' covariates; include a column of ones for a constant), by Newton's method with
+ * step halving, started from the constant-only fit. Null when the maximum is not finite or not
+ * unique (all counts zero, collinear columns, counts that separate perfectly).
  */
-export function fitPoissonLogLinear(y: readonly number[], offset: readonly number[], z: readonly number[]): PoissonFit | null {
+export function fitPoissonGlm(y: readonly number[], offset: readonly number[], X: readonly (readonly number[])[]): PoissonFit | null {
 	const n = y.length;
-	if (offset.length !== n || z.length !== n) throw new RangeError(`y, offset and z must have the same length, got ${n}, ${offset.length}, ${z.length}`);
+	if (offset.length !== n || X.length !== n) throw new RangeError(`y, offset and X must have the same length, got ${n}, ${offset.length}, ${X.length}`);
+	if (n === 0) throw new RangeError('the fit needs at least one window');
+	const p = X[0].length;
 	for (let i = 0; i < n; i++) {
 		if (!(Number.isInteger(y[i]) && y[i] >= 0)) throw new RangeError(`y[${i}] must be a whole number ≥ 0, got ${y[i]}`);
-		if (!Number.isFinite(offset[i]) || !Number.isFinite(z[i])) throw new RangeError(`offset[${i}] and z[${i}] must be finite, got ${offset[i]}, ${z[i]}`);
+		if (!Number.isFinite(offset[i])) throw new RangeError(`offset[${i}] must be finite, got ${offset[i]}`);
+		if (X[i].length !== p || !X[i].every(Number.isFinite)) throw new RangeError(`X[${i}] must hold ${p} finite covariates`);
 	}
-	let sumY = 0;
-	let sumE = 0;
-	for (let i = 0; i < n; i++) {
-		sumY += y[i];
-		sumE += Math.exp(offset[i]);
-	}
+	const sumY = y.reduce((s, v) => s + v, 0);
 	if (sumY === 0) return null;
-	const logLik = (b0: number, b1: number) => {
+	const eta = (b: readonly number[], i: number) => {
+		let e = offset[i];
+		for (let j = 0; j < p; j++) e += b[j] * X[i][j];
+		return e;
+	};
+	const logLik = (b: readonly number[]) => {
 		let l = 0;
 		for (let i = 0; i < n; i++) {
-			const eta = offset[i] + b0 + b1 * z[i];
-			l += y[i] * eta - Math.exp(eta);
+			const e = eta(b, i);
+			l += y[i] * e - Math.exp(e);
 		}
 		return l;
 	};
-	let b0 = Math.log(sumY / sumE);
-	let b1 = 0;
-	let current = logLik(b0, b1);
+	// Start: ordinary least squares is not available for ln 0, so start from b = 0 and let the
+	// halving keep every step uphill.
+	let b = new Array<number>(p).fill(0);
+	let current = logLik(b);
 	for (let it = 1; it <= MAX_ITERATIONS; it++) {
-		let u0 = 0, u1 = 0, i00 = 0, i01 = 0, i11 = 0;
-		for (let i = 0; i < n; i++) {
-			const mu = Math.exp(offset[i] + b0 + b1 * z[i]);
-			const r = y[i] - mu;
-			u0 += r;
-			u1 += r * z[i];
-			i00 += mu;
-			i01 += mu * z[i];
-			i11 += mu * z[i] * z[i];
-		}
-		const det = i00 * i11 - i01 * i01;
-		if (!(det > 1e-12 * i00 * i11)) return null; // no spread in z: b1 is not identified
-		let d0 = (i11 * u0 - i01 * u1) / det;
-		let d1 = (i00 * u1 - i01 * u0) / det;
-		let next = logLik(b0 + d0, b1 + d1);
-		for (let halvings = 0; !(next >= current) && halvings < 30; halvings++) {
-			d0 /= 2;
-			d1 /= 2;
-			next = logLik(b0 + d0, b1 + d1);
+		const { score, information } = scoreAndInformation(y, offset, X, b, eta);
+		const step = solveLinearSystem(information, score, p);
+		if (!step || !step.every(Number.isFinite)) return null;
+		let scale = 1;
+		let next = logLik(b.map((v, j) => v + step[j]));
+		for (let halvings = 0; !(next >= current) && halvings < 40; halvings++) {
+			scale /= 2;
+			next = logLik(b.map((v, j) => v + scale * step[j]));
 		}
 		if (!(next >= current - 1e-12 * Math.abs(current))) return null;
-		b0 += d0;
-		b1 += d1;
+		b = b.map((v, j) => v + scale * step[j]);
 		current = next;
-		if (Math.abs(d0) < TOLERANCE * (1 + Math.abs(b0)) && Math.abs(d1) < TOLERANCE * (1 + Math.abs(b1))) {
-			const covariance = fisherInverse(y, offset, z, b0, b1);
-			if (!covariance) return null;
-			return { coefficients: [b0, b1], covariance, iterations: it };
+		if (step.every((d, j) => Math.abs(scale * d) < TOLERANCE * (1 + Math.abs(b[j])))) {
+			const { information: info } = scoreAndInformation(y, offset, X, b, eta);
+			const covariance: number[][] = Array.from({ length: p }, () => new Array<number>(p).fill(0));
+			for (let j = 0; j < p; j++) {
+				const unit = new Float64Array(p);
+				unit[j] = 1;
+				const col = solveLinearSystem(info, unit, p);
+				if (!col || !col.every(Number.isFinite)) return null;
+				for (let k = 0; k < p; k++) covariance[k][j] = col[k];
+			}
+			if (!covariance.every((row, j) => row[j] > 0)) return null;
+			return { coefficients: b, covariance, iterations: it };
 		}
 	}
 	return null;
 }
 
-function fisherInverse(y: readonly number[], offset: readonly number[], z: readonly number[], b0: number, b1: number): PoissonFit['covariance'] | null {
-	let i00 = 0, i01 = 0, i11 = 0;
+/** U = Xᵀ(y − μ) and the Fisher information XᵀWX with W = diag(μ) (canonical link). */
+function scoreAndInformation(y: readonly number[], offset: readonly number[], X: readonly (readonly number[])[], b: readonly number[], eta: (b: readonly number[], i: number) => number) {
+	const p = b.length;
+	const score = new Float64Array(p);
+	const information = new Float64Array(p * p);
 	for (let i = 0; i < y.length; i++) {
-		const mu = Math.exp(offset[i] + b0 + b1 * z[i]);
-		i00 += mu;
-		i01 += mu * z[i];
-		i11 += mu * z[i] * z[i];
+		const mu = Math.exp(eta(b, i));
+		const row = X[i];
+		for (let j = 0; j < p; j++) {
+			score[j] += (y[i] - mu) * row[j];
+			for (let k = 0; k < p; k++) information[j * p + k] += mu * row[j] * row[k];
+		}
 	}
-	const det = i00 * i11 - i01 * i01;
-	if (!(det > 0) || !Number.isFinite(det)) return null;
-	return [
-		[i11 / det, -i01 / det],
-		[-i01 / det, i00 / det]
-	];
+	return { score, information };
 }
 
 const sorted = (a: number, b: number): Interval => (a <= b ? [a, b] : [b, a]);
+
+/** Weighted correlation of two columns (weights w). */
+function correlation(a: readonly number[], b: readonly number[], w: readonly number[]): number {
+	let sw = 0, ma = 0, mb = 0;
+	for (let i = 0; i < w.length; i++) {
+		sw += w[i];
+		ma += w[i] * a[i];
+		mb += w[i] * b[i];
+	}
+	ma /= sw;
+	mb /= sw;
+	let saa = 0, sbb = 0, sab = 0;
+	for (let i = 0; i < w.length; i++) {
+		saa += w[i] * (a[i] - ma) ** 2;
+		sbb += w[i] * (b[i] - mb) ** 2;
+		sab += w[i] * (a[i] - ma) * (b[i] - mb);
+	}
+	return saa > 0 && sbb > 0 ? sab / Math.sqrt(saa * sbb) : 1;
+}
 
 export function attributeToTemperature(input: AttributionInput): TemperatureAttribution {
 	const { x_nominal, confidence } = input;
@@ -201,6 +237,7 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 	const z = jStat.normal.inv(0.5 + confidence / 2, 0, 1);
 	const fitted = input.windows.filter((w) => w.expectedNominal > 0 && Number.isFinite(w.x));
 	const span = fitted.filter((w) => w.inSpan);
+	const before = fitted.filter((w) => !w.inSpan);
 	const slope = input.modelSlope > 0 ? input.modelSlope : 1;
 	let xMin = Infinity, xMax = -Infinity, departure = 0;
 	for (const w of fitted) {
@@ -208,16 +245,16 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 		xMax = Math.max(xMax, w.x);
 		departure = Math.max(departure, Math.abs(w.x - x_nominal));
 	}
-	let spanY = 0, spanE = 0, spanDE = 0;
-	for (const w of span) {
-		spanY += w.count;
-		spanE += w.expectedNominal;
-		spanDE += w.expectedNominal * (w.x - x_nominal);
-	}
+	const sum = (ws: readonly AttributionWindow[], f: (w: AttributionWindow) => number) => ws.reduce((s, w) => s + f(w), 0);
+	const spanY = sum(span, (w) => w.count);
+	const spanE = sum(span, (w) => w.expectedNominal);
+	const beforeY = sum(before, (w) => w.count);
+	const beforeE = sum(before, (w) => w.expectedNominal);
 	const logExcess = spanY > 0 && spanE > 0 ? Math.log(spanY / spanE) : null;
 	const base: TemperatureAttribution = {
 		explainedByTemperature: null,
 		reason: 'no_temperature',
+		residualBasis: null,
 		windowsFitted: fitted.length,
 		spanWindowsFitted: span.length,
 		logExcess,
@@ -232,55 +269,80 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 		iterations: 0
 	};
 	if (span.length === 0) return base;
-	const sumY = fitted.reduce((s, w) => s + w.count, 0);
-	if (sumY === 0) return { ...base, reason: 'no_counts' };
+	if (spanY + beforeY === 0) return { ...base, reason: 'no_counts' };
+	// A change that began with the span can be told from the windows before it when they hold counts.
+	const withBefore = beforeY >= MIN_COUNTS_BEFORE;
+	const ratioInterval = (logValue: number, se: number): Interval => [Math.exp(logValue - z * se), Math.exp(logValue + z * se)];
+	const excludesOne = (i: Interval) => i[0] > 1 || i[1] < 1;
 
-	if (base.logDeparture < minLogSpread) {
-		// The temperature stayed at the nominal point: only the constant can carry an excess.
-		const sumE = fitted.reduce((s, w) => s + w.expectedNominal, 0);
-		const a = Math.log(sumY / sumE);
-		const se = 1 / Math.sqrt(sumY); // Fisher information of α is Σμ̂ = Σy
-		const residualInterval: Interval = [Math.exp(a - z * se), Math.exp(a + z * se)];
-		const significant = residualInterval[0] > 1 || residualInterval[1] < 1;
-		return {
-			...base,
-			reason: 'temperature_at_nominal',
-			explainedByTemperature: significant ? false : null,
-			temperatureShare: 0,
-			residualRatio: Math.exp(a),
-			residualInterval
-		};
+	if (base.logSpread < minLogSpread) {
+		// The temperature did not move: it cannot account for a change. Ratios of sums are the
+		// maximum-likelihood fits here (a constant, or a step at the span's start), with
+		// Fisher variances 1/Σy per group.
+		if (base.logDeparture < minLogSpread && spanY > 0) {
+			const a = Math.log(spanY / spanE);
+			const residualInterval = ratioInterval(a, 1 / Math.sqrt(spanY));
+			return {
+				...base,
+				reason: 'temperature_at_nominal',
+				residualBasis: 'nominal_intercept',
+				explainedByTemperature: excludesOne(residualInterval) ? false : null,
+				temperatureShare: 0,
+				residualRatio: Math.exp(a),
+				residualInterval
+			};
+		}
+		if (withBefore && spanY > 0) {
+			const g = Math.log(spanY / spanE) - Math.log(beforeY / beforeE);
+			const residualInterval = ratioInterval(g, Math.sqrt(1 / spanY + 1 / beforeY));
+			return {
+				...base,
+				reason: excludesOne(residualInterval) ? 'changed_at_steady_temperature' : 'temperature_steady',
+				residualBasis: 'change_at_span_start',
+				explainedByTemperature: excludesOne(residualInterval) ? false : null,
+				temperatureShare: 0,
+				residualRatio: Math.exp(g),
+				residualInterval
+			};
+		}
+		return { ...base, reason: 'temperature_steady' };
 	}
-	if (base.logSpread < minLogSpread) return { ...base, reason: 'temperature_steady' };
 
-	const fit = fitPoissonLogLinear(
+	const d = fitted.map((w) => w.x - x_nominal);
+	const s = fitted.map((w) => (w.inSpan ? 1 : 0));
+	// A step at the span's start that coincides with a step of the temperature cannot be told
+	// from it: then the constant is the one at the nominal temperature.
+	const useStep = withBefore && Math.abs(correlation(d, s, fitted.map((w) => w.expectedNominal))) < MAX_STEP_CORRELATION;
+	const fit = fitPoissonGlm(
 		fitted.map((w) => w.count),
 		fitted.map((w) => Math.log(w.expectedNominal)),
-		fitted.map((w) => w.x - x_nominal)
+		fitted.map((w, i) => (useStep ? [1, d[i], s[i]] : [1, d[i]]))
 	);
 	if (!fit) return { ...base, reason: 'no_fit' };
-	const [a, b] = fit.coefficients;
-	const seA = Math.sqrt(fit.covariance[0][0]);
+	const b = fit.coefficients[1];
 	const seB = Math.sqrt(fit.covariance[1][1]);
+	const r = useStep ? 2 : 0;
+	const residualLog = fit.coefficients[r];
+	const seR = Math.sqrt(fit.covariance[r][r]);
 	const slopeInterval: Interval = [b - z * seB, b + z * seB];
-	const residualLog: Interval = [a - z * seA, a + z * seA];
-	const meanD = spanE > 0 ? spanDE / spanE : 0;
+	const meanD = spanE > 0 ? sum(span, (w) => w.expectedNominal * (w.x - x_nominal)) / spanE : 0;
 	const share = logExcess !== null && logExcess !== 0 ? (b * meanD) / logExcess : null;
 	const shareInterval = share !== null ? sorted((slopeInterval[0] * meanD) / logExcess!, (slopeInterval[1] * meanD) / logExcess!) : null;
+	const residualInterval = ratioInterval(residualLog, seR);
 	const result: TemperatureAttribution = {
 		...base,
+		residualBasis: useStep ? 'change_at_span_start' : 'nominal_intercept',
 		iterations: fit.iterations,
 		temperatureSlope: b,
 		temperatureSlopeInterval: slopeInterval,
 		temperatureShare: share,
 		temperatureShareInterval: shareInterval,
-		residualRatio: Math.exp(a),
-		residualInterval: [Math.exp(residualLog[0]), Math.exp(residualLog[1])]
+		residualRatio: Math.exp(residualLog),
+		residualInterval
 	};
-	const residualConsistent = residualLog[0] <= 0 && residualLog[1] >= 0;
 	const alternative = input.chartLogExcess;
-	const alternativeExcluded = !(residualLog[0] <= alternative && alternative <= residualLog[1]);
-	if (!residualConsistent) return { ...result, explainedByTemperature: false, reason: 'residual_constant' };
+	const alternativeExcluded = !(residualLog - z * seR <= alternative && alternative <= residualLog + z * seR);
+	if (excludesOne(residualInterval)) return { ...result, explainedByTemperature: false, reason: 'residual_constant' };
 	if (shareInterval && shareInterval[1] < largeShare) return { ...result, explainedByTemperature: false, reason: 'temperature_share_small' };
 	if (shareInterval && shareInterval[0] > 0 && share! >= largeShare && alternativeExcluded) {
 		return { ...result, explainedByTemperature: true, reason: 'temperature_carries_it' };
