@@ -379,6 +379,7 @@ function temperatureFit(h: Sliding, since: Span, p: RateProcess, rule: RateDrift
 		x_nominal: model ? 1 / noiseFactor(model.mode_GHz, model.nominal_mK) : 0,
 		modelSlope: model?.A_scaled ?? 0,
 		chartLogExcess: Math.log(since.count / chartExpected(rule, since)),
+		chartFollowsTemperature: rule.prediction === 'temperature',
 		confidence: rule.confidence
 	});
 }

@@ -6,27 +6,31 @@
 // Fisher scoring), with Wald intervals from the inverse Fisher information at the maximum — as in
 // McCullagh & Nelder, Generalized Linear Models (2nd ed. 1989), ch. 2 and 6; written from memory.
 // Each window i has count y_i ~ Poisson(μ_i) with
-//     ln μ_i = ln E_i + α + β·(x_i − x_nom) [+ γ·s_i],   x = 1/(2n̄(f,T)+1),
-// E_i the count predicted at the nominal temperature, x_nom the temperature term there, s_i = 1
-// for windows in the span of the excess. The activation law ln W = ln W0 − A·s·x makes β the
-// measured −A·s, whatever the model's A: the fit tests the temperature, not the model's law.
-// The residual constant is γ, the rate factor that began with the excess beyond what the
-// temperature accounts for, when windows before the span hold counts; otherwise α, the factor at
-// the nominal temperature. Counts per window are small, so the fit uses the Poisson likelihood,
-// not least squares on log ratios (ln 0 is undefined and small-count log ratios are biased).
-// The temperature's share is β·(mean of x − x_nom over the span, weighted by E) divided by
-// ln(observed/E) over the span; its interval is β's Wald interval scaled (the observed excess is
-// taken as given).
+//     ln μ_i = ln E_i + α + β·(x_i − x_nom),   x = 1/(2n̄(f,T)+1),
+// E_i the count predicted at the nominal temperature, x_nom the temperature term there. The
+// activation law ln W = ln W0 − A·s·x makes β the measured −A·s, whatever the model's A: the fit
+// tests the temperature, not the model's law. e^α, the residual constant, is the rate factor at
+// the nominal temperature that no temperature change accounts for. Counts per window are small,
+// so the fit uses the Poisson likelihood, not least squares on log ratios (ln 0 is undefined and
+// small-count log ratios are biased). The windows are the span of the excess and the ones before
+// it (which anchor α where the rate still agreed).
 //
-// Hand-written because no well-known npm package fits a Poisson GLM with an offset; with two or
-// three coefficients Newton's method is a few lines.
+// The temperature's share is the part of the chart's log excess over the span, L, that the
+// measured temperature term carries beyond what the chart's prediction already holds:
+// (β + A·s)·d̄ / L when the chart follows the temperature with the model's law, β·d̄ / L when it
+// compares with the nominal rate; d̄ is the mean of x − x_nom over the span weighted by E. Its
+// interval is β's Wald interval carried through (L taken as observed).
+//
+// Hand-written because no well-known npm package fits a Poisson GLM with an offset; with two
+// coefficients Newton's method is a few lines.
 //
 // The verdict (true = explained by temperature, false = not, null = cannot tell):
 //   - the temperature barely moved (its term's spread moves the modelled rate, by the model's A,
 //     by less than minLogSpread): it cannot account for a change. At the nominal point: false when
 //     the span's rate differs significantly from the nominal prediction. Elsewhere: false when the
-//     rate stepped significantly at the span's start, else null (a wrong temperature law and a
-//     constant factor fit equally well);
+//     rate stepped significantly at the span's start after agreeing with the chart's prediction
+//     before it (the step's Fisher variance is 1/Σy_span + 1/Σy_before), else null (a wrong
+//     temperature law and a constant factor fit equally well);
 //   - otherwise the fit: false when the residual constant's interval excludes 1, or the share's
 //     interval lies below largeShare; true when the share's interval excludes 0, the share is at
 //     least largeShare, and the residual's interval contains 1 but excludes the constant that
@@ -60,6 +64,12 @@ export type AttributionInput = {
 	 * would explain the excess without any temperature. The residual must be told apart from it.
 	 */
 	chartLogExcess: number;
+	/**
+	 * Whether the chart's prediction already follows the measured temperature with the model's
+	 * law: the temperature's share of the chart's excess is then what the measured slope adds
+	 * beyond the model's.
+	 */
+	chartFollowsTemperature: boolean;
 	/** Two-sided confidence of the intervals, in (0, 1). */
 	confidence: number;
 	/** Modelled log-rate change below which the temperature counts as not having moved. */
@@ -98,7 +108,7 @@ export type TemperatureAttribution = {
 	/** β: the measured −A·s. */
 	temperatureSlope: number | null;
 	temperatureSlopeInterval: Interval | null;
-	/** β·(mean x − x_nom over the span) / logExcess: the share of the log excess the temperature carries. */
+	/** Share of the chart's log excess over the span that the measured temperature term carries. */
 	temperatureShare: number | null;
 	temperatureShareInterval: Interval | null;
 	/** The residual constant as a rate factor (see residualBasis). */
@@ -121,8 +131,6 @@ export type PoissonFit = {
 const MAX_ITERATIONS = 100;
 /** Counts before the span needed to measure a change at its start. */
 const MIN_COUNTS_BEFORE = 10;
-/** Beyond this correlation a step at the span's start and the temperature term are not separable. */
-const MAX_STEP_CORRELATION = 0.98;
 const TOLERANCE = 1e-10;
 
 /**
@@ -208,25 +216,6 @@ function scoreAndInformation(y: readonly number[], offset: readonly number[], X:
 
 const sorted = (a: number, b: number): Interval => (a <= b ? [a, b] : [b, a]);
 
-/** Weighted correlation of two columns (weights w). */
-function correlation(a: readonly number[], b: readonly number[], w: readonly number[]): number {
-	let sw = 0, ma = 0, mb = 0;
-	for (let i = 0; i < w.length; i++) {
-		sw += w[i];
-		ma += w[i] * a[i];
-		mb += w[i] * b[i];
-	}
-	ma /= sw;
-	mb /= sw;
-	let saa = 0, sbb = 0, sab = 0;
-	for (let i = 0; i < w.length; i++) {
-		saa += w[i] * (a[i] - ma) ** 2;
-		sbb += w[i] * (b[i] - mb) ** 2;
-		sab += w[i] * (a[i] - ma) * (b[i] - mb);
-	}
-	return saa > 0 && sbb > 0 ? sab / Math.sqrt(saa * sbb) : 1;
-}
-
 export function attributeToTemperature(input: AttributionInput): TemperatureAttribution {
 	const { x_nominal, confidence } = input;
 	const minLogSpread = input.minLogSpread ?? 0.05;
@@ -270,7 +259,7 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 	};
 	if (span.length === 0) return base;
 	if (spanY + beforeY === 0) return { ...base, reason: 'no_counts' };
-	// A change that began with the span can be told from the windows before it when they hold counts.
+	// At a steady temperature a change that began with the span is told from the windows before it.
 	const withBefore = beforeY >= MIN_COUNTS_BEFORE;
 	const ratioInterval = (logValue: number, se: number): Interval => [Math.exp(logValue - z * se), Math.exp(logValue + z * se)];
 	const excludesOne = (i: Interval) => i[0] > 1 || i[1] < 1;
@@ -292,7 +281,12 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 				residualInterval
 			};
 		}
-		if (withBefore && spanY > 0) {
+		// Before the span the rate must have agreed with the chart's prediction: a rate that was
+		// already off at this temperature (a wrong temperature law) has no onset to point at.
+		const chartSlope = input.chartFollowsTemperature ? input.modelSlope : 0;
+		const beforeChart = sum(before, (w) => w.expectedNominal * Math.exp(-chartSlope * (w.x - x_nominal)));
+		const agreedBefore = withBefore && !excludesOne(ratioInterval(Math.log(beforeY / beforeChart), 1 / Math.sqrt(beforeY)));
+		if (agreedBefore && spanY > 0) {
 			const g = Math.log(spanY / spanE) - Math.log(beforeY / beforeE);
 			const residualInterval = ratioInterval(g, Math.sqrt(1 / spanY + 1 / beforeY));
 			return {
@@ -308,30 +302,28 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 		return { ...base, reason: 'temperature_steady' };
 	}
 
-	const d = fitted.map((w) => w.x - x_nominal);
-	const s = fitted.map((w) => (w.inSpan ? 1 : 0));
-	// A step at the span's start that coincides with a step of the temperature cannot be told
-	// from it: then the constant is the one at the nominal temperature.
-	const useStep = withBefore && Math.abs(correlation(d, s, fitted.map((w) => w.expectedNominal))) < MAX_STEP_CORRELATION;
 	const fit = fitPoissonGlm(
 		fitted.map((w) => w.count),
 		fitted.map((w) => Math.log(w.expectedNominal)),
-		fitted.map((w, i) => (useStep ? [1, d[i], s[i]] : [1, d[i]]))
+		fitted.map((w) => [1, w.x - x_nominal])
 	);
 	if (!fit) return { ...base, reason: 'no_fit' };
-	const b = fit.coefficients[1];
+	const [residualLog, b] = fit.coefficients;
+	const seR = Math.sqrt(fit.covariance[0][0]);
 	const seB = Math.sqrt(fit.covariance[1][1]);
-	const r = useStep ? 2 : 0;
-	const residualLog = fit.coefficients[r];
-	const seR = Math.sqrt(fit.covariance[r][r]);
 	const slopeInterval: Interval = [b - z * seB, b + z * seB];
+	// The chart's prediction already carries −A·s·(x − x_nom) when it follows the temperature:
+	// what the measured temperature adds to it is (β + A·s)·(x − x_nom).
+	const chartSlope = input.chartFollowsTemperature ? input.modelSlope : 0;
 	const meanD = spanE > 0 ? sum(span, (w) => w.expectedNominal * (w.x - x_nominal)) / spanE : 0;
-	const share = logExcess !== null && logExcess !== 0 ? (b * meanD) / logExcess : null;
-	const shareInterval = share !== null ? sorted((slopeInterval[0] * meanD) / logExcess!, (slopeInterval[1] * meanD) / logExcess!) : null;
+	const excess = input.chartLogExcess;
+	const shareOf = (beta: number) => ((beta + chartSlope) * meanD) / excess;
+	const share = Number.isFinite(excess) && excess !== 0 ? shareOf(b) : null;
+	const shareInterval = share !== null ? sorted(shareOf(slopeInterval[0]), shareOf(slopeInterval[1])) : null;
 	const residualInterval = ratioInterval(residualLog, seR);
 	const result: TemperatureAttribution = {
 		...base,
-		residualBasis: useStep ? 'change_at_span_start' : 'nominal_intercept',
+		residualBasis: 'nominal_intercept',
 		iterations: fit.iterations,
 		temperatureSlope: b,
 		temperatureSlopeInterval: slopeInterval,
@@ -340,7 +332,7 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 		residualRatio: Math.exp(residualLog),
 		residualInterval
 	};
-	const alternative = input.chartLogExcess;
+	const alternative = excess;
 	const alternativeExcluded = !(residualLog - z * seR <= alternative && alternative <= residualLog + z * seR);
 	if (excludesOne(residualInterval)) return { ...result, explainedByTemperature: false, reason: 'residual_constant' };
 	if (shareInterval && shareInterval[1] < largeShare) return { ...result, explainedByTemperature: false, reason: 'temperature_share_small' };
