@@ -473,6 +473,8 @@ function explain(
 			return fit.explainedByTemperature === false
 				? `Unexplained by temperature: ${seen} The temperature stayed at the nominal point, so it cannot account for the rate factor of ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) — detuning or bias drift, or a changed operating point.`
 				: `Cannot tell whether the temperature explains it: ${seen} The temperature stayed at the nominal point and the rate there is not significantly off (${fmt(fit.residualRatio!)}, ${interval(fit.residualInterval)}): the chart accumulated several smaller excesses.`;
+		case 'changed_at_steady_temperature':
+			return `Unexplained by temperature: ${seen} The temperature did not move, yet the rate stepped by ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) against the windows before, where it agreed with the prediction — detuning or bias drift, or a changed operating point.`;
 		case 'temperature_steady':
 			return `Cannot tell whether the temperature explains it: ${seen} The temperature barely varied away from the nominal point, so a temperature law the model has wrong and a constant factor (detuning or bias drift) fit equally well.`;
 		default:

@@ -174,7 +174,9 @@ export function fitPoissonGlm(y: readonly number[], offset: readonly number[], X
 		if (!step || !step.every(Number.isFinite)) return null;
 		let scale = 1;
 		let next = logLik(b.map((v, j) => v + step[j]));
-		for (let halvings = 0; !(next >= current) && halvings < 40; halvings++) {
+		// Uphill up to rounding: near the maximum the log-likelihood no longer resolves the step.
+		const slack = 1e-13 * Math.abs(current);
+		for (let halvings = 0; !(next >= current - slack) && halvings < 40; halvings++) {
 			scale /= 2;
 			next = logLik(b.map((v, j) => v + scale * step[j]));
 		}
