@@ -459,7 +459,7 @@ function explain(
 	}
 	const meanT = `${fmt(meanT_mK)} mK`;
 	const seen = `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}, nominal ${nominal}).`;
-	const share = fit.temperatureShare === null ? '' : `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the nominal prediction`;
+	const share = fit.temperatureShare === null ? '' : `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the chart's prediction`;
 	const residual = fit.residualRatio === null ? '' : `a constant factor of ${fmt(fit.residualRatio)} (${interval(fit.residualInterval)}) remains at the nominal temperature`;
 	const fitted = `a Poisson fit of the ${fit.windowsFitted} windows with a measured temperature on 1/(2n̄+1)`;
 	switch (fit.reason) {
@@ -475,6 +475,9 @@ function explain(
 				: `Cannot tell whether the temperature explains it: ${seen} The temperature stayed at the nominal point and the rate there is not significantly off (${fmt(fit.residualRatio!)}, ${interval(fit.residualInterval)}): the chart accumulated several smaller excesses.`;
 		case 'changed_at_steady_temperature':
 			return `Unexplained by temperature: ${seen} The temperature did not move, yet the rate stepped by ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) against the windows before, where it agreed with the prediction — detuning or bias drift, or a changed operating point.`;
+		case 'no_counts':
+		case 'no_fit':
+			return `Cannot tell whether the temperature explains it: ${seen} Too few switches in the windows with a measured temperature for a fit on 1/(2n̄+1).`;
 		case 'temperature_steady':
 			return `Cannot tell whether the temperature explains it: ${seen} The temperature barely varied away from the nominal point, so a temperature law the model has wrong and a constant factor (detuning or bias drift) fit equally well.`;
 		default:
