@@ -62,7 +62,10 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	expect(drift.severity).toBe('warning');
 	expect(drift.openedSeq).toBeGreaterThan(200);
 	expect(drift.openedSeq).toBeLessThan(450);
+	// The fridge sat at the nominal 12 mK, where a 5 GHz mode's 1/(2n̄+1) does not move: the
+	// temperature cannot carry the doubling.
 	expect(drift.evidence.explainedByTemperature).toBe(false);
+	expect(drift.evidence.temperatureFit.reason).toBe('temperature_at_nominal');
 
 	// Alerts are sent after commit; give the mailer a moment.
 	for (const incident of incidents) {

@@ -30,6 +30,9 @@ import { bandOf, cusumDesignSchema, designFor, designKey, MAX_WINDOWS_PER_STEP, 
 import { createSliding, oldest, pushRow, slidingSchema, valueAt, type Sliding } from './sliding';
 import { finiteOrNull, fmt, rateModelEvidence } from './rate-evidence';
 import type { RateDriftRule } from './rules';
+import { compileRates } from './expected';
+import { noiseFactor } from '../physics/occupation';
+import { attributeToTemperature, type TemperatureAttribution } from './temperature-attribution';
 
 // Horizon columns; the first six are summed.
 const H_COUNT = 0;
@@ -353,12 +356,37 @@ function horizonEvidence(h: Sliding, confidence: number): { [key: string]: JsonV
 }
 
 /**
- * The evidence of an opening (or a reversal). Whether the fridge temperature explains it is
- * judged over the span since the signalling statistic last left zero — the windows the chart's
- * evidence comes from — by comparing the rate with both predictions there: explained when it
- * departs from the nominal-temperature prediction but not from the temperature-following one.
- * With the default prediction 'temperature' the chart signalled against the temperature-following
- * prediction, so this is rare: what it found is, as a rule, unexplained by temperature.
+ * Whether the measured temperature accounts for the excess: a Poisson fit of the horizon's
+ * windows (temperature-attribution.ts). The horizon holds the span since the signalling
+ * statistic left zero and, when the span is shorter, the windows before it; those anchor the
+ * constant at the temperatures where the rate still agreed, which the span alone would leave to
+ * extrapolation. Windows without a measured temperature are left out of the fit.
+ */
+function temperatureFit(h: Sliding, since: Span, p: RateProcess, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): TemperatureAttribution {
+	const model = compileRates(ctx.run)[p];
+	const windows = [];
+	for (let i = 0; i < h.len; i++) {
+		const measured = valueAt(h, i, H_MEASURED) === 1;
+		windows.push({
+			count: valueAt(h, i, H_COUNT),
+			expectedNominal: valueAt(h, i, H_NOMINAL),
+			x: measured && model ? 1 / noiseFactor(model.mode_GHz, valueAt(h, i, H_T_SUM)) : NaN,
+			inSpan: valueAt(h, i, H_SEQ) >= since.fromSeq
+		});
+	}
+	return attributeToTemperature({
+		windows,
+		x_nominal: model ? 1 / noiseFactor(model.mode_GHz, model.nominal_mK) : 0,
+		modelSlope: model?.A_scaled ?? 0,
+		chartLogExcess: Math.log(since.count / chartExpected(rule, since)),
+		chartFollowsTemperature: rule.prediction === 'temperature',
+		confidence: rule.confidence
+	});
+}
+
+/**
+ * The evidence of an opening (or a reversal), with the temperature fit over the span since the
+ * signalling statistic last left zero (the windows the chart's evidence comes from).
  */
 function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d: CusumDesign, ctx: DetectorContext<'rate_drift'>): Evidence {
 	const { rule, run } = ctx;
@@ -369,7 +397,8 @@ function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d:
 	const measured = since.measured > 0;
 	const nominal_mK = run.nominal_mK ?? run.rateModels?.[p]?.nominal_mK ?? 0;
 	const meanT_mK = measured ? since.T_sum / since.measured : null;
-	const explainedByTemperature = measured && vsN.significant && !vsT.significant;
+	const fit = temperatureFit(h, since, p, rule, ctx);
+	const explainedByTemperature = fit.explainedByTemperature;
 	return {
 		...ruleEvidence(rule),
 		process: p,
@@ -397,12 +426,19 @@ function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d:
 		nominal_mK,
 		temperatureMeasured: measured,
 		explainedByTemperature,
-		explanation: explain(p, vsT, vsN, meanT_mK, nominal_mK, explainedByTemperature, rule, since.windows),
+		temperatureFit: { ...fit },
+		temperatureShare: fit.temperatureShare,
+		temperatureShareInterval: fit.temperatureShareInterval,
+		residualRatio: fit.residualRatio,
+		residualInterval: fit.residualInterval,
+		explanation: explain(p, vsT, vsN, meanT_mK, nominal_mK, fit, rule, since.windows),
 		rateModel: rateModelEvidence(run, p)
 	};
 }
 
 const range = (r: RatioEstimate) => `${fmt(r.estimate ?? NaN)} (${fmt(r.lower ?? 0)}–${r.upper === null ? '∞' : fmt(r.upper)})`;
+
+const interval = (i: [number, number] | null) => (i ? `${fmt(i[0])}–${fmt(i[1])}` : 'unbounded');
 
 function explain(
 	p: RateProcess,
@@ -410,25 +446,43 @@ function explain(
 	vsN: RatioEstimate,
 	meanT_mK: number | null,
 	nominal_mK: number,
-	explained: boolean,
+	fit: TemperatureAttribution,
 	rule: RateDriftRule,
 	windows: number
 ): string {
 	const what = p === 'switching' ? 'switching rate' : 'escape rate';
 	const nominal = `${fmt(nominal_mK)} mK`;
 	const over = `over the ${windows} windows since the change began`;
-	if (meanT_mK === null) {
+	const r = rule.prediction === 'temperature' ? vsT : vsN;
+	if (meanT_mK === null || fit.reason === 'no_temperature') {
 		return `No mixing-chamber temperature in these windows: the prediction used the nominal ${nominal}, so a temperature change cannot be ruled out. The ${what} is ${range(vsT)} × that prediction ${over}.`;
 	}
 	const meanT = `${fmt(meanT_mK)} mK`;
-	if (explained) {
-		return `Explained by temperature: ${over} the ${what} is ${range(vsN)} × the prediction at the nominal ${nominal}, but ${range(vsT)} × the prediction at the measured temperature (mean ${meanT}), consistent with 1.`;
+	const seen = `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}, nominal ${nominal}).`;
+	const share = fit.temperatureShare === null ? '' : `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the chart's prediction`;
+	const residual = fit.residualRatio === null ? '' : `a constant factor of ${fmt(fit.residualRatio)} (${interval(fit.residualInterval)}) remains at the nominal temperature`;
+	const fitted = `a Poisson fit of the ${fit.windowsFitted} windows with a measured temperature on 1/(2n̄+1)`;
+	switch (fit.reason) {
+		case 'temperature_carries_it':
+			return `Explained by temperature: ${seen} In ${fitted}, ${share}, and ${residual}, consistent with 1.`;
+		case 'residual_constant':
+			return `Unexplained by temperature: ${seen} In ${fitted}, ${residual}, which the temperature does not account for — detuning or bias drift, or a changed operating point${share ? `; ${share}` : ''}.`;
+		case 'temperature_share_small':
+			return `Unexplained by temperature: ${seen} In ${fitted}, ${share} — too little to account for it.`;
+		case 'temperature_at_nominal':
+			return fit.explainedByTemperature === false
+				? `Unexplained by temperature: ${seen} The temperature stayed at the nominal point, so it cannot account for the rate factor of ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) — detuning or bias drift, or a changed operating point.`
+				: `Cannot tell whether the temperature explains it: ${seen} The temperature stayed at the nominal point and the rate there is not significantly off (${fmt(fit.residualRatio!)}, ${interval(fit.residualInterval)}): the chart accumulated several smaller excesses.`;
+		case 'changed_at_steady_temperature':
+			return `Unexplained by temperature: ${seen} The temperature did not move, yet the rate stepped by ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) against the windows before, where it agreed with the prediction — detuning or bias drift, or a changed operating point.`;
+		case 'no_counts':
+		case 'no_fit':
+			return `Cannot tell whether the temperature explains it: ${seen} Too few switches in the windows with a measured temperature for a fit on 1/(2n̄+1).`;
+		case 'temperature_steady':
+			return `Cannot tell whether the temperature explains it: ${seen} The temperature barely varied away from the nominal point, so a temperature law the model has wrong and a constant factor (detuning or bias drift) fit equally well.`;
+		default:
+			return `Cannot tell whether the temperature explains it: ${seen} In ${fitted}${share ? `, ${share}` : ''}${residual ? `, and ${residual}` : ''}: the intervals are too wide to decide.`;
 	}
-	if (vsT.significant) {
-		return `Unexplained by temperature: the prediction follows the measured mixing-chamber temperature (mean ${meanT}, nominal ${nominal}) and ${over} the ${what} is still ${range(vsT)} × it — detuning or bias drift, or a changed operating point.`;
-	}
-	const r = rule.prediction === 'temperature' ? vsT : vsN;
-	return `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}), not significant at ${fmt(100 * rule.confidence)} % on its own: the chart accumulated several smaller excesses.`;
 }
 
 function summaryOf(p: RateProcess, side: 'up' | 'down', ev: Evidence): string {
@@ -436,7 +490,13 @@ function summaryOf(p: RateProcess, side: 'up' | 'down', ev: Evidence): string {
 	const r = ev.ratio as unknown as RatioEstimate;
 	const windows = (ev.sinceChange as { windows: number }).windows;
 	const dir = side === 'up' ? 'above' : 'below';
-	const why = ev.explainedByTemperature ? 'explained by the fridge temperature' : ev.temperatureMeasured ? 'not explained by the fridge temperature' : 'fridge temperature not measured';
+	const why = !ev.temperatureMeasured
+		? 'fridge temperature not measured'
+		: ev.explainedByTemperature === true
+			? 'explained by the fridge temperature'
+			: ev.explainedByTemperature === false
+				? 'not explained by the fridge temperature'
+				: 'cannot tell whether the fridge temperature explains it';
 	return `${what} drifted ${dir} the prediction: ${range(r)} × over the last ${windows} windows (CUSUM ${fmt(Number(ev.statistic))} ≥ h = ${fmt(Number(ev.decisionInterval))}; ${why})`;
 }
 

@@ -88,7 +88,8 @@ export const rateDriftRuleSchema = z
 		 * 'temperature': the chart compares with the prediction at each window's mixing-chamber
 		 * temperature, so a warmer fridge alone does not open it (aux_limit watches the fridge).
 		 * 'nominal': it compares with the prediction at the nominal temperature, so a temperature
-		 * excursion opens it too, and the evidence says that the temperature explains it.
+		 * excursion opens it too. Either way the evidence's temperature fit says whether the measured
+		 * temperature explains the excess (temperature-attribution.ts).
 		 */
 		prediction: z.enum(['temperature', 'nominal']).default('temperature'),
 		/** Rates the chart watches, each with its own incident (key = the process). */

@@ -19,6 +19,13 @@ describe('evidence formatting', () => {
 		expect(formatValue('ok', true)).toBe('yes');
 	});
 
+	it('the temperature fit’s three answers: yes, no, and cannot tell (null), not "missing"', () => {
+		expect(formatValue('explainedByTemperature', true)).toBe('yes');
+		expect(formatValue('explainedByTemperature', false)).toBe('no');
+		expect(formatValue('explainedByTemperature', null)).toBe('cannot tell');
+		expect(labelFor('residualInterval')).toBe('Unexplained factor interval');
+	});
+
 	it('writes nested objects inline and labels unknown keys in words', () => {
 		expect(formatValue('lowest', { seq: 7, lock: 0.25 })).toBe('seq 7, lock 0.25');
 		expect(labelFor('observedSwitches')).toBe('Observed switches');

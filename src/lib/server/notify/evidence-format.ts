@@ -22,7 +22,13 @@ const LABELS: Record<string, string> = {
 	resumedAt_ms: 'Frames resumed',
 	resumedSeq: 'Resumed at seq',
 	endedAt_ms: 'Run ended',
-	reason: 'Reason'
+	reason: 'Reason',
+	explainedByTemperature: 'Explained by temperature',
+	temperatureShare: 'Share of the excess the temperature carries',
+	temperatureShareInterval: 'Temperature share interval',
+	residualRatio: 'Rate factor temperature leaves unexplained',
+	residualInterval: 'Unexplained factor interval',
+	temperatureFit: 'Temperature fit'
 };
 
 const COLUMNS: Record<string, string> = { seq: 'seq', t_ms: 'time (UTC)', lock: 'lock' };
@@ -47,6 +53,8 @@ export function formatUtc(ms: number): string {
 const looksLikeEpoch = (key: string, v: number) => (key.endsWith('_ms') || key === 't') && v > 1e11 && v < 1e14;
 
 export function formatValue(key: string, value: unknown): string {
+	// The temperature fit's third answer: null means the data cannot decide, not "missing".
+	if (value === null && key === 'explainedByTemperature') return 'cannot tell';
 	if (value === null || value === undefined) return '—';
 	if (typeof value === 'boolean') return value ? 'yes' : 'no';
 	if (typeof value === 'number') {

@@ -135,7 +135,7 @@ export const KIND_SPECS: KindSpec[] = [
 				key: 'prediction',
 				type: 'choice',
 				label: 'Compare with the prediction at',
-				hint: 'At each window’s temperature a warmer fridge alone does not open it (aux limits watch the fridge); at nominal it does, and the evidence says the temperature explains it.',
+				hint: 'At each window’s temperature a warmer fridge alone does not open it (aux limits watch the fridge); at nominal it does. Either way the evidence fits the rate on the measured temperature term 1/(2n̄+1) and says whether the temperature explains the excess, does not, or cannot tell (it barely moved).',
 				options: [
 					{ value: 'temperature', label: 'each window’s fridge temperature', json: 'temperature' },
 					{ value: 'nominal', label: 'the nominal temperature', json: 'nominal' }
