@@ -2,7 +2,9 @@
 // chain on a lattice of step 1/m counts, with the reference value k = μ(ρ − 1)/ln ρ rounded to
 // the nearest multiple of 1/m — Lucas's (1985) integer scaling of k and h. When m·k is an
 // integer the lattice chain is exact; otherwise its only error is the rounding of k, which
-// shrinks as the lattice is refined. It solves (I − R)·ARL = 1 by elimination, so it shares no
+// shrinks as the lattice is refined; and since the run length is monotone in k (with the same
+// counts a larger k gives a pathwise smaller upward statistic and a larger downward one), the
+// lattices whose k lies just below and just above the true k bracket the exact run length. It solves (I − R)·ARL = 1 by elimination, so it shares no
 // code with stats/cusum.ts (which follows the chain's exact states cycle by cycle).
 import jStat from 'jstat';
 
@@ -45,19 +47,19 @@ function solveLowerBanded(A: Float64Array, n: number, lowerBand: number, b: Floa
 /**
  * In-control (trueRatio = 1) or shifted ARL of the one-sided Poisson CUSUM with decision
  * interval h and ratio rho at muPerStep expected counts per step, from the zero start, on a
- * lattice of `stepsPerCount` states per count. Returns the ARL and the k the lattice used.
+ * lattice of `stepsPerCount` states per count, with k rounded to the nearest lattice step or
+ * set to `kSteps` of them. Returns the ARL and the k the lattice used.
  */
 export function poissonCusumArlOnLattice(
 	h: number,
 	rho: number,
 	muPerStep: number,
 	trueRatio: number,
-	stepsPerCount: number
+	stepsPerCount: number,
+	kSteps = Math.round((stepsPerCount * muPerStep * (rho - 1)) / Math.log(rho))
 ): { arl: number; kUsed: number; states: number } {
 	const a = Math.log(rho);
-	const k = (muPerStep * (rho - 1)) / a;
 	const m = stepsPerCount;
-	const kSteps = Math.round(m * k);
 	const n = Math.ceil(m * (h / Math.abs(a)) - 1e-9);
 	if (n > 4000) throw new RangeError(`a lattice of ${n} states is too large for this reference`);
 	const upward = a > 0;
@@ -103,19 +105,21 @@ export function poissonCusumArlOnLattice(
 	return { arl, kUsed: kSteps / m, states: n };
 }
 
+/** A lattice: m steps per count, with k = kSteps/m. */
+export type Lattice = { m: number; kSteps: number };
+
 /**
- * The number of lattice steps per count between `minSteps` and `maxSteps` for which m·k is
- * closest to an integer, i.e. the lattice whose rounding of k is smallest.
+ * The lattices with m between minSteps and maxSteps whose k lies closest below and closest
+ * above the true k (best one-sided rational approximations of k).
  */
-export function closestLattice(k: number, minSteps: number, maxSteps: number): number {
-	let best = minSteps;
-	let bestError = Infinity;
+export function bracketingLattices(k: number, minSteps: number, maxSteps: number): { below: Lattice; above: Lattice } {
+	let below: Lattice = { m: minSteps, kSteps: Math.floor(minSteps * k) };
+	let above: Lattice = { m: minSteps, kSteps: Math.ceil(minSteps * k) };
 	for (let m = minSteps; m <= maxSteps; m++) {
-		const error = Math.abs(m * k - Math.round(m * k)) / m;
-		if (error < bestError - 1e-15) {
-			best = m;
-			bestError = error;
-		}
+		const lo = Math.floor(m * k);
+		const hi = Math.ceil(m * k);
+		if (lo / m > below.kSteps / below.m) below = { m, kSteps: lo };
+		if (hi / m < above.kSteps / above.m) above = { m, kSteps: hi };
 	}
-	return best;
+	return { below, above };
 }
