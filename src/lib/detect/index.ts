@@ -13,7 +13,7 @@ export { occupancyImbalance, isSymmetric, type OccupancyImbalanceState } from '.
 export { auxLimit, AUX_EVIDENCE_WINDOWS, type AuxLimitState } from './aux-limit';
 export { expectFrame, compileRates, measuredTemperature, TEMPERATURE_AUX, type FrameExpectation, type ProcessExpectation } from './expected';
 export { windowAlpha, budgetWindows } from './budget';
-export { designFor, bandOf, type CusumDesign } from './cusum-design';
+export { designAt, designFor, bandOf, type CusumDesign } from './cusum-design';
 export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
 export {
 	replayRun,
