@@ -26,7 +26,7 @@ export {
 	type EngineView,
 	type StatusRun
 } from './status';
-export { designFor, bandOf, type CusumDesign } from './cusum-design';
+export { designAt, designFor, bandOf, type CusumDesign } from './cusum-design';
 export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
 export {
 	replayRun,

@@ -3,7 +3,7 @@
 // ratioDown long before a single window or horizon would show it as a burst.
 //
 // Each step is one window, or several pooled until their prediction reaches minExpectedPerStep;
-// its h comes from the band of its predicted count (cusum-design.ts), so the chart keeps to the
+// its h is designed at its own predicted count (cusum-design.ts), so the chart keeps to the
 // false-alarm budget as the rate moves. By default the prediction follows each window's fridge
 // temperature, so a warmer fridge alone does not open the chart: what opens it is unexplained by
 // temperature (detuning or bias drift, a changed operating point). With prediction 'nominal' the
@@ -26,7 +26,7 @@ import type { ProcessExpectation, RateProcess } from './expected';
 import type { Frame } from '../protocol/frame';
 import { poissonCusumStep } from '../stats/cusum';
 import { poissonInterval } from '../stats/poisson';
-import { bandOf, cusumDesignSchema, designFor, designKey, MAX_WINDOWS_PER_STEP, type CusumDesign } from './cusum-design';
+import { cusumDesignSchema, designAt, designFor, designKey, MAX_WINDOWS_PER_STEP, type CusumDesign } from './cusum-design';
 import { createSliding, oldest, pushRow, slidingSchema, valueAt, type Sliding } from './sliding';
 import { finiteOrNull, fmt, rateModelEvidence } from './rate-evidence';
 import type { RateDriftRule } from './rules';
@@ -82,9 +82,7 @@ const processStateSchema = z.object({
 type ProcessState = z.infer<typeof processStateSchema>;
 
 const rateDriftStateSchema = z.object({
-	/** Window length the budget is counted in: the first window's. */
-	designWindow_s: z.number().nullable(),
-	/** Designs used so far, by band and windows per step, so that a restored engine never recomputes them differently. */
+	/** Grid designs used so far, by band, windows per step and window length, so that a restored engine never recomputes them differently. */
 	designs: z.record(z.string(), cusumDesignSchema),
 	switching: processStateSchema,
 	escape: processStateSchema
@@ -173,7 +171,7 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 	kind: 'rate_drift',
 	stateSchema: rateDriftStateSchema,
 
-	init: () => ({ designWindow_s: null, designs: {}, switching: freshProcess(), escape: freshProcess() }),
+	init: () => ({ designs: {}, switching: freshProcess(), escape: freshProcess() }),
 
 	onFrame(state, frame, ctx): Signal[] {
 		const { rule, expected } = ctx;
@@ -196,7 +194,6 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 			}
 			const e = expected?.[p];
 			if (!e || !(e.exposure_s > 0)) continue;
-			if (state.designWindow_s === null) state.designWindow_s = frame.window_s;
 			const signal = onWindow(state, state[p], p, frame, e, ctx);
 			if (signal) signals.push(signal);
 		}
@@ -272,14 +269,13 @@ function onWindow(
 	return maybeClear(ps, p, frame, ctx);
 }
 
-function designOf(state: RateDriftState, rule: RateDriftRule, block: Span): CusumDesign {
-	const band = bandOf(chartExpected(rule, block));
-	const key = designKey(band, block.windows);
-	const known = state.designs[key];
-	if (known) return known;
-	const design = designFor(band, block.windows, designInputs(rule, state.designWindow_s!));
-	state.designs[key] = design;
-	return design;
+/** h at the step's own predicted count, interpolated between grid designs; the budget is counted in windows of the step's length (window_s may change mid-run). */
+function designOf(state: RateDriftState, rule: RateDriftRule, block: Span, window_s: number): CusumDesign {
+	const inputs = designInputs(rule, window_s);
+	return designAt(chartExpected(rule, block), block.windows, inputs, (band) => {
+		const key = designKey(band, block.windows, window_s);
+		return (state.designs[key] ??= designFor(band, block.windows, inputs));
+	});
 }
 
 function advance(side: Side, S: number, block: Span): void {
@@ -289,7 +285,7 @@ function advance(side: Side, S: number, block: Span): void {
 
 function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Span, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {
 	const { rule } = ctx;
-	const d = designOf(state, rule, block);
+	const d = designOf(state, rule, block, frame.window_s);
 	ps.steps += 1;
 	const mu = chartExpected(rule, block);
 	advance(ps.up, poissonCusumStep(ps.up.S, block.count, mu, rule.ratioUp), block);

@@ -26,9 +26,9 @@ describe('rate_drift design', () => {
 		expect(designs).toHaveLength(1);
 		const d = designs[0];
 		expect(d).toMatchObject({ band: 0, windowsPerStep: 1, muStep: 1, targetStepsPerSide: 2 * BUDGET_WINDOWS });
-		expect(d.hUp).toBeCloseTo(poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 2, 1, { maxStates: 300 }), 10);
-		expect(d.hDown).toBeCloseTo(poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 0.5, 1, { maxStates: 300 }), 10);
-		expect(poissonCusumArl(d.hUp, 2, 1, 1, { maxStates: 300 })).toBeGreaterThanOrEqual(2 * BUDGET_WINDOWS);
+		expect(d.hUp).toBeCloseTo(poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 2, 1), 10);
+		expect(d.hDown).toBeCloseTo(poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 0.5, 1), 10);
+		expect(poissonCusumArl(d.hUp, 2, 1, 1)).toBeGreaterThanOrEqual(2 * BUDGET_WINDOWS);
 	});
 
 	it('slow rates pool windows into steps of at least minExpectedPerStep, and the budget counts windows', () => {
@@ -36,13 +36,13 @@ describe('rate_drift design', () => {
 		feed(engine, windows(1, repeat(0, 12)));
 		const d = Object.values((engine.snapshot().detectors.rate_drift as any).designs)[0] as any;
 		// 0.125 per window: four windows make the 0.5 a step needs
-		expect(d).toMatchObject({ band: -4, windowsPerStep: 4, muStep: 0.5, targetStepsPerSide: (2 * BUDGET_WINDOWS) / 4 });
+		expect(d).toMatchObject({ band: -8, windowsPerStep: 4, muStep: 0.5, targetStepsPerSide: (2 * BUDGET_WINDOWS) / 4 });
 	});
 });
 
 describe('rate_drift opening and clearing', () => {
 	const run = run6({ switching: flatSwitching(1) });
-	const h = poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 2, 1, { maxStates: 300 });
+	const h = poissonCusumDecisionInterval(2 * BUDGET_WINDOWS, 2, 1);
 
 	it('opens at the window where the recomputed upper statistic first reaches h', () => {
 		let S = 0;

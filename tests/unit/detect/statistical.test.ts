@@ -139,7 +139,7 @@ describe('detection delay of rate_drift at a doubled rate (seeded Monte Carlo)',
 		}
 		const mean = delays.reduce((a, b) => a + b, 0) / M;
 		const sd = Math.sqrt(delays.reduce((a, b) => a + (b - mean) ** 2, 0) / (M - 1));
-		const arl = poissonCusumArl(hUp, 2, 1, 2, { maxStates: 300 });
+		const arl = poissonCusumArl(hUp, 2, 1, 2);
 		expect(Math.abs(mean - arl)).toBeLessThan(3 * (sd / Math.sqrt(M)));
 	});
 });

@@ -96,7 +96,7 @@ describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
 	const sample = (mu: number) => poissonKnuth(mu, random);
 
 	// Each case: the chain's ARL against a seeded simulation of the recursion in this file,
-	// tolerance three Monte Carlo standard errors plus 0.5 % for the lattice.
+	// tolerance three Monte Carlo standard errors (the chain has no lattice error to allow for).
 	const cases: Array<{ h: number; rho: number; mu: number; ratio: number; runs: number }> = [
 		{ h: 3.7, rho: 2, mu: 0.5, ratio: 1, runs: 10000 }, // in control, upward chart
 		{ h: 3.7, rho: 2, mu: 0.5, ratio: 2, runs: 4000 }, // rate doubled
@@ -107,7 +107,7 @@ describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
 		it(`matches simulation: h=${c.h}, ρ=${c.rho}, μ=${c.mu}, true ratio ${c.ratio}`, () => {
 			const computed = poissonCusumArl(c.h, c.rho, c.mu, c.ratio);
 			const mc = monteCarlo(c.runs, () => simulatePoissonCusum(sample, c.h, c.rho, c.mu, c.ratio));
-			expect(Math.abs(computed - mc.mean)).toBeLessThan(3 * mc.se + 0.005 * mc.mean);
+			expect(Math.abs(computed - mc.mean)).toBeLessThan(3 * mc.se);
 		});
 	}
 
@@ -123,7 +123,7 @@ describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
 			} while (s < h);
 			return n;
 		});
-		expect(Math.abs(computed - mc.mean)).toBeLessThan(3 * mc.se + 0.005 * mc.mean);
+		expect(Math.abs(computed - mc.mean)).toBeLessThan(3 * mc.se);
 		expect(computed).toBeLessThan(poissonCusumArl(h, 2, 0.5, 2));
 	});
 
@@ -161,8 +161,8 @@ describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
 		// Common practice: a larger upward shift is detected sooner.
 		fc.assert(
 			fc.property(fc.double({ min: 0.5, max: 3, noNaN: true }), fc.double({ min: 0.05, max: 1, noNaN: true }), (r1, dr) => {
-				const slow = poissonCusumArl(3.7, 2, 0.5, r1, { maxStates: 200 });
-				const fast = poissonCusumArl(3.7, 2, 0.5, r1 + dr, { maxStates: 200 });
+				const slow = poissonCusumArl(3.7, 2, 0.5, r1);
+				const fast = poissonCusumArl(3.7, 2, 0.5, r1 + dr);
 				expect(fast).toBeLessThan(slow);
 			}),
 			{ seed: 5, numRuns: 25 }
