@@ -162,8 +162,9 @@ export const mismatchKey = (p: RateProcess) => `${p}:model`;
 
 function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null, up: number, down: number): Span {
 	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, expectedUp: 0, expectedDown: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
-	s.expectedUp = (s.expectedUp ?? 0) + up;
-	s.expectedDown = (s.expectedDown ?? 0) + down;
+	// A block restored from a snapshot from before the band has its windows at the prediction.
+	s.expectedUp = (s.expectedUp ?? s.expected) + up;
+	s.expectedDown = (s.expectedDown ?? s.expected) + down;
 	s.count += e.count;
 	s.expected += e.expected;
 	s.expectedNominal += e.expectedNominal;
@@ -304,7 +305,7 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 			}
 			// A baseline learned against the other prediction does not apply to this one.
 			if (previous.prediction !== next.prediction) ps.baseline = freshBaseline();
-			// A shorter learning time may already be reached; a longer one only matters while learning.
+			// Turning the baseline off while learning drops what was learned: a later one starts afresh.
 			if (previous.baseline_h !== next.baseline_h && ps.baseline?.phase === 'learning' && next.baseline_h === 0) ps.baseline = freshBaseline();
 			if (previous.horizonWindows !== next.horizonWindows) ps.horizon = null;
 		}
