@@ -84,31 +84,32 @@ for (const mu of [0.21, 0.85, 3]) {
 }
 
 // ---- Table 2: in-control openings ------------------------------------------------------------
-type Case = { name: string; run: (exact: boolean) => unknown; processes: string[]; frames: () => Frame[] };
-const withSigma = (m: object, exact: boolean, sigma: object) => (exact ? m : { ...m, ...sigma });
+type Case = { name: string; run: () => unknown; processes: string[]; frames: () => Frame[] };
+/** The model as a lab would save it, with its stated uncertainty (which the code before the band ignored). */
+const withSigma = (m: object, sigma: object) => ({ ...m, ...sigma });
 const T_day = (i: number) => 25 - 15 * Math.cos((2 * Math.PI * i) / 86_400);
 const cases: Case[] = [
 	...[-2, -1, 0, 1, 2].map((k) => ({
 		name: `switching at e^(${k}σ) × model, σ(ln W0) = ${SIGMA}`,
 		processes: ['switching'],
-		run: (exact: boolean) => ({ states: 6, rateModels: { switching: withSigma(flat(1), exact, { W0_sigma: SIGMA }) } }),
+		run: () => ({ states: 6, rateModels: { switching: withSigma(flat(1), { W0_sigma: SIGMA }) } }),
 		frames: () => rateFrames({ seed: 4200 + k, windows: N, switchRate: () => Math.exp(k * SIGMA) })
 	})),
 	{
 		name: 'switching +2σ and escape −2σ, both watched',
 		processes: ['switching', 'escape'],
-		run: (exact: boolean) => ({
+		run: () => ({
 			states: 6,
-			rateModels: { switching: withSigma(flat(1.25), exact, { W0_sigma: SIGMA }), escape: withSigma({ ...flat(5), process: 'escape' }, exact, { W0_sigma: SIGMA }) }
+			rateModels: { switching: withSigma(flat(1.25), { W0_sigma: SIGMA }), escape: withSigma({ ...flat(5), process: 'escape' }, { W0_sigma: SIGMA }) }
 		}),
 		frames: () => rateFrames({ seed: 4300, windows: N, dwell_s: 0.8, vacuum_s: 0.2, switchRate: () => 1.25 * Math.exp(2 * SIGMA), escapeRate: () => 5 * Math.exp(-2 * SIGMA) })
 	},
 	{
 		name: 'fridge days 10→40→10 mK, model +1σ W0, −1σ A',
 		processes: ['switching'],
-		run: (exact: boolean) => ({
+		run: () => ({
 			states: 6,
-			rateModels: { switching: withSigma({ process: 'switching', W0_per_s: 74.2, A: 6, mode_GHz: 1, nominal_mK: 10 }, exact, { W0_sigma: 0.1, A_sigma: 0.3 }) }
+			rateModels: { switching: withSigma({ process: 'switching', W0_per_s: 74.2, A: 6, mode_GHz: 1, nominal_mK: 10 }, { W0_sigma: 0.1, A_sigma: 0.3 }) }
 		}),
 		frames: () => rateFrames({ seed: 4400, windows: N, T_mK: T_day, switchRate: (i) => Math.exp(Math.log(74.2) + 0.1 - 5.7 / noiseFactor(1, T_day(i))) })
 	}
@@ -126,9 +127,8 @@ for (const c of cases) {
 		occupancy_imbalance: { enabled: false },
 		rate_drift: { falseAlarmEvery_days: BUDGET_DAYS, processes: c.processes, ...extra }
 	});
-	// before: the model as a lab would save it (its sigmas were ignored then)
-	const before = feed(new Base(rules({}), c.run(false)), frames);
-	const now = feed(new Current(rules({}), c.run(false)), frames);
+	const before = feed(new Base(rules({}), c.run()), frames);
+	const now = feed(new Current(rules({}), c.run()), frames);
 	const mark = (n: number) => (n >= limit ? `**${n}**` : `${n}`);
 	console.log(`| ${c.name} | ${mark(pages(before, 'rate_drift'))} | ${mark(pages(before, 'switching_burst'))} | ${mark(pages(now, 'rate_drift'))} | ${mark(pages(now, 'switching_burst'))} | ${infos(now)} |`);
 }
