@@ -20,14 +20,16 @@ afterAll(async () => {
 it('raises switching_burst, aux_limit and rate_drift for exactly the injected faults', async () => {
 	const operator = await signIn(server, 'operator');
 	// W = W0·exp(−A/(2n̄+1)); at 5 GHz and 12 mK n̄ ≈ 2e-9, so W ≈ W0·e^{−A} = 1 switch per second.
-	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, source: 'manual' };
+	// An exact model (zero stated uncertainty), so the drift is judged against the prediction itself.
+	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, W0_sigma: 0, A_sigma: 0, source: 'manual' };
 	const saved = await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) });
 	expect(saved.status).toBe(200);
 
 	// A sustained doubling is also an excess over any sliding horizon, so with the horizon test on
 	// the drift would raise a burst as well; this run checks the single-window burst test alone.
 	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
-	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 } };
+	// The drift comes in the run's first minutes: charted against the model, not a learned baseline.
+	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 }, rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 } };
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(onlyWindows) })).status).toBe(200);
 
 	const u = mulberry32(2026);

@@ -46,7 +46,8 @@ export type CompiledRates = {
 	escape: CompiledModel | null;
 };
 
-function scaleFor(run: ParsedRunInfo, model: NonNullable<NonNullable<ParsedRunInfo['rateModels']>['escape']>): number {
+/** s(op)/s(reference) of an escape model at the run's operating point; 1 when either is unknown. */
+export function scaleFor(run: ParsedRunInfo, model: NonNullable<NonNullable<ParsedRunInfo['rateModels']>['escape']>): number {
 	const op = run.operatingPoint;
 	if (!model.reference || op?.detuning === undefined || op.damping === undefined || op.drive === undefined || op.drive === 0) return 1;
 	return operatingPointScale({ detuning: op.detuning, damping: op.damping, drive: op.drive }) / operatingPointScale(model.reference, 'reference');

@@ -16,6 +16,24 @@
 // the change began, and the windows its evidence comes from), and again over the last
 // horizonWindows windows, with the temperatures seen.
 //
+// Model uncertainty (model-band.ts): no rate model is exact, so each side of the chart compares
+// with the edge of the band the true rate may lie in, never with the point prediction: the upper
+// chart with μ·e^hi, the lower with μ·e^lo, where [lo, hi] bounds ln(true/predicted). A rate
+// anywhere inside [lo, hi] then runs each side at most at its designed false-alarm rate. Over the
+// run's first baseline_h hours [lo, hi] is the model's own band, ±2σ of ln W from W0_sigma, A_sigma
+// and covariance at the window's temperature. After that the run's own baseline takes over: the
+// ratio observed/predicted over those hours with its exact 2σ (95.45 %) Garwood interval, intersected
+// with the model's band at their mean x = s/(2n̄+1); at another temperature the interval widens by
+// 2·A_sigma·|x − x_baseline|, since only the error of A changes ln(true/predicted) with
+// temperature. Drift is thus judged against what this run did at the start, to within what its
+// first hours could tell. If the baseline's interval lies wholly outside the model's band, this
+// operating point does not match its rate model: that is its own finding (key '<process>:model',
+// severity info, open until the model changes), not a page, and the chart then follows the
+// baseline alone.
+//
+// One budget per rule: the processes the rule watches (and that have a model) share its budget
+// equally (Bonferroni), so watching switching and escape spends no more than watching one.
+//
 // While open the signalling statistic is held at most at h, so that it returns to zero a bounded
 // time after the rate does. The condition clears when that statistic is back at zero and the
 // ratio's interval over the horizon contains 1 again. Windows with zero exposure are skipped.
@@ -33,6 +51,7 @@ import type { RateDriftRule } from './rules';
 import { compileRates } from './expected';
 import { noiseFactor } from '../physics/occupation';
 import { attributeToTemperature, type TemperatureAttribution } from './temperature-attribution';
+import { activationX, BAND_SIGMAS, clampLnReference, lnBandHalfWidth, modelUncertainty, type ModelUncertainty } from './model-band';
 
 // Horizon columns; the first six are summed.
 const H_COUNT = 0;
@@ -41,8 +60,15 @@ const H_NOMINAL = 2;
 const H_T_SUM = 3;
 const H_MEASURED = 4;
 const H_EXPOSURE = 5;
-const H_SEQ = 6;
-const H_T_MS = 7;
+/** Chart prediction at the upper and lower edge of the reference band. */
+const H_UP = 6;
+const H_DOWN = 7;
+const H_SEQ = 8;
+const H_T_MS = 9;
+const H_WIDTH = 10;
+const H_SUMMED = 8;
+/** Two-sided confidence of the baseline's interval: ±2σ of a normal. */
+const BASELINE_CONFIDENCE = 0.9544997361036416;
 
 const spanSchema = z.object({
 	count: z.number().int().min(0),
@@ -54,6 +80,9 @@ const spanSchema = z.object({
 	T_sum: z.number(),
 	measured: z.number().int().min(0),
 	windows: z.number().int().min(0),
+	/** Chart prediction at the band's upper and lower edge (absent in snapshots from before the band: the prediction itself). */
+	expectedUp: z.number().optional(),
+	expectedDown: z.number().optional(),
 	fromSeq: z.number().int(),
 	from_ms: z.number(),
 	toSeq: z.number().int(),
@@ -69,7 +98,30 @@ const sideSchema = z.object({
 });
 type Side = z.infer<typeof sideSchema>;
 
+const baselineSchema = z.object({
+	/** 'learning': the chart compares with the model's band; 'set': with the run's own baseline. */
+	phase: z.enum(['learning', 'set']),
+	/** Seconds of windows with exposure learned from. */
+	learned_s: z.number().min(0),
+	count: z.number().int().min(0),
+	/** Chart prediction summed over the learning windows, and Σ prediction·x for their mean x. */
+	expected: z.number().min(0),
+	xWeighted: z.number(),
+	fromSeq: z.number().int().nullable(),
+	toSeq: z.number().int().nullable(),
+	/** Once set: mean x, ln of the observed/predicted estimate, and the reference interval of ln(true/predicted) at x. */
+	x: z.number().nullable(),
+	lnEstimate: z.number().nullable(),
+	lnLo: z.number().nullable(),
+	lnHi: z.number().nullable(),
+	/** The baseline's interval lies wholly outside the model's band. */
+	mismatch: z.boolean()
+});
+type Baseline = z.infer<typeof baselineSchema>;
+
 const processStateSchema = z.object({
+	/** Absent in snapshots from before the baseline: they start learning. */
+	baseline: baselineSchema.optional(),
 	up: sideSchema,
 	down: sideSchema,
 	/** Windows pooled into the step being built. */
@@ -90,10 +142,30 @@ const rateDriftStateSchema = z.object({
 export type RateDriftState = z.infer<typeof rateDriftStateSchema>;
 
 const freshSide = (): Side => ({ S: 0, since: null });
-const freshProcess = (): ProcessState => ({ up: freshSide(), down: freshSide(), block: null, horizon: null, openSide: null, steps: 0 });
+const freshBaseline = (): Baseline => ({
+	phase: 'learning',
+	learned_s: 0,
+	count: 0,
+	expected: 0,
+	xWeighted: 0,
+	fromSeq: null,
+	toSeq: null,
+	x: null,
+	lnEstimate: null,
+	lnLo: null,
+	lnHi: null,
+	mismatch: false
+});
+const freshProcess = (): ProcessState => ({ baseline: freshBaseline(), up: freshSide(), down: freshSide(), block: null, horizon: null, openSide: null, steps: 0 });
 
-function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null): Span {
-	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
+/** The key of the "operating point does not match its rate model" finding. */
+export const mismatchKey = (p: RateProcess) => `${p}:model`;
+
+function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null, up: number, down: number): Span {
+	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, expectedUp: 0, expectedDown: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
+	// A block restored from a snapshot from before the band has its windows at the prediction.
+	s.expectedUp = (s.expectedUp ?? s.expected) + up;
+	s.expectedDown = (s.expectedDown ?? s.expected) + down;
 	s.count += e.count;
 	s.expected += e.expected;
 	s.expectedNominal += e.expectedNominal;
@@ -109,6 +181,13 @@ function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: numbe
 
 /** What the chart compares with: the temperature-following or the nominal prediction. */
 const chartExpected = (rule: RateDriftRule, span: Span) => (rule.prediction === 'temperature' ? span.expected : span.expectedNominal);
+const upperExpected = (rule: RateDriftRule, span: Span) => span.expectedUp ?? chartExpected(rule, span);
+const lowerExpected = (rule: RateDriftRule, span: Span) => span.expectedDown ?? chartExpected(rule, span);
+
+// A span from an old snapshot lacks the band sums; the nominal-or-temperature choice is not known
+// here, so the temperature prediction stands in (the pre-band chart's default).
+const upOrChart = (s: Span) => s.expectedUp ?? s.expected;
+const downOrChart = (s: Span) => s.expectedDown ?? s.expected;
 
 function join(a: Span | null, b: Span): Span {
 	if (!a) return { ...b };
@@ -119,6 +198,8 @@ function join(a: Span | null, b: Span): Span {
 		T_sum: a.T_sum + b.T_sum,
 		measured: a.measured + b.measured,
 		windows: a.windows + b.windows,
+		expectedUp: upOrChart(a) + upOrChart(b),
+		expectedDown: downOrChart(a) + downOrChart(b),
 		fromSeq: a.fromSeq,
 		from_ms: a.from_ms,
 		toSeq: b.toSeq,
@@ -144,12 +225,18 @@ export function ratioEstimate(observed: number, expected: number, confidence: nu
 	};
 }
 
-function designInputs(rule: RateDriftRule, window_s: number) {
+/** Processes that share the rule's budget: those it watches that have a rate model (at least 1). */
+export function budgetShare(rule: RateDriftRule, run: DetectorContext<'rate_drift'>['run']): number {
+	return Math.max(1, rule.processes.filter((p) => run.rateModels?.[p]).length);
+}
+
+function designInputs(rule: RateDriftRule, window_s: number, share: number) {
 	return {
 		ratioUp: rule.ratioUp,
 		ratioDown: rule.ratioDown,
 		minExpectedPerStep: rule.minExpectedPerStep,
-		falseAlarmEvery_days: rule.falseAlarmEvery_days,
+		// Bonferroni across the processes: each chart gets share × the rule's run length.
+		falseAlarmEvery_days: rule.falseAlarmEvery_days * share,
 		window_s
 	};
 }
@@ -163,7 +250,8 @@ function ruleEvidence(rule: RateDriftRule): Evidence {
 		ratioDown: rule.ratioDown,
 		minExpectedPerStep: rule.minExpectedPerStep,
 		horizonWindows: rule.horizonWindows,
-		prediction: rule.prediction
+		prediction: rule.prediction,
+		baseline_h: rule.baseline_h
 	};
 }
 
@@ -179,6 +267,7 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 		for (const p of ['switching', 'escape'] as const) {
 			const watched = rule.processes.includes(p);
 			if (!watched) {
+				if (ctx.isOpen(mismatchKey(p))) signals.push(clearMismatch(p, frame.t, ctx, 'process_not_watched', frame.seq));
 				if (ctx.isOpen(p)) {
 					Object.assign(state[p], freshProcess());
 					signals.push({
@@ -194,8 +283,7 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 			}
 			const e = expected?.[p];
 			if (!e || !(e.exposure_s > 0)) continue;
-			const signal = onWindow(state, state[p], p, frame, e, ctx);
-			if (signal) signals.push(signal);
+			signals.push(...onWindow(state, state[p], p, frame, e, ctx));
 		}
 		return signals;
 	},
@@ -215,6 +303,10 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 				ps.down = freshSide();
 				ps.block = null;
 			}
+			// A baseline learned against the other prediction does not apply to this one.
+			if (previous.prediction !== next.prediction) ps.baseline = freshBaseline();
+			// Turning the baseline off while learning drops what was learned: a later one starts afresh.
+			if (previous.baseline_h !== next.baseline_h && ps.baseline?.phase === 'learning' && next.baseline_h === 0) ps.baseline = freshBaseline();
 			if (previous.horizonWindows !== next.horizonWindows) ps.horizon = null;
 		}
 		if (redesign) state.designs = {};
@@ -225,6 +317,8 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 		for (const p of ['switching', 'escape'] as const) {
 			const openSide = state[p].openSide;
 			Object.assign(state[p], freshProcess());
+			// The new model's band is another: the baseline is learned again against it.
+			if (ctx.isOpen(mismatchKey(p))) signals.push(clearMismatch(p, at_ms, ctx, 'rate_model_changed'));
 			if (openSide && ctx.isOpen(p)) {
 				// Evidence gathered against the old model cannot close against the new one.
 				signals.push({
@@ -247,35 +341,191 @@ function onWindow(
 	frame: Frame,
 	e: ProcessExpectation,
 	ctx: DetectorContext<'rate_drift'>
-): Signal | null {
+): Signal[] {
 	const { rule } = ctx;
 	const T = ctx.expected!;
+	const signals: Signal[] = [];
 	// The engine's open set is the truth (an opening of a disabled rule was dropped).
 	if (!ctx.isOpen(p)) ps.openSide = null;
 	else if (ps.openSide === null) ps.openSide = ps.up.S >= ps.down.S ? 'up' : 'down';
-	if (!ps.horizon || ps.horizon.size !== rule.horizonWindows) ps.horizon = createSliding(rule.horizonWindows, 8, 6);
-	pushRow(ps.horizon, [e.count, e.expected, e.expectedNominal, T.measured ? T.T_mK : 0, T.measured ? 1 : 0, e.exposure_s, frame.seq, frame.t]);
+	const baseline = (ps.baseline ??= freshBaseline());
+	const u = modelUncertainty(ctx.run, p)!;
+	const x = activationX(u, rule.prediction === 'temperature' ? T.T_mK : u.nominal_mK);
+	const chart = rule.prediction === 'temperature' ? e.expected : e.expectedNominal;
+	const [lo, hi] = referenceInterval(baseline, u, x);
+	const up = chart * Math.exp(hi);
+	const down = chart * Math.exp(lo);
 
-	ps.block = extend(ps.block, frame, e, T.measured ? T.T_mK : null);
-	let signal: Signal | null = null;
+	if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== H_WIDTH) ps.horizon = createSliding(rule.horizonWindows, H_WIDTH, H_SUMMED);
+	pushRow(ps.horizon, [e.count, e.expected, e.expectedNominal, T.measured ? T.T_mK : 0, T.measured ? 1 : 0, e.exposure_s, up, down, frame.seq, frame.t]);
+
+	ps.block = extend(ps.block, frame, e, T.measured ? T.T_mK : null, up, down);
 	const block = ps.block;
-	if (chartExpected(rule, block) >= rule.minExpectedPerStep) {
+	// Pooled until the smaller of the two sides' predictions fills a step.
+	if (Math.min(chartExpected(rule, block), lowerExpected(rule, block)) >= rule.minExpectedPerStep) {
 		ps.block = null;
-		signal = step(state, ps, p, block, frame, ctx);
+		const signal = step(state, ps, p, block, frame, ctx);
+		if (signal) signals.push(signal);
 	} else if (block.windows >= MAX_WINDOWS_PER_STEP) {
 		ps.block = null; // a rate this slow fills no step: the burst test still sees any excess
 	}
-	if (signal) return signal;
-	return maybeClear(ps, p, frame, ctx);
+
+	if (baseline.phase === 'learning' && rule.baseline_h > 0) {
+		const newMismatch = learn(baseline, u, frame, e.count, chart, x, rule.baseline_h);
+		if (newMismatch && !ctx.isOpen(mismatchKey(p))) signals.push(mismatchSignal(p, baseline, u, frame, ctx));
+		if ((baseline.phase as Baseline['phase']) === 'set' && ps.openSide === null) {
+			// From here the chart compares with the baseline: what it summed against the band is dropped.
+			ps.up = freshSide();
+			ps.down = freshSide();
+		}
+	}
+	if (signals.some((sg) => sg.key === p)) return signals;
+	const clear = maybeClear(ps, p, frame, ctx);
+	if (clear) signals.push(clear);
+	return signals;
 }
 
-/** h at the step's own predicted count, interpolated between grid designs; the budget is counted in windows of the step's length (window_s may change mid-run). */
-function designOf(state: RateDriftState, rule: RateDriftRule, block: Span, window_s: number): CusumDesign {
-	const inputs = designInputs(rule, window_s);
-	return designAt(chartExpected(rule, block), block.windows, inputs, (band) => {
-		const key = designKey(band, block.windows, window_s);
-		return (state.designs[key] ??= designFor(band, block.windows, inputs));
+/** [lo, hi] bounding ln(true/predicted) at x: the model's band while learning, then the baseline's (file comment). */
+function referenceInterval(b: Baseline, u: ModelUncertainty, x: number): [number, number] {
+	const band = lnBandHalfWidth(u, x);
+	if (b.phase === 'learning') return [clampLnReference(-band), clampLnReference(band)];
+	const spread = BAND_SIGMAS * u.A_sigma * Math.abs(x - b.x!);
+	let lo = b.lnLo! - spread;
+	let hi = b.lnHi! + spread;
+	if (!b.mismatch) {
+		lo = Math.max(lo, -band);
+		hi = Math.min(hi, band);
+	}
+	if (lo > hi) lo = hi = (lo + hi) / 2;
+	return [clampLnReference(lo), clampLnReference(hi)];
+}
+
+/** Adds one window to the baseline; once baseline_h hours are in, sets it. Returns whether it was set outside the model's band. */
+function learn(b: Baseline, u: ModelUncertainty, frame: Frame, count: number, chart: number, x: number, baseline_h: number): boolean {
+	b.learned_s += frame.window_s;
+	b.count += count;
+	b.expected += chart;
+	b.xWeighted += chart * x;
+	b.fromSeq ??= frame.seq;
+	b.toSeq = frame.seq;
+	if (b.learned_s < baseline_h * 3600 || !(b.expected > 0)) return false;
+	const { lower, upper } = poissonInterval(b.count, BASELINE_CONFIDENCE);
+	const lnLo = lower > 0 ? Math.log(lower / b.expected) : -Infinity;
+	const lnHi = Math.log(upper / b.expected);
+	b.x = b.xWeighted / b.expected;
+	const band = lnBandHalfWidth(u, b.x);
+	const wasMismatch = b.mismatch;
+	b.mismatch = wasMismatch || lnLo > band || lnHi < -band;
+	b.lnEstimate = clampLnReference(Math.log(Math.max(b.count, 0.5) / b.expected));
+	b.lnLo = clampLnReference(b.mismatch ? lnLo : Math.max(lnLo, -band));
+	b.lnHi = clampLnReference(b.mismatch ? lnHi : Math.min(lnHi, band));
+	b.phase = 'set';
+	return b.mismatch && !wasMismatch;
+}
+
+/** What the chart compared with over the span: the model's band or the run's baseline. */
+function referenceEvidence(ps: ProcessState, p: RateProcess, since: Span, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): { [key: string]: JsonValue } {
+	const chart = chartExpected(rule, since);
+	const b = ps.baseline ?? freshBaseline();
+	const u = modelUncertainty(ctx.run, p);
+	return {
+		basis: b.phase === 'set' ? 'baseline' : 'model band',
+		expectedUpper: upperExpected(rule, since),
+		expectedLower: lowerExpected(rule, since),
+		ratioUpper: chart > 0 ? upperExpected(rule, since) / chart : null,
+		ratioLower: chart > 0 ? lowerExpected(rule, since) / chart : null,
+		budgetShare: budgetShare(rule, ctx.run),
+		baseline: u ? baselineEvidence(b, u) : null,
+		uncertainty: u ? uncertaintyEvidence(u) : null
+	};
+}
+
+function baselineEvidence(b: Baseline, u: ModelUncertainty): { [key: string]: JsonValue } {
+	const band = b.x === null ? null : lnBandHalfWidth(u, b.x);
+	return {
+		phase: b.phase,
+		learned_s: b.learned_s,
+		fromSeq: b.fromSeq,
+		toSeq: b.toSeq,
+		observed: b.count,
+		expected: b.expected,
+		ratio: b.lnEstimate === null ? null : Math.exp(b.lnEstimate),
+		/** Reference interval of observed/predicted at the baseline's temperature. */
+		ratioLower: b.lnLo === null ? null : Math.exp(b.lnLo),
+		ratioUpper: b.lnHi === null ? null : Math.exp(b.lnHi),
+		modelBandLower: band === null ? null : Math.exp(-band),
+		modelBandUpper: band === null ? null : Math.exp(band),
+		mismatch: b.mismatch
+	};
+}
+
+function uncertaintyEvidence(u: ModelUncertainty): { [key: string]: JsonValue } {
+	return { W0_sigma: u.W0_sigma, A_sigma: u.A_sigma, covariance: u.covariance, stated: u.stated, bandSigmas: BAND_SIGMAS };
+}
+
+function mismatchSignal(
+	p: RateProcess,
+	b: Baseline,
+	u: ModelUncertainty,
+	frame: Frame,
+	ctx: DetectorContext<'rate_drift'>,
+	early?: { summary: string; evidence: { [key: string]: JsonValue } }
+): Signal {
+	const what = p === 'switching' ? 'switching' : 'escape';
+	const ev = baselineEvidence(b, u);
+	const hours = fmt(b.learned_s / 3600);
+	if (early) {
+		return {
+			type: 'open',
+			key: mismatchKey(p),
+			severity: 'info',
+			at_ms: frame.t,
+			seq: frame.seq,
+			summary: early.summary,
+			evidence: { ...ruleEvidence(ctx.rule), process: p, found: 'chart', ...early.evidence, baseline: ev, uncertainty: uncertaintyEvidence(u), rateModel: rateModelEvidence(ctx.run, p) }
+		};
+	}
+	return {
+		type: 'open',
+		key: mismatchKey(p),
+		severity: 'info',
+		at_ms: frame.t,
+		seq: frame.seq,
+		summary: `This operating point does not match its ${what} rate model: over the first ${hours} h the rate was ${fmt(Number(ev.ratio))} × the prediction (${fmt(Number(ev.ratioLower))}–${fmt(Number(ev.ratioUpper))}), outside the model's ${BAND_SIGMAS}σ band ${fmt(Number(ev.modelBandLower))}–${fmt(Number(ev.modelBandUpper))}; drift is judged against this run's own rate from now on`,
+		evidence: { ...ruleEvidence(ctx.rule), process: p, found: 'baseline', baseline: ev, uncertainty: uncertaintyEvidence(u), rateModel: rateModelEvidence(ctx.run, p) }
+	};
+}
+
+function clearMismatch(p: RateProcess, at_ms: number, ctx: DetectorContext<'rate_drift'>, reason: string, seq?: number): Signal {
+	return {
+		type: 'clear',
+		key: mismatchKey(p),
+		at_ms,
+		...(seq === undefined ? {} : { seq }),
+		summary: reason === 'rate_model_changed' ? `The ${p} rate model changed; its match is judged again over the next baseline` : `The rule no longer watches the ${p} rate`,
+		evidence: { ...ruleEvidence(ctx.rule), process: p, reason }
+	};
+}
+
+/**
+ * h at one side's own reference count, interpolated between grid designs (cached in the state);
+ * the budget is counted in windows of the step's length (window_s may change mid-run) and shared
+ * between the processes the rule watches.
+ */
+function designSide(state: RateDriftState, rule: RateDriftRule, muStep: number, windowsPerStep: number, share: number, window_s: number): CusumDesign {
+	const inputs = designInputs(rule, window_s, share);
+	return designAt(muStep, windowsPerStep, inputs, (band) => {
+		const key = `${designKey(band, windowsPerStep, window_s)}:${share}`;
+		return (state.designs[key] ??= designFor(band, windowsPerStep, inputs));
 	});
+}
+
+/** Each side's h comes from the band of its own reference count. */
+function designOf(state: RateDriftState, rule: RateDriftRule, block: Span, run: DetectorContext<'rate_drift'>['run'], window_s: number): CusumDesign {
+	const share = budgetShare(rule, run);
+	const up = designSide(state, rule, upperExpected(rule, block), block.windows, share, window_s);
+	const down = designSide(state, rule, lowerExpected(rule, block), block.windows, share, window_s);
+	return { ...up, hDown: down.hDown };
 }
 
 function advance(side: Side, S: number, block: Span): void {
@@ -285,13 +535,30 @@ function advance(side: Side, S: number, block: Span): void {
 
 function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Span, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {
 	const { rule } = ctx;
-	const d = designOf(state, rule, block, frame.window_s);
+	const d = designOf(state, rule, block, ctx.run, frame.window_s);
 	ps.steps += 1;
-	const mu = chartExpected(rule, block);
-	advance(ps.up, poissonCusumStep(ps.up.S, block.count, mu, rule.ratioUp), block);
-	advance(ps.down, poissonCusumStep(ps.down.S, block.count, mu, rule.ratioDown), block);
+	advance(ps.up, poissonCusumStep(ps.up.S, block.count, upperExpected(rule, block), rule.ratioUp), block);
+	advance(ps.down, poissonCusumStep(ps.down.S, block.count, lowerExpected(rule, block), rule.ratioDown), block);
 	const overUp = ps.up.S >= d.hUp;
 	const overDown = ps.down.S >= d.hDown;
+
+	const baseline = ps.baseline!;
+	if (ps.openSide === null && baseline.phase === 'learning' && rule.baseline_h > 0) {
+		// Still learning: a rate beyond the model's band is the model's mismatch, not a page.
+		if (!overUp && !overDown) return null;
+		const side = overUp && (!overDown || ps.up.S / d.hUp >= ps.down.S / d.hDown) ? 'up' : 'down';
+		const since = (side === 'up' ? ps.up : ps.down).since!;
+		const statistic = side === 'up' ? ps.up.S : ps.down.S;
+		ps.up = freshSide();
+		ps.down = freshSide();
+		if (baseline.mismatch) return null;
+		baseline.mismatch = true;
+		const r = ratioEstimate(since.count, chartExpected(rule, since), rule.confidence);
+		return mismatchSignal(p, baseline, modelUncertainty(ctx.run, p)!, frame, ctx, {
+			summary: `So far this operating point does not match its ${p} rate model: the rate is ${range(r)} × the prediction over ${since.windows} windows, beyond the model's ${BAND_SIGMAS}σ band (CUSUM ${fmt(statistic)} ≥ h = ${fmt(side === 'up' ? d.hUp : d.hDown)}); the run's own baseline is still being learned`,
+			evidence: { direction: side, statistic, decisionInterval: side === 'up' ? d.hUp : d.hDown, ratio: { ...r }, sinceChange: { fromSeq: since.fromSeq, toSeq: since.toSeq, windows: since.windows, observed: since.count, expected: chartExpected(rule, since) } }
+		});
+	}
 
 	if (ps.openSide === null) {
 		if (!overUp && !overDown) return null;
@@ -341,6 +608,9 @@ function horizonEvidence(h: Sliding, confidence: number): { [key: string]: JsonV
 		observed: h.sums[H_COUNT],
 		expected: h.sums[H_EXPECTED],
 		expectedAtNominal: h.sums[H_NOMINAL],
+		/** The chart's prediction at the reference band's upper and lower edge. */
+		referenceUpper: h.sums[H_UP],
+		referenceLower: h.sums[H_DOWN],
 		exposure_s: h.sums[H_EXPOSURE],
 		ratio: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_EXPECTED], confidence) },
 		ratioAtNominal: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_NOMINAL], confidence) },
@@ -404,6 +674,7 @@ function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d:
 		decisionInterval: side === 'up' ? d.hUp : d.hDown,
 		design: { ...d },
 		steps: ps.steps,
+		reference: referenceEvidence(ps, p, since, rule, ctx),
 		sinceChange: {
 			fromSeq: since.fromSeq,
 			toSeq: since.toSeq,
@@ -504,7 +775,10 @@ function maybeClear(ps: ProcessState, p: RateProcess, frame: Frame, ctx: Detecto
 	const h = ps.horizon!;
 	const chart = rule.prediction === 'temperature' ? H_EXPECTED : H_NOMINAL;
 	const r = ratioEstimate(h.sums[H_COUNT], h.sums[chart], rule.confidence);
-	if (r.significant) return null;
+	// Back when the horizon's interval meets the reference band, not the point prediction: a rate
+	// inside the band would otherwise keep it "significant" for good.
+	const { lower, upper } = poissonInterval(h.sums[H_COUNT], rule.confidence);
+	if (lower > h.sums[H_UP] || upper < h.sums[H_DOWN]) return null;
 	const openSide = ps.openSide;
 	ps.openSide = null;
 	if (!ctx.isOpen(p)) return null;
@@ -513,7 +787,7 @@ function maybeClear(ps: ProcessState, p: RateProcess, frame: Frame, ctx: Detecto
 		key: p,
 		at_ms: frame.t,
 		seq: frame.seq,
-		summary: `${p === 'switching' ? 'Switching' : 'Escape'} rate back at the prediction: ratio ${range(r)} over the last ${h.len} windows, CUSUM back at 0`,
+		summary: `${p === 'switching' ? 'Switching' : 'Escape'} rate back within its reference band: ratio ${range(r)} over the last ${h.len} windows, CUSUM back at 0`,
 		evidence: {
 			...ruleEvidence(rule),
 			process: p,

@@ -92,7 +92,18 @@ export const rateDriftRuleSchema = z
 		 * temperature explains the excess (temperature-attribution.ts).
 		 */
 		prediction: z.enum(['temperature', 'nominal']).default('temperature'),
-		/** Rates the chart watches, each with its own incident (key = the process). */
+		/**
+		 * Hours of the run's first windows from which its own baseline rate is learned. Until then
+		 * the chart compares with the edges of the rate model's 2σ band and a rate beyond it is an
+		 * info finding (the operating point does not match its model), not a page; after it the
+		 * chart compares with the baseline, within its own uncertainty. 0: never learn, compare with
+		 * the model's band for the whole run and page on it.
+		 */
+		baseline_h: z.number().min(0, 'must not be negative').max(168, 'must be at most 168 hours (a week)').default(2),
+		/**
+		 * Rates the chart watches, each with its own incident (key = the process). They share the
+		 * rule's budget: each chart's run length is the budget × the number watched (Bonferroni).
+		 */
 		processes: z
 			.array(z.enum(['switching', 'escape']))
 			.min(1, 'must name at least one process')

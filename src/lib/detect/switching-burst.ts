@@ -11,6 +11,10 @@
 // p ≥ clearPValue: a far weaker level than α, so it does not flap; a burst stays inside the
 // horizon for horizonWindows windows, so it clears no sooner than that after the burst.
 //
+// No rate model is exact, so each test compares with the upper edge of the model's band (the
+// prediction × e^{2σ(ln W)} at the window's temperature, model-band.ts): a true rate anywhere in
+// the band then opens at most at α. What is tested is an excess beyond what the model allows.
+//
 // Windows with zero exposure (dwell_s = 0, or vacuum_s = 0 for escapes) carry no rate information:
 // they are not tested and not added to the horizon, and do not count as quiet. (A count with zero
 // exposure is inconsistent; it never becomes NaN, it is ignored.) A predicted count that is zero
@@ -28,13 +32,18 @@ import { createSliding, oldest, pushRow, slidingSchema } from './sliding';
 import { fmt, fmtP, rateModelEvidence } from './rate-evidence';
 import type { SwitchingBurstRule } from './rules';
 import type { Frame } from '../protocol/frame';
+import { activationX, BAND_SIGMAS, clampLnReference, lnBandHalfWidth, modelUncertainty } from './model-band';
 
-// Horizon columns: the first three are summed.
+// Horizon columns: the first four are summed.
 const COUNT = 0;
 const EXPECTED = 1;
-const EXPOSURE = 2;
-const SEQ = 3;
-const T_MS = 4;
+/** The prediction at the upper edge of the model's band: what is tested. */
+const TESTED = 2;
+const EXPOSURE = 3;
+const SEQ = 4;
+const T_MS = 5;
+const WIDTH = 6;
+const SUMMED = 4;
 
 const processStateSchema = z.object({
 	horizon: slidingSchema.nullable(),
@@ -55,7 +64,10 @@ type Test = {
 	process: RateProcess;
 	scope: 'window' | 'horizon';
 	observed: number;
+	/** The model's prediction. */
 	expected: number;
+	/** The upper edge of its band, which the p-value is against. */
+	tested: number;
 	exposure_s: number;
 	fromSeq: number;
 	toSeq: number;
@@ -89,12 +101,13 @@ function testEvidence(t: Test, alpha: number): { [key: string]: JsonValue } {
 		scope: t.scope,
 		observed: t.observed,
 		expected: t.expected,
+		testedAgainst: t.tested,
 		exposure_s: t.exposure_s,
 		// Exact here even where the decision skipped it (k ≤ μ, where it is at least 1/2).
-		pValue: poissonUpperTail(t.observed, t.expected),
+		pValue: poissonUpperTail(t.observed, t.tested),
 		alpha,
-		/** Smallest count this expectation would have flagged at this α. */
-		thresholdCount: poissonThresholdForTail(t.expected, alpha),
+		/** Smallest count the band's upper edge would have flagged at this α. */
+		thresholdCount: poissonThresholdForTail(t.tested, alpha),
 		fromSeq: t.fromSeq,
 		toSeq: t.toSeq,
 		from_ms: t.from_ms,
@@ -114,6 +127,11 @@ function ruleEvidence(rule: SwitchingBurstRule): Evidence {
 	};
 }
 
+function uncertaintyOf(run: DetectorContext<'switching_burst'>['run'], p: RateProcess): { [key: string]: JsonValue } | null {
+	const u = modelUncertainty(run, p);
+	return u && { W0_sigma: u.W0_sigma, A_sigma: u.A_sigma, covariance: u.covariance, stated: u.stated, bandSigmas: BAND_SIGMAS };
+}
+
 const noun = (p: RateProcess, n: number) => (p === 'switching' ? (n === 1 ? 'switch' : 'switches') : n === 1 ? 'escape' : 'escapes');
 
 export const switchingBurst: Detector<'switching_burst', SwitchingBurstState> = {
@@ -131,36 +149,40 @@ export const switchingBurst: Detector<'switching_burst', SwitchingBurstState> = 
 		for (const p of active) {
 			const e = expected[p]!;
 			const ps = state[p];
+			const u = modelUncertainty(ctx.run, p)!;
+			const tested = e.expected * Math.exp(clampLnReference(lnBandHalfWidth(u, activationX(u, expected.T_mK))));
 			tests.push({
 				process: p,
 				scope: 'window',
 				observed: e.count,
 				expected: e.expected,
+				tested,
 				exposure_s: e.exposure_s,
 				fromSeq: frame.seq,
 				toSeq: frame.seq,
 				from_ms: frame.t,
 				to_ms: frame.t,
 				windows: 1,
-				pValue: tail(e.count, e.expected, exact)
+				pValue: tail(e.count, tested, exact)
 			});
 			if (rule.horizonWindows >= 2) {
-				if (!ps.horizon || ps.horizon.size !== rule.horizonWindows) ps.horizon = createSliding(rule.horizonWindows, 5, 3);
+				if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== WIDTH) ps.horizon = createSliding(rule.horizonWindows, WIDTH, SUMMED);
 				const h = ps.horizon;
-				pushRow(h, [e.count, e.expected, e.exposure_s, frame.seq, frame.t]);
+				pushRow(h, [e.count, e.expected, tested, e.exposure_s, frame.seq, frame.t]);
 				if (h.len >= 2) {
 					tests.push({
 						process: p,
 						scope: 'horizon',
 						observed: h.sums[COUNT],
 						expected: h.sums[EXPECTED],
+						tested: h.sums[TESTED],
 						exposure_s: h.sums[EXPOSURE],
 						fromSeq: oldest(h, SEQ),
 						toSeq: frame.seq,
 						from_ms: oldest(h, T_MS),
 						to_ms: frame.t,
 						windows: h.len,
-						pValue: tail(h.sums[COUNT], h.sums[EXPECTED], exact)
+						pValue: tail(h.sums[COUNT], h.sums[TESTED], exact)
 					});
 				}
 			}
@@ -227,7 +249,8 @@ function judge(
 		worst: testEvidence(worst, alpha),
 		tests: mine.map((t) => testEvidence(t, alpha)),
 		temperature: { T_mK: expected!.T_mK, measured: expected!.measured },
-		rateModel: rateModelEvidence(run, p)
+		rateModel: rateModelEvidence(run, p),
+		uncertainty: uncertaintyOf(run, p)
 	});
 	if (!ctx.isOpen(p)) {
 		if (!alarm) return null;
@@ -241,7 +264,7 @@ function judge(
 			severity: 'critical',
 			at_ms: frame.t,
 			seq: frame.seq,
-			summary: `${worst.observed} ${noun(p, worst.observed)} ${span} where the rate model predicts ${fmt(worst.expected)} (${fmtP(worst.pValue)}, limit α = ${alpha.toExponential(1)})`,
+			summary: `${worst.observed} ${noun(p, worst.observed)} ${span} where the rate model predicts ${fmt(worst.expected)}, at most ${fmt(worst.tested)} within its band (${fmtP(worst.pValue)}, limit α = ${alpha.toExponential(1)})`,
 			evidence: detail()
 		};
 	}

@@ -4,6 +4,14 @@ import { z } from 'zod';
 const finite = z.number().finite();
 const range = z.tuple([finite, finite]).refine(([a, b]) => a <= b, { message: 'range must be [min, max]' });
 
+/**
+ * The uncertainty a rate model is taken to have when it states none (neither W0_sigma nor
+ * A_sigma): σ(ln W0) = 0.1 and σ(A) = 5 % of A, uncorrelated — a carefully calibrated model's
+ * typical error, so that the detectors' false-alarm budgets do not rest on an exact prediction.
+ * A model that states its uncertainty (even 0) is taken at its word.
+ */
+export const DEFAULT_RATE_MODEL_UNCERTAINTY = { W0_sigma: 0.1, A_sigma_fraction: 0.05 } as const;
+
 export const operatingPointSchema = z.object({
 	detuning: finite,
 	damping: finite.positive('damping must be positive'),

@@ -19,7 +19,8 @@ function scriptedRun(): Frame[] {
 		.filter((f) => f.seq < 2000 || f.seq > 2040) // windows that never arrived
 		.map((f) => (f.seq >= 3700 && f.seq < 3720 ? { ...f, lock: 0.2 } : f));
 }
-const rules = { rate_drift: { horizonWindows: 120 }, occupancy_imbalance: { horizonWindows: 200 } };
+// the scripted drift comes early in the run: charted against the model, not a learned baseline
+const rules = { rate_drift: { horizonWindows: 120, baseline_h: 0 }, occupancy_imbalance: { horizonWindows: 200 } };
 const run = run6({ switching: warmSwitching }, { openedAt_ms: T0_ms });
 const kindsOf = (events: DetectorEvent[]) => events.filter((e) => e.type === 'open').map((e) => `${e.kind}:${e.key ?? ''}`);
 

@@ -129,3 +129,42 @@ export function countFrames(o: { seed: number; windows: number; mean: (i: number
 	}
 	return frames;
 }
+
+/**
+ * Frames whose switch and escape counts alone are drawn: Poisson(switchRate(i)·dwell_s) and
+ * Poisson(escapeRate(i)·vacuum_s), one window a second, with aux.mxc_mK = T_mK(i) when given.
+ */
+export function rateFrames(o: {
+	seed: number;
+	windows: number;
+	switchRate: (i: number) => number;
+	escapeRate?: (i: number) => number;
+	dwell_s?: number;
+	vacuum_s?: number;
+	T_mK?: (i: number) => number | null;
+	firstSeq?: number;
+}): Frame[] {
+	const u = rng(o.seed);
+	const dwell_s = o.dwell_s ?? 1;
+	const vacuum_s = o.vacuum_s ?? 0;
+	const frames: Frame[] = [];
+	for (let i = 0; i < o.windows; i++) {
+		const seq = (o.firstSeq ?? 1) + i;
+		const T = o.T_mK?.(i) ?? null;
+		frames.push({
+			seq,
+			t: T0_ms + seq * 1000,
+			window_s: 1,
+			shots: 60,
+			vacuum: Math.round(60 * vacuum_s),
+			counts: new Array(6).fill((60 - Math.round(60 * vacuum_s)) / 6),
+			lock: 0.95,
+			switches: poisson(u, o.switchRate(i) * dwell_s),
+			dwell_s,
+			escapes: o.escapeRate ? poisson(u, o.escapeRate(i) * vacuum_s) : 0,
+			vacuum_s,
+			...(T === null ? {} : { aux: { mxc_mK: T } })
+		});
+	}
+	return frames;
+}

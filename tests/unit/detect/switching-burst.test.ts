@@ -199,7 +199,7 @@ describe('switching_burst, edges', () => {
 	});
 
 	it('escapes over vacuum_s are tested when the rule says the run is locked', () => {
-		const escape = { process: 'escape' as const, W0_per_s: 5, A: 0, mode_GHz: 5, nominal_mK: 20 };
+		const escape = { process: 'escape' as const, W0_per_s: 5, A: 0, mode_GHz: 5, nominal_mK: 20, W0_sigma: 0, A_sigma: 0 };
 		const run = run6({ switching: flatSwitching(2), escape });
 		const fs = [...calm(1, 10).map((f) => ({ ...f, vacuum_s: 0.1 })), win(11, 2, { vacuum_s: 0.1, escapes: 9 })];
 		expect(burstEvents(feed(new DetectorEngine({}, run), fs))).toEqual([]);

@@ -1,7 +1,12 @@
 // What each detector rule's fields mean to a person: label, unit and a one-line explanation, in form order.
 // Fields the schema gains later without an entry here still appear (see rules-form.ts), only plainer.
 
+import { DEFAULT_RATE_MODEL_UNCERTAINTY } from '$lib/physics/rate-model-schema';
+
 export type Option = { value: string; label: string };
+
+/** The uncertainty assumed for a rate model that states none, in words for the rules page. */
+export const DEFAULT_UNCERTAINTY_TEXT = `σ(ln W0) = ${DEFAULT_RATE_MODEL_UNCERTAINTY.W0_sigma} and σ(A) = ${DEFAULT_RATE_MODEL_UNCERTAINTY.A_sigma_fraction * 100} % of A`;
 
 export type FieldSpec =
 	| { key: string; type: 'number'; label: string; unit?: string; hint: string; integer?: boolean; optional?: boolean; budget?: boolean }
@@ -84,7 +89,7 @@ export const KIND_SPECS: KindSpec[] = [
 		title: 'Switching burst',
 		severity: 'critical',
 		explanation:
-			'More switches in one window, or over a sliding horizon of windows, than the predicted rate makes plausible (exact Poisson upper tail). The opening level comes from the false-alarm budget, not from a hand-picked count; without a rate model the rule stays idle.',
+			`More switches in one window, or over a sliding horizon of windows, than the rate model allows (exact Poisson upper tail). No model is exact, so the tests compare with the upper edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance at the window's temperature; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}): the budget holds for any true rate inside the band. The opening level comes from the false-alarm budget, shared by all tests and processes of the rule; without a rate model the rule stays idle.`,
 		fields: [
 			budget('Each window spends window length ÷ budget of it, so the budget holds whatever the frame rate.'),
 			{
@@ -108,11 +113,11 @@ export const KIND_SPECS: KindSpec[] = [
 	{
 		kind: 'rate_drift',
 		title: 'Rate drift',
-		severity: 'warning',
+		severity: 'warning (info when the operating point does not match its model)',
 		explanation:
-			'A lasting change of the rate against the prediction, long before any single window shows it: a two-sided Poisson CUSUM on observed ÷ predicted counts. Its decision interval follows from the in-control run length you choose.',
+			`A lasting change of the rate, long before any single window shows it: a two-sided Poisson CUSUM on observed ÷ predicted counts, whose decision interval follows from the budget. No model is exact: over the run's first hours (the baseline) each side compares with the edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}), and a rate beyond the band is reported once, as info ("this operating point does not match its rate model"), not paged. After that the chart compares with the run's own baseline rate within its uncertainty, so what pages is a change. The budget holds for any true rate inside the band, and is one budget for the rule: the watched rates share it.`,
 		fields: [
-			budget('The chart’s average time between false alarms while the rate is as predicted.'),
+			budget('The rule’s average time between false alarms while the true rate lies within the model’s 2σ band; the watched rates share it (each chart runs at this × the number of rates watched).'),
 			{ key: 'ratioUp', type: 'number', label: 'Tuned to a rise by', unit: '× predicted, > 1', hint: 'The rate ratio the upper chart detects fastest.' },
 			{ key: 'ratioDown', type: 'number', label: 'Tuned to a fall to', unit: '× predicted, 0–1', hint: 'The rate ratio the lower chart detects fastest.' },
 			{
@@ -130,6 +135,13 @@ export const KIND_SPECS: KindSpec[] = [
 				integer: true,
 				hint: 'Recent windows over which the incident reports the observed ÷ predicted ratio, and clears.'
 			},
+			{
+				key: 'baseline_h',
+				type: 'number',
+				label: 'Learn the run’s baseline over its first',
+				unit: 'hours',
+				hint: 'Until then drift beyond the model’s band is an info finding; after, the chart judges change against this baseline. 0: never learn, page against the model’s band all run.'
+			},
 			{ key: 'confidence', type: 'number', label: 'Interval confidence', unit: 'two-sided, 0–1', hint: 'Confidence of the exact ratio intervals in the evidence.' },
 			{
 				key: 'prediction',
@@ -145,7 +157,7 @@ export const KIND_SPECS: KindSpec[] = [
 				key: 'processes',
 				type: 'multi',
 				label: 'Rates watched',
-				hint: 'Each watched rate has its own chart and its own incident.',
+				hint: 'Each watched rate has its own chart and its own incident; they share the rule’s budget.',
 				options: [
 					{ value: 'switching', label: 'switching between phase states' },
 					{ value: 'escape', label: 'escape from vacuum' }
