@@ -38,7 +38,7 @@ export async function restoreEngine(db: Db, runId: string, rules: unknown, info:
 	engine ??= new DetectorEngine(rules, info);
 	let replayed = 0;
 	// Late frames filled gaps after higher seqs had been fed: live never fed them, nor does this.
-	for await (const page of framePages(db, runId, { afterSeq: engine.lastSeq, skipLate: true })) {
+	for await (const page of framePages(db, runId, { afterSeq: engine.lastSeq, skipLate: true, withoutIq: true })) {
 		for (const stored of page) engine.onFrame(stored.frame, stored.receivedAt_ms);
 		replayed += page.length;
 	}

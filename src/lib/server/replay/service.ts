@@ -31,7 +31,7 @@ export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown, 
 		listIncidents(db, { run: run.id, sort: 'openedAt', order: 'asc', page: 1, pageSize: 200 })
 	]);
 	// Late frames (filled a gap after a higher seq) were stored but never fed to the live detectors.
-	const pages = pagesOf(framePages(db, run.id, { pageSize: control.pageSize ?? REPLAY_PAGE_ROWS, skipLate: true }));
+	const pages = pagesOf(framePages(db, run.id, { pageSize: control.pageSize ?? REPLAY_PAGE_ROWS, skipLate: true, withoutIq: true }));
 	const { frameCount, incidents: replayed } = await replayInWorker(pages, { rules, run: info, endedAt_ms: run.endedAt?.getTime() }, control);
 	const actual = await asReplayable(db, run.id, actualList.incidents);
 	const comparison = compareReplay(actual, replayed);
@@ -49,9 +49,25 @@ export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown, 
 	};
 }
 
+/**
+ * Share of the main thread (and of the one database connection) a replay may take: after each
+ * page it waits twice as long as the page took to read, so live ingest keeps its acks prompt while
+ * a day-long run is replayed; the replay is slower, and says how far it is.
+ */
+const REPLAY_DUTY = 1 / 3;
+
 async function* pagesOf(stored: ReturnType<typeof framePages>): AsyncGenerator<FramePage> {
-	for await (const page of stored) {
-		yield { frames: page.map((s) => s.frame), receivedAt_ms: page.map((s) => s.receivedAt_ms) };
+	const iterator = stored[Symbol.asyncIterator]();
+	for (;;) {
+		const started = performance.now();
+		const next = await iterator.next();
+		if (next.done) return;
+		const page = next.value;
+		const frames = page.map((s) => s.frame);
+		const receivedAt_ms = page.map((s) => s.receivedAt_ms);
+		const busy_ms = performance.now() - started;
+		await new Promise((resolve) => setTimeout(resolve, (busy_ms * (1 - REPLAY_DUTY)) / REPLAY_DUTY));
+		yield { frames, receivedAt_ms };
 	}
 }
 

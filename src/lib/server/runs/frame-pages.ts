@@ -1,6 +1,6 @@
 // Long reads of a run's frames, a page at a time by seq (keyset), yielding to the event loop
 // between pages so a day-long run never loads into memory at once nor blocks live ingest.
-import { and, asc, eq, gt, lte, type SQL } from 'drizzle-orm';
+import { and, asc, eq, getTableColumns, gt, lte, type SQL } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
 import type { Db } from '../db';
 import { frames } from '../db/schema';
@@ -22,7 +22,11 @@ export interface FramePageOptions {
 	/** Leave out frames that filled a gap after a higher seq (the detectors never saw them). */
 	skipLate?: boolean;
 	pageSize?: number;
+	/** Leave out the IQ histograms (the detectors never read them; they are most of a row's bytes). */
+	withoutIq?: boolean;
 }
+
+const { iq: _iq, ...columnsWithoutIq } = getTableColumns(frames);
 
 /** Pages of stored frames in seq order. */
 export async function* framePages(db: Db, runId: string, options: FramePageOptions = {}): AsyncGenerator<StoredFrame[]> {
@@ -33,14 +37,14 @@ export async function* framePages(db: Db, runId: string, options: FramePageOptio
 		if (options.toSeq !== undefined) where.push(lte(frames.seq, options.toSeq));
 		if (options.skipLate) where.push(eq(frames.late, false));
 		const rows = await db
-			.select()
+			.select(options.withoutIq ? columnsWithoutIq : getTableColumns(frames))
 			.from(frames)
 			.where(and(...where))
 			.orderBy(asc(frames.seq))
 			.limit(pageSize);
 		if (rows.length === 0) return;
 		after = rows[rows.length - 1].seq;
-		yield rows.map((r) => ({ frame: rowToFrame(r), receivedAt_ms: r.receivedAt.getTime(), late: r.late }));
+		yield rows.map((r) => ({ frame: rowToFrame({ iq: null, ...r }), receivedAt_ms: r.receivedAt.getTime(), late: r.late }));
 		if (rows.length < pageSize) return;
 		await new Promise((resolve) => setImmediate(resolve));
 	}
