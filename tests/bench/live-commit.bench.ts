@@ -103,8 +103,17 @@ async function main() {
 			[
 				{ measure: 'commit cost, send → ack, median', app: median(times.app), baseline: median(times.raw), unit: 'ms', target: { on: 'ratio', atMost: 2 } },
 				{ measure: 'commit cost, send → ack, p95', app: percentile(times.app, 0.95), baseline: percentile(times.raw, 0.95), unit: 'ms', target: { on: 'none' } },
-				{ measure: `folder growth per frame, frames 1–${half}`, app: perFrame(0, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
-				{ measure: `folder growth per frame, frames ${half + 1}–${2 * half}`, app: perFrame(1, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
+				{
+					measure: `folder growth per frame, over all ${2 * half} frames`,
+					app: (sizes[2].all - sizes[0].all) / (2 * half) / 1024,
+					baseline: rawRow.tablePerRow / 1024,
+					unit: 'kB',
+					target: { on: 'app', atMost: 2, unit: 'kB' }
+				},
+				// Flat: the second half must grow no faster than the first. The first half of a new folder
+				// also holds pg_wal's one-time growth to its minimum size (a 16 MB segment).
+				{ measure: `… frames 1–${half}`, app: perFrame(0, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } },
+				{ measure: `… frames ${half + 1}–${2 * half}`, app: perFrame(1, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
 				{ measure: `… without pg_wal, frames 1–${half}`, app: perFrame(0, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } },
 				{ measure: `… without pg_wal, frames ${half + 1}–${2 * half}`, app: perFrame(1, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } }
 			],

@@ -36,8 +36,14 @@ export function durableStartParams(defaults: readonly string[]): string[] {
 		'-c',
 		'wal_sync_method=fsync',
 		'-c',
-		'max_wal_size=64MB',
+		'max_wal_size=128MB',
 		'-c',
-		'min_wal_size=32MB'
+		'min_wal_size=32MB',
+		// WebAssembly memory only grows: a smaller buffer cache (the host's page cache holds the rest)
+		// and a smaller VACUUM work area bound what a busy server keeps resident.
+		'-c',
+		'shared_buffers=32MB',
+		'-c',
+		'maintenance_work_mem=16MB'
 	];
 }

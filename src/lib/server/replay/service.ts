@@ -17,7 +17,7 @@ import type { FramePage } from './worker-protocol';
  * Rows per page read for a replay. PGlite runs in this process, so a query holds the event loop
  * for as long as it takes: pages stay small, and live ingest gets a turn between them.
  */
-export const REPLAY_PAGE_ROWS = 500;
+export const REPLAY_PAGE_ROWS = 200;
 
 export interface ReplayStoredRunOptions extends ReplayControl {
 	pageSize?: number;
