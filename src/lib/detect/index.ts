@@ -14,7 +14,18 @@ export { auxLimit, AUX_EVIDENCE_WINDOWS, type AuxLimitState } from './aux-limit'
 export { expectFrame, compileRates, measuredTemperature, TEMPERATURE_AUX, type FrameExpectation, type ProcessExpectation } from './expected';
 export { windowAlpha, budgetWindows } from './budget';
 export { designFor, bandOf, type CusumDesign } from './cusum-design';
-export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
+export {
+	occupancyModes,
+	occupancyStatistic,
+	observedModes,
+	occupancyStatisticFromModes,
+	chiSquareUpperTail,
+	binomialUpperTail,
+	type OccupancyModes,
+	type OccupancyTest,
+	type SampledModes
+} from './occupancy-model';
+export { batchMeansOccupancy, type BatchMeansTest } from './occupancy-batch';
 export {
 	replayRun,
 	Replayer,

@@ -19,7 +19,7 @@ import type { Detector, DetectorContext } from './detector';
 import type { Evidence, JsonValue, Signal } from './events';
 import type { Frame } from '../protocol/frame';
 import { windowAlpha } from './budget';
-import { createSliding, oldest, pushRow, slidingSchema, valueAt, type Sliding } from './sliding';
+import { createSliding, oldest, pushRow, slidingSchema, type Sliding } from './sliding';
 import {
 	binomialUpperTail,
 	chiSquareUpperTail,
@@ -156,10 +156,17 @@ function horizonOccupancy(state: OccupancyImbalanceState, h: Sliding, K: number,
 	if (h.len < h.size || h.len < 2 * BATCHES) return null;
 	const perBatch = Math.floor(h.len / BATCHES);
 	const skip = h.len - perBatch * BATCHES;
+	// Rows are read in place (oldest first from the write position): this runs on every window.
 	const batches: number[][] = [];
+	const start = h.len === h.size ? h.head : 0;
 	for (let b = 0; b < BATCHES; b++) {
 		const counts = new Array<number>(K).fill(0);
-		for (let r = skip + b * perBatch; r < skip + (b + 1) * perBatch; r++) for (let i = 0; i < K; i++) counts[i] += valueAt(h, r, i);
+		for (let r = skip + b * perBatch; r < skip + (b + 1) * perBatch; r++) {
+			let base = start + r;
+			if (base >= h.size) base -= h.size;
+			base *= h.width;
+			for (let i = 0; i < K; i++) counts[i] += h.rows[base + i];
+		}
 		batches.push(counts);
 	}
 	return batchMeansOccupancy(batches, occupancyModes(K, rule.expectedPairs).vectors);
