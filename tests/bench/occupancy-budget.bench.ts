@@ -39,7 +39,7 @@ function inControl(total_per_s: number, transitions: boolean, seed: number) {
 	return { states: incidents(events, 'states'), pairs: incidents(events, 'pairs') };
 }
 
-const W25 = predictRate(warmSwitching, { T_mK: 25 }).rate_per_s;
+const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 const rows: string[] = [];
 rows.push(`in control, ${WINDOWS} windows of 1 s (${(WINDOWS / 86_400).toFixed(2)} days), budget 1 per ${DAYS} days → ${budget.toFixed(3)} expected at most`);
 rows.push('out-rate/s | transitions | incidents states | incidents pairs | P(X ≥ count | budget)');

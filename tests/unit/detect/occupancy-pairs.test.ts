@@ -111,7 +111,7 @@ describe('false-alarm budget on a 10:1 paired six-state device (seeded)', () => 
 	const WINDOWS = 30_000;
 	const budget_days = (WINDOWS / 0.1157) / 86_400;
 	const allowed = WINDOWS / (budget_days * 86_400);
-	const W25 = predictRate(warmSwitching, { T_mK: 25 }).rate_per_s;
+	const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 
 	for (const transitions of [true, false]) {
 		it(`incidents stay within the exact Poisson tail of the budget (${transitions ? 'observed transitions' : 'batch means, no transitions'})`, () => {
@@ -129,7 +129,7 @@ describe('false-alarm budget on a 10:1 paired six-state device (seeded)', () => 
 
 describe('out of control at 25 mK (seeded)', () => {
 	it('a 1.7× occupancy of one state is caught within an hour with the default rules (2000 shots a window)', () => {
-		const W25 = predictRate(warmSwitching, { T_mK: 25 }).rate_per_s;
+		const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 		// the warm-switching model: about 0.85 switches/s at 25 mK
 		expect(W25).toBeGreaterThan(0.8);
 		expect(W25).toBeLessThan(0.9);
