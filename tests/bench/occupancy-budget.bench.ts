@@ -19,7 +19,7 @@ function incidents(events: DetectorEvent[], key?: string): number {
 	return events.filter((e) => e.kind === 'occupancy_imbalance' && e.type === 'open' && (key === undefined || e.key === key)).length;
 }
 
-function inControl(total_per_s: number, transitions: boolean, seed: number) {
+function inControl(total_per_s: number, ratio: number, transitions: boolean, seed: number) {
 	const engine = new DetectorEngine({ occupancy_imbalance: { falseAlarmEvery_days: DAYS } }, run6());
 	const events: DetectorEvent[] = [];
 	const chunk = 20_000;
@@ -28,8 +28,8 @@ function inControl(total_per_s: number, transitions: boolean, seed: number) {
 			seed: seed + start,
 			states: 6,
 			windows: Math.min(chunk, WINDOWS - start),
-			withinRate_per_s: (total_per_s * 10) / 11,
-			crossRate_per_s: total_per_s / 11,
+			withinRate_per_s: (total_per_s * ratio) / (ratio + 1),
+			crossRate_per_s: total_per_s / (ratio + 1),
 			shots: 2000,
 			transitions,
 			firstSeq: start + 1
@@ -42,15 +42,17 @@ function inControl(total_per_s: number, transitions: boolean, seed: number) {
 const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 const rows: string[] = [];
 rows.push(`in control, ${WINDOWS} windows of 1 s (${(WINDOWS / 86_400).toFixed(2)} days), budget 1 per ${DAYS} days → ${budget.toFixed(3)} expected at most`);
-rows.push('out-rate/s | transitions | incidents states | incidents pairs | P(X ≥ count | budget)');
-for (const [rate, seed] of [
-	[W25, 11],
-	[3, 12]
+rows.push('out-rate/s | within:cross | transitions | incidents states | incidents pairs | P(X ≥ count | budget)');
+for (const [rate, ratio, seed] of [
+	[0.21, 10, 10],
+	[W25, 10, 11],
+	[3, 10, 12],
+	[W25, 30, 13]
 ] as const) {
 	for (const tr of [true, false]) {
-		const r = inControl(rate, tr, seed);
+		const r = inControl(rate, ratio, tr, seed);
 		const total = r.states + r.pairs;
-		rows.push(`${rate.toFixed(2)} | ${tr ? 'yes' : 'no'} | ${r.states} | ${r.pairs} | ${poissonUpperTail(total, budget).toExponential(2)}`);
+		rows.push(`${rate.toFixed(2)} | ${ratio}:1 | ${tr ? 'yes' : 'no'} | ${r.states} | ${r.pairs} | ${poissonUpperTail(total, budget).toExponential(2)}`);
 	}
 }
 

@@ -152,6 +152,20 @@ describe('out of control at 25 mK (seeded)', () => {
 	}, 60_000);
 });
 
+describe('unexpected pairs on a paired device (seeded)', () => {
+	it('jumps to the opposite state, a pair the ring does not expect, open key pairs; occupancy stays even and quiet', () => {
+		// 10:1 pairs at 1 switch/s plus 1/s to the opposite state: half of all switches
+		// are unexpected, above the tolerated 25 %; rates stay symmetric, so occupancy is uniform.
+		const fs = pairFrames({ seed: 61, states: K, windows: 3000, withinRate_per_s: 10 / 11, crossRate_per_s: 1 / 11, oppositeRate_per_s: 1, shots: 200 });
+		const engine = new DetectorEngine({ occupancy_imbalance: { horizonWindows: 600 } }, run6());
+		const events = fs.flatMap((f) => engine.onFrame(f));
+		expect(opens(events, 'pairs')).toBe(1);
+		expect(opens(events, 'states')).toBe(0);
+		const open = events.find((e) => e.kind === 'occupancy_imbalance' && e.type === 'open')!;
+		for (const p of (open.evidence as any).topPairs) expect((p.to - p.from + K) % K).toBe(3);
+	}, 60_000);
+});
+
 describe('batch means without transitions', () => {
 	it('Student t per mode: identical batches carry no information; a constant offset with batch noise is significant', () => {
 		const vectors = occupancyModes(K, 'neighbours').vectors;

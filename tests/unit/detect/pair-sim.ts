@@ -3,7 +3,7 @@
 // States 2k and 2k+1 share a saddle and switch between each other at `withinRate_per_s`; each
 // state also switches to its ring neighbour in the next pair (1↔2, 3↔4, …, K−1↔0) at
 // `crossRate_per_s`. The rates are symmetric, so occupancy is uniform (detailed balance with
-// π_i = 1/K). `excess` divides every out-rate of state `excessState`, which multiplies its
+// π_i = 1/K; so does the optional symmetric jump to the opposite state). `excess` divides every out-rate of state `excessState`, which multiplies its
 // stationary occupancy by `excess` relative to each other state (detailed balance again).
 import type { Frame } from '../../../src/lib/protocol/frame';
 import { exponential, rng, T0_ms } from './sim';
@@ -22,6 +22,8 @@ export type PairOptions = {
 	excessFrom?: number;
 	transitions?: boolean;
 	firstSeq?: number;
+	/** Extra rate (per s) from each state to the opposite one (s + K/2): a pair the setup does not expect. */
+	oppositeRate_per_s?: number;
 };
 
 /** The two states a state can switch to: its pair partner, then its neighbour across the pair boundary. */
@@ -53,12 +55,14 @@ export function pairFrames(o: PairOptions): Frame[] {
 			const scale = state === excessState ? 1 / slow : 1;
 			const within = o.withinRate_per_s * scale;
 			const cross = o.crossRate_per_s * scale;
-			const next = t + exponential(u, within + cross);
+			const opposite = (o.oppositeRate_per_s ?? 0) * scale;
+			const next = t + exponential(u, within + cross + opposite);
 			const end = Math.min(next, window_s);
 			counts[state] += shotsBefore(end) - shotsBefore(t);
 			if (next >= window_s) break;
 			const [partner, across] = pairTargets(state, K);
-			const to = u() * (within + cross) < within ? partner : across;
+			const x = u() * (within + cross + opposite);
+			const to = x < within ? partner : x < within + cross ? across : (state + K / 2) % K;
 			transitions[state * K + to] += 1;
 			switches += 1;
 			state = to;
