@@ -5,7 +5,7 @@
 // Not part of the test suite: nothing is asserted; the table is for the closing note.
 // The budget is an upper bound (Bonferroni over windows, budget.ts), so the count is compared
 // with the one-sided exact Poisson tail P(X ≥ count | budget) (stats/poisson.ts).
-import { DetectorEngine, type DetectorEvent } from '../../src/lib/detect';
+import { chiSquareUpperTail, DetectorEngine, observedModes, occupancyStatisticFromModes, type DetectorEvent } from '../../src/lib/detect';
 import { poissonUpperTail } from '../../src/lib/stats/poisson';
 import { predictRate } from '../../src/lib/physics/activation';
 import { pairFrames } from '../unit/detect/pair-sim';
@@ -78,3 +78,41 @@ for (const tr of [true, false]) {
 	}
 }
 console.log(rows.join('\n'));
+
+// Tail calibration: p-values of independent horizons (no overlap) against their nominal level.
+// A χ² p-value is uniform under the null when the effective samples are right; an estimated
+// sample size makes it approximate, and this shows how far into the tail it holds.
+const STUDENTIZE = process.env.BENCH_RAW !== '1';
+const MIN_EPISODES = Number(process.env.BENCH_MIN_EPISODES ?? 0);
+const HORIZONS = Number(process.env.BENCH_HORIZONS ?? 4000);
+const H = Number(process.env.BENCH_HORIZON ?? 300);
+const cal: string[] = ['', `tail calibration: ${HORIZONS} independent horizons of ${H} windows, observed-transitions χ²${STUDENTIZE ? ', modes studentized' : ', raw'}, modes with < ${MIN_EPISODES} episodes untested`, 'out-rate/s | within:cross | P(p < 0.1) | P(p < 0.01) | P(p < 0.001) | mean χ² (dof)'];
+for (const [rate, ratio] of [
+	[W25, 10],
+	[0.21, 10],
+	[W25, 30]
+] as const) {
+	const ps: number[] = [];
+	let sumStat = 0;
+	let sumDof = 0;
+	const chunk = 200;
+	for (let c = 0; c < HORIZONS; c += chunk) {
+		const fs = pairFrames({ seed: 9000 + c, states: 6, windows: H * chunk, withinRate_per_s: (rate * ratio) / (ratio + 1), crossRate_per_s: rate / (ratio + 1), shots: 2000 });
+		for (let b = 0; b < chunk; b++) {
+			const counts = new Array<number>(6).fill(0);
+			const tr = new Array<number>(36).fill(0);
+			for (let i = b * H; i < (b + 1) * H; i++) {
+				fs[i].counts.forEach((x, j) => (counts[j] += x));
+				fs[i].transitions!.forEach((x, j) => (tr[j] += x));
+			}
+			const stat = occupancyStatisticFromModes(counts, observedModes(6, tr), 0, false, STUDENTIZE, MIN_EPISODES);
+			if (!stat || stat.dof === 0) continue;
+			sumStat += stat.statistic;
+			sumDof += stat.dof;
+			ps.push(chiSquareUpperTail(stat.statistic, stat.dof));
+		}
+	}
+	const frac = (a: number) => (ps.filter((p) => p < a).length / ps.length).toFixed(4);
+	cal.push(`${rate.toFixed(2)} | ${ratio}:1 | ${frac(0.1)} | ${frac(0.01)} | ${frac(0.001)} | ${(sumStat / ps.length).toFixed(2)} (${(sumDof / ps.length).toFixed(2)})`);
+}
+console.log(cal.join('\n'));

@@ -147,7 +147,7 @@ type HorizonTest = TransitionsTest | BatchMeansTest;
 function horizonOccupancy(state: OccupancyImbalanceState, h: Sliding, K: number, rule: OccupancyImbalanceRule, exact: boolean): HorizonTest | null {
 	const withTransitions = h.sums[K + 4];
 	if (withTransitions === h.len && state.pairSums) {
-		const stat = occupancyStatisticFromModes(h.sums.slice(0, K), observedModes(K, state.pairSums), h.sums[K + 1], exact);
+		const stat = occupancyStatisticFromModes(h.sums.slice(0, K), observedModes(K, state.pairSums), h.sums[K + 1], exact, true);
 		if (!stat || stat.dof === 0) return null;
 		// χ² ≤ its dof has an upper tail of at least 0.3, all the decision needs then.
 		const pValue = !exact && rule.clearPValue <= 0.3 && stat.statistic <= stat.dof ? 1 : chiSquareUpperTail(stat.statistic, stat.dof);
