@@ -27,7 +27,18 @@ export {
 	type StatusRun
 } from './status';
 export { designAt, designFor, bandOf, type CusumDesign } from './cusum-design';
-export { occupancyModes, occupancyStatistic, chiSquareUpperTail, binomialUpperTail, type OccupancyModes, type OccupancyTest } from './occupancy-model';
+export {
+	occupancyModes,
+	occupancyStatistic,
+	observedModes,
+	occupancyStatisticFromModes,
+	chiSquareUpperTail,
+	binomialUpperTail,
+	type OccupancyModes,
+	type OccupancyTest,
+	type SampledModes
+} from './occupancy-model';
+export { batchMeansOccupancy, type BatchMeansTest } from './occupancy-batch';
 export {
 	replayRun,
 	Replayer,

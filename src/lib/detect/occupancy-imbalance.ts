@@ -1,10 +1,14 @@
 // occupancy_imbalance: at a symmetric operating point the K phase states should fill equally, and
 // switching should use the pairs of states the setup expects.
 //
-// key 'states': a chi-square test of equal occupancy over the shots of the last horizonWindows
-// windows, with the effective sample size of occupancy-model.ts (shots within one dwell episode
-// are not independent), once the horizon holds minSwitches switches and escapes. Runs only when
-// the states are symmetric: rule `symmetric`, where 'auto' means zero or unknown detuning.
+// key 'states': a test of equal occupancy over the shots of the last horizonWindows windows, once
+// the horizon holds minSwitches switches and escapes. Shots within one dwell episode are not
+// independent, so the variance of the occupancy comes from the switching that is really there:
+// the chi-square of occupancy-model.ts with effective samples from the horizon's observed
+// `transitions` (junction-type devices whose 2M states switch mostly within saddle-sharing pairs
+// are thereby expected, not an alarm), or batch means of the horizon where frames carry no
+// transitions (occupancy-batch.ts). Runs only when the states are symmetric: rule `symmetric`,
+// where 'auto' means zero or unknown detuning.
 // key 'pairs': when frames carry `transitions`, the fraction of switches on pairs the setup does
 // not expect, against the tolerated fraction, by an exact binomial upper tail.
 // Both test at the level the false-alarm budget gives each window, divided between the tests run
@@ -16,7 +20,16 @@ import type { Evidence, JsonValue, Signal } from './events';
 import type { Frame } from '../protocol/frame';
 import { windowAlpha } from './budget';
 import { createSliding, oldest, pushRow, slidingSchema, type Sliding } from './sliding';
-import { binomialUpperTail, chiSquareUpperTail, expectedPairSet, occupancyModes, occupancyStatistic } from './occupancy-model';
+import {
+	binomialUpperTail,
+	chiSquareUpperTail,
+	expectedPairSet,
+	observedModes,
+	occupancyModes,
+	occupancyStatisticFromModes,
+	type OccupancyTest
+} from './occupancy-model';
+import { BATCHES, batchMeansOccupancy, type BatchMeansTest } from './occupancy-batch';
 import { fmt, fmtP } from './rate-evidence';
 import type { OccupancyImbalanceRule } from './rules';
 import type { ParsedRunInfo } from './run-info';
@@ -31,7 +44,7 @@ const keyStateSchema = z.object({
 type KeyState = z.infer<typeof keyStateSchema>;
 
 const occupancyStateSchema = z.object({
-	/** Columns: K counts, then switches, escapes, unexpected, pair switches (summed), then seq, t. */
+	/** Columns: K counts, then switches, escapes, unexpected, pair switches, windows with transitions (summed), then seq, t. */
 	horizon: slidingSchema.nullable(),
 	/** Per horizon row: the window's non-zero off-diagonal transitions as [index, count, …]. */
 	pairRows: z.array(z.array(z.number().int())).nullable(),
@@ -79,11 +92,8 @@ export const occupancyImbalance: Detector<'occupancy_imbalance', OccupancyImbala
 		const switches = h.sums[K];
 		const escapes = h.sums[K + 1];
 		if (isSymmetric(rule, run) && switches + escapes >= rule.minSwitches) {
-			const stat = occupancyStatistic(h.sums.slice(0, K), switches, escapes, occupancyModes(K, rule.expectedPairs));
-			if (stat && stat.dof > 0) {
-				// χ² ≤ its dof has an upper tail of at least 0.3, all the decision needs then.
-				statesP = rule.clearPValue <= 0.3 && stat.statistic <= stat.dof ? 1 : chiSquareUpperTail(stat.statistic, stat.dof);
-			}
+			const test = horizonOccupancy(state, h, K, rule, false);
+			if (test) statesP = test.pValue;
 		}
 		const pairSwitches = h.sums[K + 3];
 		if (pairSwitches >= rule.minPairSwitches) {
@@ -123,10 +133,49 @@ export const occupancyImbalance: Detector<'occupancy_imbalance', OccupancyImbala
 	}
 };
 
+type TransitionsTest = OccupancyTest & { method: 'observed transitions'; pValue: number };
+type HorizonTest = TransitionsTest | BatchMeansTest;
+
+/**
+ * The equal-occupancy test of the horizon. When every window in it carried `transitions`, the
+ * effective samples follow the switching graph those transitions show (occupancy-model.ts,
+ * observedModes), so states that switch mostly within pairs are judged on the few cross-pair
+ * switches that really relax the slow modes. Otherwise the variance comes from batch means of the
+ * horizon itself (occupancy-batch.ts), once the horizon is full. Null when there is nothing to test.
+ * `exact` computes the tail even where the decision does not need it (for evidence).
+ */
+function horizonOccupancy(state: OccupancyImbalanceState, h: Sliding, K: number, rule: OccupancyImbalanceRule, exact: boolean): HorizonTest | null {
+	const withTransitions = h.sums[K + 4];
+	if (withTransitions === h.len && state.pairSums) {
+		const stat = occupancyStatisticFromModes(h.sums.slice(0, K), observedModes(K, state.pairSums), h.sums[K + 1], exact, true);
+		if (!stat || stat.dof === 0) return null;
+		// χ² ≤ its dof has an upper tail of at least 0.3, all the decision needs then.
+		const pValue = !exact && rule.clearPValue <= 0.3 && stat.statistic <= stat.dof ? 1 : chiSquareUpperTail(stat.statistic, stat.dof);
+		return { ...stat, method: 'observed transitions', pValue };
+	}
+	if (h.len < h.size || h.len < 2 * BATCHES) return null;
+	const perBatch = Math.floor(h.len / BATCHES);
+	const skip = h.len - perBatch * BATCHES;
+	// Rows are read in place (oldest first from the write position): this runs on every window.
+	const batches: number[][] = [];
+	const start = h.len === h.size ? h.head : 0;
+	for (let b = 0; b < BATCHES; b++) {
+		const counts = new Array<number>(K).fill(0);
+		for (let r = skip + b * perBatch; r < skip + (b + 1) * perBatch; r++) {
+			let base = start + r;
+			if (base >= h.size) base -= h.size;
+			base *= h.width;
+			for (let i = 0; i < K; i++) counts[i] += h.rows[base + i];
+		}
+		batches.push(counts);
+	}
+	return batchMeansOccupancy(batches, occupancyModes(K, rule.expectedPairs).vectors);
+}
+
 /** Adds the frame to the horizon (and its transitions to the pair sums); returns the horizon. */
 function record(state: OccupancyImbalanceState, frame: Frame, rule: OccupancyImbalanceRule, K: number): Sliding {
-	if (!state.horizon || state.horizon.size !== rule.horizonWindows || state.horizon.width !== K + 6) {
-		state.horizon = createSliding(rule.horizonWindows, K + 6, K + 4);
+	if (!state.horizon || state.horizon.size !== rule.horizonWindows || state.horizon.width !== K + 7) {
+		state.horizon = createSliding(rule.horizonWindows, K + 7, K + 5);
 		state.pairRows = Array.from({ length: rule.horizonWindows }, () => []);
 		state.pairSums = new Array<number>(K * K).fill(0);
 	}
@@ -142,7 +191,8 @@ function record(state: OccupancyImbalanceState, frame: Frame, rule: OccupancyImb
 	let total = 0;
 	const sparse: number[] = [];
 	const tr = frame.transitions;
-	if (tr && tr.length === K * K) {
+	const hasTransitions = !!tr && tr.length === K * K;
+	if (tr && hasTransitions) {
 		const expected = pairSetFor(K, rule);
 		for (let from = 0; from < K; from++) {
 			for (let to = 0; to < K; to++) {
@@ -157,7 +207,7 @@ function record(state: OccupancyImbalanceState, frame: Frame, rule: OccupancyImb
 		}
 	}
 	rows[slot] = sparse;
-	const row = [...frame.counts, frame.switches, frame.escapes, unexpected, total, frame.seq, frame.t];
+	const row = [...frame.counts, frame.switches, frame.escapes, unexpected, total, hasTransitions ? 1 : 0, frame.seq, frame.t];
 	pushRow(h, row);
 	return h;
 }
@@ -192,38 +242,45 @@ function extremes(fractions: number[], residuals: number[]) {
 }
 
 function statesEvidence(
+	test: HorizonTest,
 	counts: number[],
 	switches: number,
 	escapes: number,
 	K: number,
-	rule: OccupancyImbalanceRule,
 	span: { [key: string]: JsonValue }
 ): { [key: string]: JsonValue } {
-	const modes = occupancyModes(K, rule.expectedPairs);
-	const stat = occupancyStatistic(counts, switches, escapes, modes, true)!;
-	return {
-		test: 'chi-square, equal occupancy',
+	const common = {
+		test: 'equal occupancy',
 		horizon: span,
 		counts: [...counts],
 		shots: counts.reduce((a, b) => a + b, 0),
 		switches,
 		escapes,
-		fractions: stat.fractions,
+		fractions: test.fractions,
 		expectedFraction: 1 / K,
-		effectiveSamples: stat.effective,
-		statistic: stat.statistic,
-		dof: stat.dof,
-		pValue: chiSquareUpperTail(stat.statistic, stat.dof),
-		...extremes(stat.fractions, stat.residuals)
+		pValue: test.pValue,
+		...extremes(test.fractions, test.residuals)
+	};
+	if (test.method === 'batch means') {
+		return { ...common, method: 'batch means, Student t per mode, Bonferroni', batches: test.batches, dof: test.dof, t: test.t };
+	}
+	return {
+		...common,
+		method: 'chi-square, effective samples from the observed transitions',
+		effectiveSamples: test.effective,
+		statistic: test.statistic,
+		dof: test.dof
 	};
 }
 
-function statesSummary(counts: number[], switches: number, escapes: number, K: number, rule: OccupancyImbalanceRule, windows: number): string {
-	const modes = occupancyModes(K, rule.expectedPairs);
-	const stat = occupancyStatistic(counts, switches, escapes, modes, true)!;
-	const { mostOver, mostUnder } = extremes(stat.fractions, stat.residuals);
+function statesSummary(test: HorizonTest, K: number, windows: number): string {
+	const { mostOver, mostUnder } = extremes(test.fractions, test.residuals);
 	const pct = (x: number) => `${fmt(100 * x)} %`;
-	return `Phase states fill unequally over the last ${windows} windows: state ${mostOver.state} holds ${pct(mostOver.fraction)}, state ${mostUnder.state} ${pct(mostUnder.fraction)}, against ${pct(1 / K)} each (χ² = ${fmt(stat.statistic)} on ${stat.dof} dof, ${fmtP(chiSquareUpperTail(stat.statistic, stat.dof))})`;
+	const how =
+		test.method === 'batch means'
+			? `batch means of ${test.batches} batches, ${fmtP(test.pValue)}`
+			: `χ² = ${fmt(test.statistic)} on ${test.dof} dof, ${fmtP(test.pValue)}`;
+	return `Phase states fill unequally over the last ${windows} windows: state ${mostOver.state} holds ${pct(mostOver.fraction)}, state ${mostUnder.state} ${pct(mostUnder.fraction)}, against ${pct(1 / K)} each (${how})`;
 }
 
 function pairsEvidence(
@@ -299,7 +356,8 @@ function signalFor(
 	const counts = h.sums.slice(0, K);
 	const switches = h.sums[K];
 	const escapes = h.sums[K + 1];
-	const span = { fromSeq: oldest(h, K + 4), toSeq: frame.seq, from_ms: oldest(h, K + 5), to_ms: frame.t, windows: h.len };
+	const statesTest = key === 'states' ? horizonOccupancy(state, h, K, rule, true) : null;
+	const span = { fromSeq: oldest(h, K + 5), toSeq: frame.seq, from_ms: oldest(h, K + 6), to_ms: frame.t, windows: h.len };
 	const evidence = {
 		...ruleEvidence(rule),
 		key,
@@ -309,14 +367,18 @@ function signalFor(
 		correction: 'bonferroni',
 		symmetric: isSymmetric(rule, run),
 		...(key === 'states'
-			? statesEvidence(counts, switches, escapes, K, rule, span)
+			? statesTest
+				? statesEvidence(statesTest, counts, switches, escapes, K, span)
+				: {}
 			: pairsEvidence(state, h.sums[K + 2], h.sums[K + 3], K, rule, span))
 	};
 	const base = { key, at_ms: frame.t, seq: frame.seq };
 	if (action.type === 'open') {
 		const summary =
 			key === 'states'
-				? statesSummary(counts, switches, escapes, K, rule, h.len)
+				? statesTest
+					? statesSummary(statesTest, K, h.len)
+					: 'Phase states fill unequally'
 				: pairsSummary(h.sums[K + 2], h.sums[K + 3], rule, h.len);
 		return { type: 'open', severity: 'warning', ...base, summary, evidence };
 	}

@@ -122,8 +122,12 @@ export const occupancyImbalanceRuleSchema = z.strictObject({
 	 * when the run's operating point has zero or unknown detuning.
 	 */
 	symmetric: z.union([z.boolean(), z.literal('auto')]).default('auto'),
-	/** Windows summed for both tests. */
-	horizonWindows: windowCount.default(300),
+	/**
+	 * Windows summed for both tests. 1800 (half an hour of 1-s windows): at 0.85 switches/s a
+	 * 300-window horizon holds about 250 switches, too few to see a 1.7× excess of one state at the
+	 * budget's per-window level; 1800 sees it within the hour (tests/bench/occupancy-budget.bench.ts).
+	 */
+	horizonWindows: windowCount.default(1800),
 	/**
 	 * Switching pairs the setup expects: 'neighbours' (i ↔ i±1 mod K), 'all', or a list of pairs.
 	 * The same graph sets how fast occupancy fluctuations relax, hence the effective sample size.

@@ -142,8 +142,10 @@ describe('occupancy_imbalance on windows', () => {
 		expect(ev.pValue).toBeLessThan(ev.alpha);
 		expect(ev.pValue).toBeCloseTo(chiSquareUpperTail(ev.statistic, ev.dof), 12);
 		expect(ev).toMatchObject({ rule: 'occupancy_imbalance', version: 1, dof: 5, symmetric: true, correction: 'bonferroni' });
-		// the horizon fills from the first window: it opened before holding all 100
-		expect(ev.horizon).toMatchObject({ fromSeq: 1, toSeq: events[0].seq, windows: events[0].seq });
+		// the horizon is the last (at most) 100 windows up to the opening one; with each mode read
+		// as Student t on its own episodes the opening may now come after the horizon has filled
+		const seq = events[0].seq!;
+		expect(ev.horizon).toMatchObject({ fromSeq: Math.max(1, seq - 99), toSeq: seq, windows: Math.min(seq, 100) });
 		if (events[0].type === 'open') expect(events[0].summary).toMatch(/state 2 holds/);
 	});
 
@@ -162,7 +164,10 @@ describe('occupancy_imbalance on windows', () => {
 	});
 
 	it('clears when the occupancy is even again', () => {
-		const sticky = ringFrames({ seed: 6, states: 6, windows: 300, rate_per_s: () => 3, stickiness: [0.25, 1, 1, 1, 1, 1] });
+		// A sticky state's own switches are few, and the effective samples now follow the observed
+		// transitions, so at stickiness 0.25 a 100-window horizon legitimately drifts to p ≈ 0.08 in
+		// this stream; 0.15 keeps the excess plain for the whole sticky phase.
+		const sticky = ringFrames({ seed: 6, states: 6, windows: 300, rate_per_s: () => 3, stickiness: [0.15, 1, 1, 1, 1, 1] });
 		const even = ringFrames({ seed: 7, states: 6, windows: 400, rate_per_s: () => 3, firstSeq: 301 });
 		const events = occ(feed(new DetectorEngine(rules, run6()), [...sticky, ...even]), 'states').filter((e) => e.type !== 'update');
 		expect(events.map((e) => e.type)).toEqual(['open', 'clear']);

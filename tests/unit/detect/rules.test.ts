@@ -12,11 +12,11 @@ describe('rules for the statistical detectors', () => {
 		expect(rules.aux_limit.limits).toEqual([{ name: 'mxc_mK', above: 30, clearBelow: 28, windows: 3, clearWindows: 3, severity: 'warning' }]);
 	});
 
-	it('defaults: a budget of one false alarm per 30 days; CUSUM ratios 2 and ½; 60- and 300-window horizons; neighbours', () => {
+	it('defaults: a budget of one false alarm per 30 days; CUSUM ratios 2 and ½; 60-, 300- and 1800-window horizons; neighbours', () => {
 		const r = defaultRules();
 		expect(r.switching_burst).toMatchObject({ falseAlarmEvery_days: 30, horizonWindows: 60, locked: false, clearPValue: 0.01, clearWindows: 30 });
 		expect(r.rate_drift).toMatchObject({ falseAlarmEvery_days: 30, ratioUp: 2, ratioDown: 0.5, prediction: 'temperature', processes: ['switching'] });
-		expect(r.occupancy_imbalance).toMatchObject({ symmetric: 'auto', horizonWindows: 300, expectedPairs: 'neighbours', maxUnexpectedFraction: 0.25 });
+		expect(r.occupancy_imbalance).toMatchObject({ symmetric: 'auto', horizonWindows: 1800, expectedPairs: 'neighbours', maxUnexpectedFraction: 0.25 });
 	});
 
 	it('the budget gives α per window = window_s / (days · 86 400 s), and the chart’s run length in windows', () => {

@@ -170,7 +170,7 @@ export const KIND_SPECS: KindSpec[] = [
 		title: 'Occupancy imbalance',
 		severity: 'warning',
 		explanation:
-			'Where the phase states are symmetric they should fill equally: a chi-square test over a horizon flags a state that fills too much or too little. When frames carry transitions, switching concentrated on pairs the setup does not expect is flagged too.',
+			'Where the phase states are symmetric they should fill equally: a test over a horizon flags a state that fills too much or too little. Its sample size follows the switching the frames report (transitions), so states that switch mostly within saddle-sharing pairs, as on junction-type devices with 2M states, are expected and judged on the few switches between pairs; frames without transitions are judged by batch means of the horizon (slower to see an excess). When frames carry transitions, switching concentrated on pairs the setup does not expect is flagged too.',
 		fields: [
 			budget('Shared between the two tests; the level per window follows from the window length.'),
 			{
@@ -184,12 +184,12 @@ export const KIND_SPECS: KindSpec[] = [
 					{ value: 'false', label: 'no (occupancy test off)', json: false }
 				]
 			},
-			{ key: 'horizonWindows', type: 'number', label: 'Horizon', unit: 'windows', integer: true, hint: 'Windows summed for both tests.' },
+			{ key: 'horizonWindows', type: 'number', label: 'Horizon', unit: 'windows', integer: true, hint: 'Windows summed for both tests. Half an hour of 1-s windows sees a 1.7× excess of one state within the hour at 0.85 switches/s; a shorter horizon sees less.' },
 			{
 				key: 'expectedPairs',
 				type: 'pairs',
 				label: 'Expected switching pairs',
-				hint: 'Neighbours: state i ↔ i ± 1 (mod K). The same graph sets how fast occupancy fluctuations relax.'
+				hint: 'Neighbours: state i ↔ i ± 1 (mod K), which covers a pair of states sharing a saddle and the neighbouring pair. Switching elsewhere counts as unexpected; how fast occupancy relaxes is measured from the frames, not assumed from this graph.'
 			},
 			{
 				key: 'minSwitches',
