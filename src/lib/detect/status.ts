@@ -312,8 +312,9 @@ function occupancyStatus(engine: EngineView, state: Record<string, unknown> | nu
 	const K = run.states;
 	const symmetric = symmetricHere(rule, run);
 	const h = horizonOf(state?.horizon);
-	// The layout occupancy-imbalance.ts writes: K counts, switches, escapes, unexpected, pair switches, seq, t.
-	if (!h || h.width !== K + 6 || h.sums.length < K + 4) {
+	// The layout occupancy-imbalance.ts writes: K counts, switches, escapes, unexpected, pair switches,
+	// windows that carried transitions, then seq and t.
+	if (!h || h.width !== K + 7 || h.sums.length < K + 5) {
 		if (state && state.horizon === null) return inactive('occupancy_imbalance', 'no_frames', `Waiting for the first frame with ${K} state counts.`);
 		return active('occupancy_imbalance', notes);
 	}

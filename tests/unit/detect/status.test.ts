@@ -65,7 +65,8 @@ describe('detectorStatus on a fed engine', () => {
 
 	it('occupancy turns active once the horizon holds enough switches, and then sees the same imbalance', () => {
 		const engine = new DetectorEngine({}, run6(undefined, { operatingPoint: { detuning: 0 } }));
-		const frames = ringFrames({ seed: 5, states: 6, windows: 300, rate_per_s: () => 3, stickiness: [0.05, 1, 1, 1, 1, 1], transitions: false });
+		// With transitions, as the agent sends them: without, the batch-means fallback needs far longer horizons to see this.
+		const frames = ringFrames({ seed: 5, states: 6, windows: 300, rate_per_s: () => 3, stickiness: [0.05, 1, 1, 1, 1, 1] });
 		const events = feed(engine, frames);
 		const occ = byKind(engine.status()).occupancy_imbalance;
 		expect(occ).toMatchObject({ active: true, code: 'watching' });
