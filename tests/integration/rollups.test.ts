@@ -4,6 +4,7 @@
 // The aggregation below is written independently of src/lib/rollup (only the bucketing rule —
 // floor(round(t)/width)·width on agent ms — is shared, as the definition of a bucket).
 import fc from 'fast-check';
+import type { Frame } from '../../src/lib/protocol/frame';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
@@ -26,21 +27,7 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-type WireFrame = {
-	seq: number;
-	t: number;
-	window_s: number;
-	shots: number;
-	vacuum: number;
-	counts: number[];
-	lock: number;
-	switches: number;
-	dwell_s: number;
-	escapes: number;
-	vacuum_s: number;
-	transitions?: number[];
-	aux?: Record<string, number>;
-};
+type WireFrame = Frame;
 
 const positive = (max: number) => fc.double({ min: 1e-3, max, noNaN: true });
 const nonNegative = (max: number) => fc.oneof(fc.constant(0), positive(max));

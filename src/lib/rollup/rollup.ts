@@ -10,7 +10,7 @@ import type { Frame } from '../protocol/frame';
 
 export const ROLLUP_RESOLUTIONS_S = [10, 60, 600, 3600] as const;
 
-/** Same shape as the schema's AuxAggregate (the schema stays untouched; the two must agree). */
+/** One aux value's summary over a bucket (the schema's `frame_rollups.aux` holds these by name). */
 export type AuxAggregate = { min: number; max: number; sum: number; n: number };
 
 export interface Rollup {

@@ -8,6 +8,7 @@
 // prints "listening <port>".
 import { randomUUID } from 'node:crypto';
 import { WebSocketServer } from 'ws';
+import type { Frame } from '../../../src/lib/protocol/frame';
 import { openDatabase } from '../../../src/lib/server/db';
 
 const [dataDir, migrationsDir, setupId, insertKind = 'values'] = process.argv.slice(2);
@@ -18,23 +19,7 @@ const { client: pg, close } = await openDatabase(dataDir, migrationsDir);
 
 const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'];
 
-interface WireFrame {
-	seq: number;
-	t: number;
-	window_s: number;
-	shots: number;
-	vacuum: number;
-	counts: number[];
-	lock: number;
-	switches: number;
-	dwell_s: number;
-	escapes: number;
-	vacuum_s: number;
-	transitions?: number[];
-	amp?: number;
-	aux?: Record<string, number>;
-	iq?: unknown;
-}
+type WireFrame = Frame;
 
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
 

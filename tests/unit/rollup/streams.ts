@@ -4,6 +4,7 @@
 import fc from 'fast-check';
 import { expect } from 'vitest';
 import type { Frame } from '../../../src/lib/protocol/frame';
+import type { Rollup } from '../../../src/lib/rollup/rollup';
 
 export const AUX_POOL = ['mxc_mK', 'pump_dBm', 'bias_uV', 'still_K'] as const;
 /** 2024-01-01T00:00:00Z: an hour boundary, so the 3600 s buckets line up with the clock too. */
@@ -100,28 +101,8 @@ export function permute<T>(items: T[], keys: number[]): T[] {
 	return out;
 }
 
-export type Agg = {
-	resolution_s: number;
-	bucket_t: number;
-	frames: number;
-	firstSeq: number;
-	lastSeq: number;
-	window_s: number;
-	shots: number;
-	vacuum: number;
-	counts: number[];
-	switches: number;
-	dwell_s: number;
-	escapes: number;
-	vacuum_s: number;
-	transitions: number[] | null;
-	lockMin: number;
-	lockSum: number;
-	lockMax: number;
-	aux: Record<string, { min: number; max: number; sum: number; n: number }>;
-	expectedSwitches: number | null;
-	expectedEscapes: number | null;
-};
+/** The stored shape; the brute force below fills it independently of rollup.ts. */
+export type Agg = Rollup;
 
 /**
  * The oracle: every bucket of every resolution, keyed `${resolution_s}:${bucket_t}`. t is rounded

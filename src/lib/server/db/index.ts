@@ -9,6 +9,8 @@ import { DurableNodeFS, durableStartParams } from './durable-fs';
 import * as schema from './schema';
 
 export type Db = PgliteDatabase<typeof schema>;
+/** The handle a transaction's callback gets. */
+export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 export { schema };
 
 /** The raw PGlite client for a folder (or `memory://`), durable on disk. */

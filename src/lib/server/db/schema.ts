@@ -15,6 +15,7 @@ import {
 	timestamp,
 	uniqueIndex
 } from 'drizzle-orm/pg-core';
+import type { AuxAggregate } from '../../rollup/rollup';
 import { user } from './auth-schema';
 
 export * from './auth-schema';
@@ -147,8 +148,6 @@ export const runSnapshots = pgTable('run_snapshots', {
 	savedAt: timestamp('saved_at', { withTimezone: true }).notNull().defaultNow(),
 	state: jsonb('state').notNull()
 });
-
-export type AuxAggregate = { min: number; max: number; sum: number; n: number };
 
 /**
  * Aggregates of a run's frames over fixed buckets of agent time (`bucket_t` = start, ms), written

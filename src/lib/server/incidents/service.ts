@@ -3,10 +3,9 @@
 import { randomUUID } from 'node:crypto';
 import { and, asc, count, desc, eq, ne, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Db } from '../db';
+import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
 
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 export type IncidentRow = typeof incidents.$inferSelect;
 
 export const INCIDENT_STATES = ['open', 'acknowledged', 'resolved'] as const;

@@ -6,8 +6,8 @@
 import { sql } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
 import type { Rollup } from '../../rollup/rollup';
-import type { Db } from '../db';
-import type { Tx } from './group-commit';
+import type { Db, Tx } from '../db';
+import { ROLLUP_ROWS_PER_STATEMENT } from '../rollups/store';
 
 export interface FrameToStore {
 	frame: Frame;
@@ -22,9 +22,6 @@ export interface RunProgress {
 	lastFrameAt: Date;
 	lastLock: number;
 }
-
-/** Rollup rows per statement: PGlite failed upserts of a few hundred rows (bad buffer ID). */
-export const ROLLUP_ROWS_PER_STATEMENT = 100;
 
 function framesJson(batch: readonly FrameToStore[]): string {
 	return JSON.stringify(batch.map(({ frame, late }) => ({ ...frame, t: Math.round(frame.t), late })));

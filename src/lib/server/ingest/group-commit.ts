@@ -4,9 +4,7 @@
 //
 // A unit's work must touch only the database (no in-memory state), because when a group fails,
 // each of its units is retried alone, so that one bad batch cannot keep the others from landing.
-import type { Db } from '../db';
-
-export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
+import type { Db, Tx } from '../db';
 
 interface Unit<T> {
 	work: (tx: Tx | Db) => Promise<T>;

@@ -12,13 +12,13 @@ import type { DetectorEvent } from '../../detect/events';
 import type { FrameExpectation } from '../../detect/expected';
 import type { RunInfo } from '../../detect/run-info';
 import { rollupFrames } from '../../rollup/rollup';
-import type { Db } from '../db';
+import type { Db, Tx } from '../db';
 import { frameGaps, runs } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
-import { mergeWithStored, RollupCache, upsertRollups } from '../rollups/store';
+import { mergeWithStored, ROLLUP_ROWS_PER_STATEMENT, RollupCache, upsertRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';
-import { ROLLUP_ROWS_PER_STATEMENT, writeBatch, type FrameToStore, type RunProgress } from './batch-write';
-import type { GroupCommitter, Tx } from './group-commit';
+import { writeBatch, type FrameToStore, type RunProgress } from './batch-write';
+import type { GroupCommitter } from './group-commit';
 import { SeqGaps, type GapChange, type SeqGap } from './seq-gaps';
 import { restoreEngine, saveSnapshot } from './snapshots';
 

@@ -4,11 +4,9 @@
 import { eq, sql } from 'drizzle-orm';
 import { DetectorEngine } from '../../detect/engine';
 import type { RunInfo } from '../../detect/run-info';
-import type { Db } from '../db';
+import type { Db, Tx } from '../db';
 import { runSnapshots } from '../db/schema';
 import { framePages } from '../runs/frame-pages';
-
-type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 
 export async function saveSnapshot(tx: Tx | Db, runId: string, engine: DetectorEngine) {
 	const state = engine.snapshot();

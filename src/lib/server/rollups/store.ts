@@ -17,7 +17,7 @@ type RollupInsert = typeof frameRollups.$inferInsert;
  * a few hundred rows fails inside the engine ("bad buffer ID: 0", ReleaseBuffer) — a 500-frame
  * backlog of 10 s windows touches ~600 buckets — so statements stay well below that.
  */
-const ROWS_PER_STATEMENT = 100;
+export const ROLLUP_ROWS_PER_STATEMENT = 100;
 
 export function rollupToRow(runId: string, r: Rollup): RollupInsert {
 	return {
@@ -73,8 +73,8 @@ export function rowToRollup(row: RollupRow): Rollup {
 /**
  * The newest stored bucket per resolution of one run, so a live writer whose frames keep landing
  * in the current bucket merges without reading it back each commit. The writer owns one per run.
- * It mirrors committed rows only: when the transaction that called writeRollups rolls back, the
- * owner must call clear(), or the next commit would merge into rows that were never stored.
+ * It mirrors committed rows only: the writer remembers rows after its commit, and a writer whose
+ * commit failed is discarded with its cache (the next one starts empty).
  * Nothing else may write the run's rollups while a cache is in use (a rebuild runs with the
  * server stopped).
  */
@@ -93,9 +93,6 @@ export class RollupCache {
 		if (!held || r.bucket_t >= held.bucket_t) this.newest.set(r.resolution_s, r);
 	}
 
-	clear() {
-		this.newest.clear();
-	}
 }
 
 function chunks<T>(items: T[], size: number): T[][] {
@@ -106,7 +103,7 @@ function chunks<T>(items: T[], size: number): T[][] {
 
 async function selectStored(tx: Db, runId: string, keys: Rollup[]): Promise<Map<string, Rollup>> {
 	const found = new Map<string, Rollup>();
-	for (const part of chunks(keys, ROWS_PER_STATEMENT)) {
+	for (const part of chunks(keys, ROLLUP_ROWS_PER_STATEMENT)) {
 		// Casts: a bare parameter inside a row constructor would reach the server untyped.
 		const pairs = sql.join(
 			part.map((k) => sql`(${k.resolution_s}::integer, ${k.bucket_t}::bigint)`),
@@ -167,7 +164,7 @@ export async function mergeWithStored(db: Db, runId: string, deltas: Rollup[], c
 
 /** Stores merged rows (from mergeWithStored), replacing what is there. */
 export async function upsertRollups(tx: Db, runId: string, merged: Rollup[]): Promise<void> {
-	for (const part of chunks(merged, ROWS_PER_STATEMENT)) {
+	for (const part of chunks(merged, ROLLUP_ROWS_PER_STATEMENT)) {
 		await tx
 			.insert(frameRollups)
 			.values(part.map((r) => rollupToRow(runId, r)))
