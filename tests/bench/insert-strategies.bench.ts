@@ -66,9 +66,9 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 			});
 			return prepared.execute(values);
 		},
-		// The app's statement: frames, rollups and the run's progress in one (batch-write.ts).
+		// The app's statement: frames and rollups in one (batch-write.ts); the run's progress goes along every few seconds.
 		'app writeBatch (batch-write.ts)': (runId, batch) =>
-			writeBatch(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })), [], null, 0)
+			writeBatch(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })), [], null)
 	};
 }
 

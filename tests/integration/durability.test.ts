@@ -29,5 +29,10 @@ it('keeps every acked frame through a kill -9 and resumes from the last committe
 	const seqs: number[] = frames.map((f: { seq: number }) => f.seq);
 	expect(seqs.length).toBe(again.welcome.lastSeq);
 	expect(seqs).toEqual(Array.from({ length: again.welcome.lastSeq }, (_, i) => i + 1));
+	// The run row's progress is written every few seconds, so it lagged at the kill; the new writer
+	// recounts it from the stored frames.
+	const { run } = await (await observer(`/api/runs/${again.welcome.run}`)).json();
+	expect(run.lastSeq).toBe(again.welcome.lastSeq);
+	expect(run.frameCount).toBe(seqs.length);
 	await again.close();
 });

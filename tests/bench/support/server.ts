@@ -37,7 +37,9 @@ export async function startAppServer(dataDir: string, env: Record<string, string
 	const port = await freePort();
 	const url = `http://127.0.0.1:${port}`;
 	let log = '';
-	const child = spawn(process.execPath, [path.join(repoRoot, 'src/bin/serve.js')], {
+	// BENCH_APP_NODE_ARGS="--cpu-prof --cpu-prof-dir=…" profiles the server under a benchmark's load.
+	const nodeArgs = process.env.BENCH_APP_NODE_ARGS?.split(' ').filter(Boolean) ?? [];
+	const child = spawn(process.execPath, [...nodeArgs, path.join(repoRoot, 'src/bin/serve.js')], {
 		cwd: repoRoot,
 		env: {
 			...process.env,

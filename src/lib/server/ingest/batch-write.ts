@@ -8,6 +8,7 @@ import type { Frame } from '../../protocol/frame';
 import type { Rollup } from '../../rollup/rollup';
 import type { Db, Tx } from '../db';
 import { ROLLUP_ROWS_PER_STATEMENT } from '../rollups/store';
+import type { RunProgressFields } from '../runs/live-progress';
 
 export interface FrameToStore {
 	frame: Frame;
@@ -15,13 +16,6 @@ export interface FrameToStore {
 	late: boolean;
 }
 
-/** The run row's progress after this batch; null when the batch only filled gaps. */
-export interface RunProgress {
-	lastSeq: number;
-	lastFrameT: number;
-	lastFrameAt: Date;
-	lastLock: number;
-}
 
 function framesJson(batch: readonly FrameToStore[]): string {
 	return JSON.stringify(batch.map(({ frame, late }) => ({ ...frame, t: Math.round(frame.t), late })));
@@ -55,9 +49,18 @@ function rollupsJson(rows: readonly Rollup[]): string {
 	);
 }
 
+/** The run row's UPDATE, when the writer's progress is due to be written (not with every commit). */
+export function progressUpdate(runId: string, p: RunProgressFields) {
+	return sql`UPDATE runs SET last_seq = ${p.lastSeq}, last_frame_t = ${p.lastFrameT}::bigint,
+		last_frame_at = ${p.lastFrameAt?.toISOString() ?? null}::timestamptz, last_lock = ${p.lastLock}::float8,
+		frame_count = ${p.frameCount}, gap_count = ${p.gapCount}
+		WHERE id = ${runId}`;
+}
+
 /**
- * Stores the frames (a seq already stored is skipped), replaces the given rollup rows, and moves
- * the run on; returns the seqs actually stored. At most ROLLUP_ROWS_PER_STATEMENT rollup rows.
+ * Stores the frames (a seq already stored is skipped), replaces the given rollup rows, and, when
+ * `progress` is given, writes the run's progress; returns the seqs actually stored. At most
+ * ROLLUP_ROWS_PER_STATEMENT rollup rows.
  */
 export async function writeBatch(
 	db: Tx | Db,
@@ -65,8 +68,7 @@ export async function writeBatch(
 	receivedAt: Date,
 	batch: readonly FrameToStore[],
 	rollups: readonly Rollup[],
-	progress: RunProgress | null,
-	gapCount: number
+	progress: RunProgressFields | null
 ): Promise<Set<number>> {
 	if (rollups.length > ROLLUP_ROWS_PER_STATEMENT) throw new RangeError(`writeBatch: at most ${ROLLUP_ROWS_PER_STATEMENT} rollup rows`);
 	const result = await db.execute<{ seq: number }>(sql`
@@ -99,17 +101,7 @@ export async function writeBatch(
 				lock_max = excluded.lock_max, aux = excluded.aux, expected_switches = excluded.expected_switches,
 				expected_escapes = excluded.expected_escapes
 			RETURNING 1
-		), progressed AS (
-			UPDATE runs SET
-				last_seq = COALESCE(${progress?.lastSeq ?? null}::integer, last_seq),
-				last_frame_t = COALESCE(${progress?.lastFrameT ?? null}::bigint, last_frame_t),
-				last_frame_at = COALESCE(${progress?.lastFrameAt.toISOString() ?? null}::timestamptz, last_frame_at),
-				last_lock = COALESCE(${progress?.lastLock ?? null}::float8, last_lock),
-				frame_count = frame_count + (SELECT count(*) FROM stored),
-				gap_count = ${gapCount}
-			WHERE id = ${runId}
-			RETURNING 1
-		)
+		)${progress ? sql`, progressed AS (${progressUpdate(runId, progress)} RETURNING 1)` : sql``}
 		SELECT seq FROM stored`);
 	return new Set(result.rows.map((r) => Number(r.seq)));
 }

@@ -97,6 +97,7 @@ export class Ingest {
 			this.bus.publish({ type: 'run', runId: ended.id, setupId: ended.setupId, run: publicRun(ended), detectors: writer.engine.status({ runEnded: true }) });
 		}
 		this.writers.delete(writer.run.id);
+		writer.release();
 	}
 
 	private writerFor(runId: string): Promise<RunWriter> {
@@ -162,7 +163,10 @@ export class Ingest {
 		console.error(`ingest: commit for run ${runId} failed; the agent will resend unacked frames`, err);
 		// Drop the writer and its sockets: the agent reconnects, a new writer restores the detectors
 		// from the database, the agent learns lastSeq and resends.
-		if (this.writers.get(runId) === writer) this.writers.delete(runId);
+		if (this.writers.get(runId) === writer) {
+			this.writers.delete(runId);
+			writer.release();
+		}
 		for (const conn of this.connections) if (conn.runId === runId) conn.close(1011, 'commit failed');
 	}
 

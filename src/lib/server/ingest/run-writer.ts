@@ -5,6 +5,9 @@
 // The detector state is not written with every commit: it is saved every few seconds (and at run
 // end, on rule changes, on clock-driven events and at shutdown). A restart, or a failed commit,
 // rebuilds the engine from the last snapshot plus the frames stored after it (snapshots.ts).
+// Likewise the run row's progress (last seq, frame count) is written at most every few seconds;
+// readers overlay the writer's copy (runs/live-progress.ts), and a new writer recomputes it from
+// the stored frames, which are the truth.
 import { and, eq, sql } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
 import type { DetectorEngine } from '../../detect/engine';
@@ -17,7 +20,8 @@ import { frameGaps, runs } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
 import { mergeWithStored, ROLLUP_ROWS_PER_STATEMENT, RollupCache, upsertRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';
-import { writeBatch, type FrameToStore, type RunProgress } from './batch-write';
+import { forgetProgress, rememberProgress, type RunProgressFields } from '../runs/live-progress';
+import { progressUpdate, writeBatch, type FrameToStore } from './batch-write';
 import type { GroupCommitter } from './group-commit';
 import { SeqGaps, type GapChange, type SeqGap } from './seq-gaps';
 import { restoreEngine, saveSnapshot } from './snapshots';
@@ -33,6 +37,9 @@ export interface SnapshotPolicy {
 }
 
 export const DEFAULT_SNAPSHOT_POLICY: SnapshotPolicy = { everyMs: 30_000, everyFrames: 20_000 };
+
+/** The run row's progress is written at least this often while frames arrive (and on every other write). */
+export const PROGRESS_EVERY_MS = 5_000;
 
 export interface CommitResult {
 	lastSeq: number;
@@ -57,6 +64,9 @@ export class RunWriter {
 	private fedSinceSnapshot = 0;
 	private lastSnapshotAt = Date.now();
 	private rollups = new RollupCache();
+	/** When the run row last got this writer's progress; 0 = it never did. */
+	private progressWrittenAt = 0;
+	private progressDirty = false;
 
 	private constructor(
 		private db: Db,
@@ -87,10 +97,21 @@ export class RunWriter {
 				.from(frameGaps)
 				.where(eq(frameGaps.runId, run.id))
 		]);
-		const writer = new RunWriter(db, committer, run, engine, new SeqGaps(gapRows), policy, onCommit, onFailure);
+		const caughtUp = await catchUpProgress(db, run, gapRows.length);
+		const writer = new RunWriter(db, committer, caughtUp, engine, new SeqGaps(gapRows), policy, onCommit, onFailure);
 		// Frames replayed since the snapshot count towards the next one.
 		writer.fedSinceSnapshot = replayed;
+		if (caughtUp !== run) {
+			await db.execute(progressUpdate(run.id, progressOf(caughtUp)));
+			writer.progressWrittenAt = Date.now();
+		}
+		rememberProgress(run.id, progressOf(caughtUp));
 		return writer;
+	}
+
+	/** The writer is being dropped: its run's progress is read from the row again. */
+	release() {
+		forgetProgress(this.run.id);
 	}
 
 	get lastSeq() {
@@ -128,27 +149,48 @@ export class RunWriter {
 			if (this.broken) return;
 			const events = produce(this.engine);
 			if (events.length === 0 && options.snapshot === 'on-event') return;
+			const progress = this.progressDirty;
 			const result = await this.db.transaction(async (tx) => {
 				const r = await recordEvents(tx, this.run, events);
 				await saveSnapshot(tx, this.run.id, this.engine);
+				// The run row catches up too: this is also how the end of a run leaves it current.
+				if (progress) await tx.execute(progressUpdate(this.run.id, progressOf(this.run)));
 				return r;
 			});
 			this.snapshotSaved(Date.now());
+			if (progress) this.progressSaved(Date.now());
 			if (events.length) this.onCommit({ lastSeq: this.run.lastSeq, stored: [], run: this.run, ...result });
 		});
 		this.chain = done.catch((err) => this.fail(err as Error));
 		return done;
 	}
 
-	/** Saves the detector state if frames were fed since the last save and it is older than `olderThanMs`. */
+	/**
+	 * Saves the detector state if frames were fed since the last save and it is older than
+	 * `olderThanMs`, and the run's progress if the row is behind and was written over
+	 * PROGRESS_EVERY_MS ago (or `olderThanMs` is 0: at shutdown and run end).
+	 */
 	saveSnapshotIfStale(now_ms: number, olderThanMs = this.policy.everyMs): Promise<void> {
 		const done = this.chain.then(async () => {
-			if (this.broken || this.fedSinceSnapshot === 0 || now_ms - this.lastSnapshotAt < olderThanMs) return;
-			await saveSnapshot(this.db, this.run.id, this.engine);
-			this.snapshotSaved(now_ms);
+			if (this.broken) return;
+			const snapshot = this.fedSinceSnapshot > 0 && now_ms - this.lastSnapshotAt >= olderThanMs;
+			const progress = this.progressDirty && (olderThanMs === 0 || now_ms - this.progressWrittenAt >= PROGRESS_EVERY_MS);
+			if (!snapshot && !progress) return;
+			const written = progressOf(this.run);
+			await this.db.transaction(async (tx) => {
+				if (snapshot) await saveSnapshot(tx, this.run.id, this.engine);
+				if (progress) await tx.execute(progressUpdate(this.run.id, written));
+			});
+			if (snapshot) this.snapshotSaved(now_ms);
+			if (progress) this.progressSaved(now_ms);
 		});
 		this.chain = done.catch((err) => this.fail(err as Error));
 		return done;
+	}
+
+	private progressSaved(at_ms: number) {
+		this.progressDirty = false;
+		this.progressWrittenAt = at_ms;
 	}
 
 	private snapshotSaved(at_ms: number) {
@@ -201,9 +243,14 @@ export class RunWriter {
 			fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
 		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: false }))];
 		const last = fresh.at(-1);
-		const progress: RunProgress | null = last
-			? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock }
-			: null;
+		const gapCount = this.gaps.count;
+		// If every frame is stored (a shortfall stops this writer below, and the next one recounts).
+		const progress: RunProgressFields = {
+			...progressOf(this.run),
+			...(last ? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock } : {}),
+			frameCount: this.run.frameCount + toStore.length,
+			gapCount
+		};
 
 		try {
 			const deltas = rollupFrames(
@@ -213,10 +260,12 @@ export class RunWriter {
 			const rollups = await mergeWithStored(this.db, this.run.id, deltas, this.rollups);
 			const fits = rollups.length <= ROLLUP_ROWS_PER_STATEMENT;
 			const extra = events.length > 0 || filled.length > 0 || opened.length > 0 || snapshotDue || !fits;
-			const gapCount = this.gaps.count;
+			// Written along whenever the transaction does more than store frames (so the row's counts
+			// move with gap changes and incidents), else at most every PROGRESS_EVERY_MS.
+			const writeProgress = extra || receivedAt - this.progressWrittenAt >= PROGRESS_EVERY_MS;
 			// Only the database is touched in here: the group committer may run it twice.
 			const work = async (tx: Tx | Db) => {
-				const storedSeqs = await writeBatch(tx, this.run.id, new Date(receivedAt), toStore, fits ? rollups : [], progress, gapCount);
+				const storedSeqs = await writeBatch(tx, this.run.id, new Date(receivedAt), toStore, fits ? rollups : [], writeProgress ? progress : null);
 				if (!extra) return { storedSeqs, recorded: { opened: [], resolved: [] } };
 				if (!fits) await upsertRollups(tx as Db, this.run.id, rollups);
 				await writeGapChanges(tx, this.run.id, filled, opened);
@@ -236,12 +285,10 @@ export class RunWriter {
 			}
 			for (const r of rollups) this.rollups.remember(r);
 			if (snapshotDue) this.snapshotSaved(receivedAt);
-			this.run = {
-				...this.run,
-				...(progress ?? {}),
-				frameCount: this.run.frameCount + storedSeqs.size,
-				gapCount
-			};
+			this.run = { ...this.run, ...progress };
+			rememberProgress(this.run.id, progress);
+			if (writeProgress) this.progressSaved(receivedAt);
+			else this.progressDirty = true;
 			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh.filter((f) => storedSeqs.has(f.seq)), run: this.run, ...recorded });
 			if (this.broken) throw new Error(`run ${this.run.id}: writer out of step with the database`);
 		} catch (err) {
@@ -251,6 +298,36 @@ export class RunWriter {
 			throw err;
 		}
 	}
+}
+
+function progressOf(run: RunRow): RunProgressFields {
+	const { lastSeq, lastFrameT, lastFrameAt, lastLock, frameCount, gapCount } = run;
+	return { lastSeq, lastFrameT, lastFrameAt, lastLock, frameCount, gapCount };
+}
+
+/**
+ * The run row with the frames stored after its progress was last written (the server may have
+ * stopped in between): the newest stored frame and how many came after the row's last seq. Late
+ * frames always wrote the row in their own commit, so counting above its last seq is exact.
+ */
+async function catchUpProgress(db: Db, run: RunRow, gapCount: number): Promise<RunRow> {
+	const { rows } = await db.execute<{ seq: number; t: string; lock: number; created_at: string; newer: string }>(sql`
+		SELECT f.seq, f.t, f.lock, f.created_at,
+			(SELECT count(*) FROM frames WHERE run_id = ${run.id} AND seq > ${run.lastSeq}) AS newer
+		FROM frames f WHERE f.run_id = ${run.id} AND f.seq > ${run.lastSeq}
+		ORDER BY f.seq DESC LIMIT 1`);
+	const newest = rows[0];
+	if (!newest && run.gapCount === gapCount) return run;
+	if (!newest) return { ...run, gapCount };
+	return {
+		...run,
+		lastSeq: Number(newest.seq),
+		lastFrameT: Number(newest.t),
+		lastFrameAt: new Date(newest.created_at),
+		lastLock: Number(newest.lock),
+		frameCount: run.frameCount + Number(newest.newer),
+		gapCount
+	};
 }
 
 async function writeGapChanges(tx: Tx | Db, runId: string, filled: GapChange[], opened: SeqGap[]) {

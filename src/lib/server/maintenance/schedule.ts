@@ -1,9 +1,11 @@
 // Housekeeping the embedded database cannot do for itself: PGlite runs PostgreSQL as one
 // single-user backend, so autovacuum and the checkpointer never run. Without VACUUM, every
 // updated row (runs, rollups, snapshots) leaves a dead copy behind and the folder grows without
-// bound; without CHECKPOINT, the write-ahead log grows until its size limit forces one.
+// bound; without CHECKPOINT, the write-ahead log grows until its size limit forces one; without
+// ANALYZE, the planner has no statistics (analyze.ts).
 import { sql } from 'drizzle-orm';
 import type { Db } from '../db';
+import { analyzeChangedTables } from './analyze';
 import { applyRetention } from './retention';
 
 /** Tables rewritten in place by ingest: small, so vacuuming them is cheap and frequent. */
@@ -12,6 +14,7 @@ const UPDATED_TABLES = ['runs', 'run_snapshots', 'frame_rollups', 'frame_gaps', 
 export interface MaintenanceReport {
 	framesDeleted: number;
 	vacuumed: string[];
+	analyzed: string[];
 }
 
 export async function runMaintenance(db: Db, now = new Date()): Promise<MaintenanceReport> {
@@ -23,9 +26,13 @@ export async function runMaintenance(db: Db, now = new Date()): Promise<Maintena
 		await db.execute(sql.raw(`VACUUM ${table}`));
 		await new Promise((r) => setImmediate(r));
 	}
+	const analyzed = await analyzeChangedTables(db);
 	await db.execute(sql`CHECKPOINT`);
-	return { framesDeleted, vacuumed };
+	return { framesDeleted, vacuumed, analyzed };
 }
+
+/** How often the planner statistics are checked (analyze.ts), apart from the full pass. */
+const ANALYZE_CHECK_MS = 20_000;
 
 /** Runs maintenance every `everyMs`, one pass at a time; returns a stop function. */
 export function scheduleMaintenance(db: Db, everyMs: number, log: (message: string) => void = console.log): () => void {
@@ -42,6 +49,24 @@ export function scheduleMaintenance(db: Db, everyMs: number, log: (message: stri
 			running = false;
 		}
 	}, everyMs);
+	// Statistics go stale as fast as runs grow (a replay right after a large upload must not wait a
+	// whole maintenance period), and checking costs one catalog query.
+	let analyzing = false;
+	const analyzeTimer = setInterval(async () => {
+		if (analyzing || running) return;
+		analyzing = true;
+		try {
+			await analyzeChangedTables(db);
+		} catch (err) {
+			console.error('analyze failed', err);
+		} finally {
+			analyzing = false;
+		}
+	}, Math.min(everyMs, ANALYZE_CHECK_MS));
 	timer.unref();
-	return () => clearInterval(timer);
+	analyzeTimer.unref();
+	return () => {
+		clearInterval(timer);
+		clearInterval(analyzeTimer);
+	};
 }

@@ -5,6 +5,7 @@ import type { RunDescription } from '../../protocol/messages';
 import type { Db } from '../db';
 import { frameGaps, frames, runs, setups } from '../db/schema';
 import { rowToFrame } from '../ingest/frame-rows';
+import { withLiveProgress } from './live-progress';
 
 export type RunRow = typeof runs.$inferSelect;
 
@@ -40,7 +41,7 @@ export function publicRun(row: RunRow) {
 
 export async function getRun(db: Db, id: string) {
 	const [row] = await db.select().from(runs).where(eq(runs.id, id));
-	return row ?? null;
+	return row ? withLiveProgress(row) : null;
 }
 
 export async function listRuns(db: Db, filter: { setup?: string; status?: 'open' | 'ended' }) {
@@ -54,7 +55,7 @@ export async function listRuns(db: Db, filter: { setup?: string; status?: 'open'
 		.where(where.length ? and(...where) : undefined)
 		.orderBy(desc(runs.startedAt))
 		.limit(500);
-	return rows.map((r) => ({ ...publicRun(r.run), setupName: r.setupName }));
+	return rows.map((r) => ({ ...publicRun(withLiveProgress(r.run)), setupName: r.setupName }));
 }
 
 export async function listGaps(db: Db, runId: string) {

@@ -1,4 +1,5 @@
 // Setups (one cryostat line with its oscillator) and the people who look after them.
+import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
@@ -61,7 +62,7 @@ export async function listSetupsWithStatus(db: Db) {
 	]);
 	return all.map((s) => ({
 		...s,
-		openRuns: openRuns.filter((r) => r.setupId === s.id),
+		openRuns: openRuns.filter((r) => r.setupId === s.id).map(withLiveProgress),
 		openIncidents: openIncidents.filter((i) => i.setupId === s.id).reduce((n, i) => n + i.n, 0),
 		openCritical: openIncidents.filter((i) => i.setupId === s.id && i.severity === 'critical').reduce((n, i) => n + i.n, 0)
 	}));
