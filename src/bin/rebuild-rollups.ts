@@ -6,7 +6,7 @@
 import { asc } from 'drizzle-orm';
 import { readConfig } from '../lib/server/config';
 import { lockDataDir, unlockDataDir } from '../lib/server/data-lock';
-import { openDatabase } from '../lib/server/db';
+import { openConfiguredDatabase } from '../lib/server/db';
 import { runs } from '../lib/server/db/schema';
 import { parseRebuildArgs, REBUILD_USAGE, type RebuildArgs } from '../lib/server/rollups/rebuild-args';
 import { rebuildRollups, storedFrameShortfall } from '../lib/server/rollups/store';
@@ -22,13 +22,15 @@ try {
 }
 
 const config = readConfig();
+// The embedded database is one process's; a PostgreSQL server takes any number of clients.
+const embedded = !config.databaseUrl;
 try {
-	lockDataDir(config.dataDir);
+	if (embedded) lockDataDir(config.dataDir);
 } catch (err) {
 	console.error(`rollups:rebuild: ${(err as Error).message}`);
 	process.exit(1);
 }
-const { db, close } = await openDatabase(config.dataDir, config.migrationsDir);
+const { db, close } = await openConfiguredDatabase(config);
 try {
 	let targets: { id: string; name: string }[];
 	if ('runId' in args.target) {
@@ -58,5 +60,5 @@ try {
 	process.exitCode = 1;
 } finally {
 	await close();
-	unlockDataDir(config.dataDir);
+	if (embedded) unlockDataDir(config.dataDir);
 }

@@ -6,7 +6,7 @@ import { createAuth } from '../lib/server/auth/options';
 import { loadAuthSecret } from '../lib/server/auth/secret';
 import { readConfig } from '../lib/server/config';
 import { lockDataDir, unlockDataDir } from '../lib/server/data-lock';
-import { openDatabase } from '../lib/server/db';
+import { openConfiguredDatabase } from '../lib/server/db';
 
 const { values } = parseArgs({
 	options: { email: { type: 'string' }, name: { type: 'string' }, role: { type: 'string' }, password: { type: 'string' } }
@@ -20,22 +20,24 @@ if (!parsed.success) {
 }
 
 const config = readConfig();
+// The embedded database is one process's; a PostgreSQL server takes any number of clients.
+const embedded = !config.databaseUrl;
 try {
-	lockDataDir(config.dataDir);
+	if (embedded) lockDataDir(config.dataDir);
 } catch (err) {
 	console.error(`${(err as Error).message} (or add people on the admin page while it runs)`);
 	process.exit(1);
 }
-const { db, close } = await openDatabase(config.dataDir, config.migrationsDir);
+const { db, close } = await openConfiguredDatabase(config);
 try {
 	// No request comes in here; the base URL only silences better-auth's warning.
 	const auth = createAuth({ db, secret: loadAuthSecret(config.dataDir, config.authSecret), baseURL: config.origin ?? 'http://localhost:3000' });
 	const user = await addUser(auth, parsed.data);
-	console.log(`added ${user.email} (${parsed.data.role}) to ${config.dataDir}`);
+	console.log(`added ${user.email} (${parsed.data.role}) to ${embedded ? config.dataDir : 'the PostgreSQL server'}`);
 } catch (err) {
 	console.error(`could not add ${parsed.data.email}: ${(err as Error).message}`);
 	process.exitCode = 1;
 } finally {
 	await close();
-	unlockDataDir(config.dataDir);
+	if (embedded) unlockDataDir(config.dataDir);
 }

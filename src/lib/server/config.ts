@@ -3,6 +3,8 @@ import path from 'node:path';
 
 export interface Config {
 	dataDir: string;
+	/** A PostgreSQL server (DATABASE_URL); unset: the embedded database in dataDir. */
+	databaseUrl: string | undefined;
 	origin: string | undefined;
 	authSecret: string | undefined;
 	smtpUrl: string | undefined;
@@ -20,6 +22,7 @@ export interface Config {
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 	return {
 		dataDir: path.resolve(env.PHASEWARDEN_DATA || '.data'),
+		databaseUrl: databaseUrl(env.DATABASE_URL),
 		origin: env.ORIGIN || undefined,
 		authSecret: env.BETTER_AUTH_SECRET || undefined,
 		smtpUrl: env.SMTP_URL || undefined,
@@ -39,4 +42,10 @@ function positiveSeconds(env: NodeJS.ProcessEnv, name: string, fallback: number)
 	const value = Number(raw);
 	if (!Number.isFinite(value) || value <= 0) throw new Error(`${name} must be a positive number of seconds, got "${raw}"`);
 	return value;
+}
+
+function databaseUrl(raw: string | undefined): string | undefined {
+	if (!raw) return undefined;
+	if (!/^postgres(ql)?:\/\//.test(raw)) throw new Error(`DATABASE_URL must start with postgres:// or postgresql://, got "${raw.slice(0, 40)}"`);
+	return raw;
 }

@@ -7,7 +7,7 @@ import { createAuth, type Auth } from './auth/options';
 import { loadAuthSecret } from './auth/secret';
 import { readConfig, type Config } from './config';
 import { lockDataDir, unlockDataDir } from './data-lock';
-import { openDatabase, type Db } from './db';
+import { openConfiguredDatabase, type Db } from './db';
 import { Ingest } from './ingest/ingest';
 import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
 import { LiveBus } from './live/bus';
@@ -37,7 +37,7 @@ export function getRuntime(): Promise<Runtime> {
 async function start(): Promise<Runtime> {
 	const config = readConfig();
 	lockDataDir(config.dataDir);
-	const { db, close: closeDb } = await openDatabase(config.dataDir, config.migrationsDir);
+	const { db, kind: databaseKind, close: closeDb } = await openConfiguredDatabase(config);
 	const auth = createAuth({
 		db,
 		secret: loadAuthSecret(config.dataDir, config.authSecret),
@@ -60,7 +60,7 @@ async function start(): Promise<Runtime> {
 		config.silenceCheckMs,
 		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
 	);
-	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs);
+	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs, databaseKind);
 	return {
 		config,
 		db,

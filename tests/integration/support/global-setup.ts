@@ -12,6 +12,6 @@ export default async function setup(project: TestProject) {
 
 declare module 'vitest' {
 	export interface ProvidedContext {
-		phasewardenTemplate: { dataDir: string; setupId: string; token: string };
+		phasewardenTemplate: { dataDir: string; setupId: string; token: string; databaseUrl?: string };
 	}
 }

@@ -1,14 +1,18 @@
 // Starts the real production server (build/ + src/bin/serve.js) on a free port with a fresh PGlite
 // directory and the mail catcher, seeded with a setup, an agent token and one person per role.
+// With PHASEWARDEN_TEST_PG_URL (a PostgreSQL server's admin URL, see .ci/postgres-cluster.sh) every
+// test gets a fresh database on that server instead, copied from a seeded template database; its
+// URL is kept in the test's data folder, so tests start servers the same way in both modes.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { cpSync, mkdtempSync } from 'node:fs';
+import { cpSync, existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { inject } from 'vitest';
 import { addUser } from '../../../src/lib/server/auth/users';
 import { createAuth } from '../../../src/lib/server/auth/options';
-import { openDatabase } from '../../../src/lib/server/db';
+import { openConfiguredDatabase } from '../../../src/lib/server/db';
+import { cloneDatabase, createDatabase } from './postgres';
 import { createSetup } from '../../../src/lib/server/setups/service';
 import { createAgentToken } from '../../../src/lib/server/setups/tokens';
 
@@ -26,6 +30,18 @@ export interface Seeded {
 	dataDir: string;
 	setupId: string;
 	token: string;
+	/** The test's own database on the PostgreSQL server, in server mode. */
+	databaseUrl?: string;
+}
+
+/** Server mode: the PostgreSQL server the tests run against (an admin URL), else undefined. */
+export const testPgUrl = process.env.PHASEWARDEN_TEST_PG_URL || undefined;
+const DATABASE_URL_FILE = 'test-database-url';
+
+/** The database URL a test's data folder is paired with (server mode). */
+export function databaseUrlOf(dataDir: string): string | undefined {
+	const file = path.join(dataDir, DATABASE_URL_FILE);
+	return existsSync(file) ? readFileSync(file, 'utf8').trim() : undefined;
 }
 
 /** A fresh copy of the template: people, one period-tripling setup and an agent token. */
@@ -33,13 +49,17 @@ export async function seedDataDir(): Promise<Seeded> {
 	const template = inject('phasewardenTemplate');
 	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-it-'));
 	cpSync(template.dataDir, dataDir, { recursive: true });
-	return { ...template, dataDir };
+	if (!template.databaseUrl) return { ...template, dataDir };
+	const databaseUrl = await cloneDatabase(template.databaseUrl, path.basename(dataDir));
+	writeFileSync(path.join(dataDir, DATABASE_URL_FILE), databaseUrl);
+	return { ...template, dataDir, databaseUrl };
 }
 
 /** Seeds the template once per test run (see global-setup.ts). */
 export async function createTemplate(): Promise<Seeded> {
 	const dataDir = mkdtempSync(path.join(os.tmpdir(), 'phasewarden-template-'));
-	const { db, close } = await openDatabase(dataDir, path.join(root, 'drizzle'));
+	const databaseUrl = testPgUrl ? await createDatabase(testPgUrl, path.basename(dataDir)) : undefined;
+	const { db, close } = await openConfiguredDatabase({ dataDir, databaseUrl, migrationsDir: path.join(root, 'drizzle') });
 	try {
 		const auth = createAuth({ db, secret: SECRET, baseURL: 'http://127.0.0.1' });
 		for (const p of Object.values(people)) await addUser(auth, { ...p, password: PASSWORD });
@@ -49,7 +69,7 @@ export async function createTemplate(): Promise<Seeded> {
 			null
 		);
 		const { secret } = await createAgentToken(db, setup.id, 'integration test', null);
-		return { dataDir, setupId: setup.id, token: secret };
+		return { dataDir, setupId: setup.id, token: secret, databaseUrl };
 	} finally {
 		await close();
 	}
@@ -88,6 +108,7 @@ export async function startServer(dataDir: string, port?: number, extraEnv: Reco
 			HOST: '127.0.0.1',
 			ORIGIN: url,
 			PHASEWARDEN_DATA: dataDir,
+			...(databaseUrlOf(dataDir) ? { DATABASE_URL: databaseUrlOf(dataDir)! } : {}),
 			PHASEWARDEN_CATCHER: '1',
 			PHASEWARDEN_CATCHER_PORT: '0',
 			PHASEWARDEN_SILENCE_CHECK_MS: '300',

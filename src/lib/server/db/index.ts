@@ -31,3 +31,24 @@ export async function openDatabase(
 	await migrate(db, { migrationsFolder });
 	return { db, client, close: () => client.close() };
 }
+
+export type DatabaseKind = 'embedded' | 'server';
+
+export interface DatabaseLocation {
+	/** The embedded database's folder (used when no server URL is given). */
+	dataDir: string;
+	/** postgres://… of a PostgreSQL server; when set, the embedded database is not opened. */
+	databaseUrl?: string;
+	migrationsDir: string;
+}
+
+/** The database the configuration names: a PostgreSQL server when DATABASE_URL is set, else PGlite. */
+export async function openConfiguredDatabase(at: DatabaseLocation): Promise<{ db: Db; kind: DatabaseKind; close: () => Promise<void> }> {
+	if (at.databaseUrl) {
+		const { openServerDatabase } = await import('./server');
+		const { db, close } = await openServerDatabase(at.databaseUrl, at.migrationsDir);
+		return { db, kind: 'server', close };
+	}
+	const { db, close } = await openDatabase(at.dataDir, at.migrationsDir);
+	return { db, kind: 'embedded', close };
+}

@@ -4,7 +4,7 @@
 // bound; without CHECKPOINT, the write-ahead log grows until its size limit forces one; without
 // ANALYZE, the planner has no statistics (analyze.ts).
 import { sql } from 'drizzle-orm';
-import type { Db } from '../db';
+import type { DatabaseKind, Db } from '../db';
 import { analyzeChangedTables } from './analyze';
 import { applyRetention } from './retention';
 
@@ -17,8 +17,10 @@ export interface MaintenanceReport {
 	analyzed: string[];
 }
 
-export async function runMaintenance(db: Db, now = new Date()): Promise<MaintenanceReport> {
+export async function runMaintenance(db: Db, now = new Date(), kind: DatabaseKind = 'embedded'): Promise<MaintenanceReport> {
 	const framesDeleted = await applyRetention(db, now);
+	// A PostgreSQL server vacuums, analyzes and checkpoints by itself (and CHECKPOINT needs a superuser there).
+	if (kind === 'server') return { framesDeleted, vacuumed: [], analyzed: [] };
 	const vacuumed: string[] = [...UPDATED_TABLES];
 	// Insert-only until retention deletes from it; then its freed space is made reusable.
 	if (framesDeleted > 0) vacuumed.push('frames');
@@ -35,13 +37,13 @@ export async function runMaintenance(db: Db, now = new Date()): Promise<Maintena
 const ANALYZE_CHECK_MS = 20_000;
 
 /** Runs maintenance every `everyMs`, one pass at a time; returns a stop function. */
-export function scheduleMaintenance(db: Db, everyMs: number, log: (message: string) => void = console.log): () => void {
+export function scheduleMaintenance(db: Db, everyMs: number, kind: DatabaseKind = 'embedded', log: (message: string) => void = console.log): () => void {
 	let running = false;
 	const timer = setInterval(async () => {
 		if (running) return;
 		running = true;
 		try {
-			const report = await runMaintenance(db);
+			const report = await runMaintenance(db, new Date(), kind);
 			if (report.framesDeleted) log(`maintenance: ${report.framesDeleted} raw frames past retention deleted`);
 		} catch (err) {
 			console.error('maintenance failed', err);
@@ -53,7 +55,7 @@ export function scheduleMaintenance(db: Db, everyMs: number, log: (message: stri
 	// whole maintenance period), and checking costs one catalog query.
 	let analyzing = false;
 	const analyzeTimer = setInterval(async () => {
-		if (analyzing || running) return;
+		if (analyzing || running || kind === 'server') return;
 		analyzing = true;
 		try {
 			await analyzeChangedTables(db);
