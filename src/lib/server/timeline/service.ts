@@ -6,8 +6,9 @@ import { modelUncertainty } from '../../detect/model-band';
 import { TEMPERATURE_AUX } from '../../detect/expected';
 import { parseRunInfo } from '../../detect/run-info';
 import { ROLLUP_RESOLUTIONS_S, rollupFrames } from '../../rollup/rollup';
-import { bucketsFromRollups, type Timeline, type TimelineBucket } from '../../timeline/buckets';
-import { expectedBand, type CountBand } from '../../timeline/model-band';
+import { bucketsFromRollups, type TimelineBucket } from '../../timeline/buckets';
+import { expectedBand } from '../../timeline/model-band';
+import type { RunTimeline } from '../../timeline/run-timeline';
 import { gridFor, planTimeline, TIMELINE_POINTS_DEFAULT, type TimelinePlan } from '../../timeline/plan';
 import type { Db } from '../db';
 import { frameRollups, frames } from '../db/schema';
@@ -16,21 +17,11 @@ import { currentExpectedOf, readRollups } from '../rollups/store';
 import { runInfoFor } from '../runs/detector-context';
 import type { RunRow } from '../runs/service';
 
+export type { RunTimeline };
+
 /** Most frames a timeline reads; beyond, it falls back to 10 s rollups (coarser but still honest). */
 export const TIMELINE_FRAMES_MAX = 20_000;
 const FINEST_ROLLUP_S = ROLLUP_RESOLUTIONS_S[0];
-
-export type BandedBucket = TimelineBucket & {
-	/** The rate model's band around expected_switches / expected_escapes; null without a model. */
-	switches_band: CountBand | null;
-	escapes_band: CountBand | null;
-};
-
-export type RunTimeline = Omit<Timeline, 'buckets'> & {
-	buckets: BandedBucket[];
-	/** The span asked for (or the whole run), before alignment to the bucket grid. */
-	span: { from_ms: number; to_ms: number } | null;
-};
 
 export type TimelineQuery = { from_ms?: number; to_ms?: number; points?: number };
 

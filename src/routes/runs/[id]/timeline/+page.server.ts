@@ -17,6 +17,7 @@ import type { Actions, PageServerLoad } from './$types';
 const TIMELINE_PAGE_POINTS = 600;
 
 export const load: PageServerLoad = async (event) => {
+	event.depends('pw:timeline');
 	const user = requireRole(event, 'observer');
 	const { db } = await getRuntime();
 	const run = await getRun(db, event.params.id);
