@@ -79,7 +79,7 @@ describe('timeline buckets', () => {
 			),
 			{ numRuns: 150 }
 		);
-	});
+	}, 60_000);
 
 	it('refuses rollups that do not divide the bucket width', () => {
 		const plan = planTimeline(T0_MS, T0_MS + 3_600_000 * 5, 100); // 180 s buckets from 60 s rows
