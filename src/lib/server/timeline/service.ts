@@ -1,11 +1,11 @@
 // A run's timeline for a span at N buckets: stored rollups merged on the bucket grid, or for
 // short spans the frames themselves, read by the seq range the 10 s rollups give (the frames
 // table is keyed by seq, not t, so a t-range scan would read the whole run).
-import { and, asc, eq, getTableColumns, gte, lte, min } from 'drizzle-orm';
+import { and, asc, eq, getTableColumns, gte, lt, lte, max, min, sum } from 'drizzle-orm';
 import { modelUncertainty } from '../../detect/model-band';
-import { TEMPERATURE_AUX } from '../../detect/expected';
+import { compileRates, expectFrame, TEMPERATURE_AUX } from '../../detect/expected';
 import { parseRunInfo } from '../../detect/run-info';
-import { ROLLUP_RESOLUTIONS_S, rollupFrames } from '../../rollup/rollup';
+import { bucketStart, ROLLUP_RESOLUTIONS_S, rollupFrames, type ExpectedOf } from '../../rollup/rollup';
 import { bucketsFromRollups, type TimelineBucket } from '../../timeline/buckets';
 import { expectedBand } from '../../timeline/model-band';
 import type { RunTimeline } from '../../timeline/run-timeline';
@@ -13,7 +13,7 @@ import { gridFor, planTimeline, TIMELINE_POINTS_DEFAULT, type TimelinePlan } fro
 import type { Db } from '../db';
 import { frameRollups, frames } from '../db/schema';
 import { rowToFrame } from '../ingest/frame-rows';
-import { currentExpectedOf, readRollups } from '../rollups/store';
+import { readRollups } from '../rollups/store';
 import { runInfoFor } from '../runs/detector-context';
 import type { RunRow } from '../runs/service';
 
@@ -35,23 +35,47 @@ export async function runSpan(db: Db, run: RunRow): Promise<{ from_ms: number; t
 	return { from_ms: Number(row.first), to_ms: Math.max(Number(row.first) + 1, run.lastFrameT + 1) };
 }
 
-const { iq: _iq, ...columnsWithoutIq } = getTableColumns(frames);
+/** Frames per second of the run and the seq range holding [from_ms, to_ms), from the 10 s rollups (one row, no JSON). */
+async function seqIndex(db: Db, runId: string, from_ms: number, to_ms: number) {
+	const [row] = await db
+		.select({ frames: sum(frameRollups.frames), fromSeq: min(frameRollups.firstSeq), toSeq: max(frameRollups.lastSeq) })
+		.from(frameRollups)
+		.where(
+			and(
+				eq(frameRollups.runId, runId),
+				eq(frameRollups.resolutionS, FINEST_ROLLUP_S),
+				gte(frameRollups.bucketT, from_ms),
+				lt(frameRollups.bucketT, to_ms)
+			)
+		);
+	if (!row || row.fromSeq === null || row.toSeq === null) return null;
+	return { frames: Number(row.frames), fromSeq: row.fromSeq, toSeq: row.toSeq };
+}
 
-async function framesBuckets(db: Db, run: RunRow, plan: TimelinePlan): Promise<TimelineBucket[] | null> {
-	const index = await readRollups(db, run.id, FINEST_ROLLUP_S, plan.from_ms, plan.to_ms - 1);
-	const inGrid = index.filter((r) => r.bucket_t < plan.to_ms);
-	if (inGrid.length === 0) return bucketsFromRollups([], plan, run.states);
-	if (inGrid.reduce((s, r) => s + r.frames, 0) > TIMELINE_FRAMES_MAX) return null;
-	const fromSeq = Math.min(...inGrid.map((r) => r.firstSeq));
-	const toSeq = Math.max(...inGrid.map((r) => r.lastSeq));
+// Only what a bucket sums: no IQ histogram, transitions or amplitude (most of a row's bytes).
+const { iq: _iq, transitions: _tr, amp: _amp, receivedAt: _at, late: _late, runId: _run, ...summedColumns } = getTableColumns(frames);
+
+async function framesBuckets(db: Db, run: RunRow, plan: TimelinePlan, expectedOf: ExpectedOf): Promise<TimelineBucket[] | null> {
+	// Frame buckets need not lie on the 10 s grid: the 10 s bucket under way at from_ms may hold
+	// frames inside the span, so the index starts at its start and the t filter trims the rest.
+	const index = await seqIndex(db, run.id, bucketStart(plan.from_ms, FINEST_ROLLUP_S), plan.to_ms);
+	if (!index) return bucketsFromRollups([], plan, run.states);
+	if (index.frames > TIMELINE_FRAMES_MAX) return null;
 	const rows = await db
-		.select(columnsWithoutIq)
+		.select(summedColumns)
 		.from(frames)
-		.where(and(eq(frames.runId, run.id), gte(frames.seq, fromSeq), lte(frames.seq, toSeq), gte(frames.t, plan.from_ms), lte(frames.t, plan.to_ms - 1)))
+		.where(
+			and(
+				eq(frames.runId, run.id),
+				gte(frames.seq, index.fromSeq),
+				lte(frames.seq, index.toSeq),
+				gte(frames.t, plan.from_ms),
+				lt(frames.t, plan.to_ms)
+			)
+		)
 		.orderBy(asc(frames.seq))
 		.limit(TIMELINE_FRAMES_MAX + 1);
-	const read = rows.map((r) => rowToFrame({ ...r, iq: null }));
-	const expectedOf = await currentExpectedOf(db, run.id);
+	const read = rows.map((r) => rowToFrame({ ...r, iq: null, transitions: null, amp: null }));
 	return bucketsFromRollups(rollupFrames(read, expectedOf, [plan.width_s]), plan, run.states);
 }
 
@@ -61,6 +85,19 @@ function finestRollupPlan(plan: TimelinePlan, points: number): TimelinePlan {
 		const grid = gridFor(plan.from_ms, plan.to_ms, k * FINEST_ROLLUP_S);
 		if (grid.count <= points) return { source: 'rollups', rollup_s: FINEST_ROLLUP_S, width_s: k * FINEST_ROLLUP_S, ...grid };
 	}
+}
+
+/**
+ * Predicted counts of frames read directly, from the setup's current rate models (as a rollup
+ * rebuild would; the stored rollups summed the model in force when each frame arrived).
+ */
+function expectedOfFrames(info: ReturnType<typeof parseRunInfo>): ExpectedOf {
+	const rates = compileRates(info);
+	if (!rates.switching && !rates.escape) return () => null;
+	return (frame) => {
+		const e = expectFrame(frame, rates);
+		return { switches: e.switching?.expected ?? null, escapes: e.escape?.expected ?? null };
+	};
 }
 
 export async function runTimeline(db: Db, run: RunRow, q: TimelineQuery = {}): Promise<RunTimeline> {
@@ -74,16 +111,16 @@ export async function runTimeline(db: Db, run: RunRow, q: TimelineQuery = {}): P
 		return { resolution_s: FINEST_ROLLUP_S, rollup_s: FINEST_ROLLUP_S, buckets: [], span: null };
 	}
 	let plan = planTimeline(from_ms, to_ms, points);
+	const info = parseRunInfo(await runInfoFor(db, run));
 	let buckets: TimelineBucket[] | null = null;
 	if (plan.source === 'frames') {
-		buckets = await framesBuckets(db, run, plan);
+		buckets = await framesBuckets(db, run, plan, expectedOfFrames(info));
 		if (!buckets) plan = finestRollupPlan(plan, points);
 	}
 	if (!buckets) {
 		const rows = await readRollups(db, run.id, plan.rollup_s!, plan.from_ms, plan.to_ms - 1);
 		buckets = bucketsFromRollups(rows, plan, run.states);
 	}
-	const info = parseRunInfo(await runInfoFor(db, run));
 	const uSwitch = modelUncertainty(info, 'switching');
 	const uEscape = modelUncertainty(info, 'escape');
 	return {
