@@ -56,7 +56,9 @@ it('sums each bucket exactly over the stored frames in it, at any span and N', a
 	const sources = new Set<string>();
 	for (const c of cases) {
 		const from = first + c.a;
-		const res = await observer(`/api/runs/${runId}/timeline?from_ms=${from}&to_ms=${from + c.len}&points=${c.points}`);
+		const res = await observer(`/api/runs/${runId}/timeline?from_ms=${from}&to_ms=${from + c.len}&points=${c.points}`).catch((err) => {
+			throw new Error(`timeline request failed (${err}); server said:\n${server.output().slice(-3000)}`);
+		});
 		expect(res.status).toBe(200);
 		const body = (await res.json()) as { resolution_s: number; rollup_s: number | null; buckets: Bucket[] };
 		sources.add(String(body.rollup_s));
