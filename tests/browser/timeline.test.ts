@@ -75,7 +75,7 @@ it('lets an operator zoom by keyboard, add a note at a picked time, and open an 
 		// Click a time on the tracks, write the note, see its pin.
 		const box = (await area.boundingBox())!;
 		await page.mouse.click(box.x + box.width * 0.2, box.y + 40);
-		await page.getByLabel(/note/i).fill('helium transfer');
+		await page.getByRole('textbox', { name: /^note/i }).fill('helium transfer');
 		await page.getByRole('button', { name: /add note/i }).click();
 		await page.getByRole('button', { name: /note: helium transfer/i }).waitFor();
 		await page.screenshot({ path: path.join(shots, 'timeline-operator.png'), fullPage: true });
