@@ -9,7 +9,7 @@ import { bucketStart, ROLLUP_RESOLUTIONS_S, rollupFrames, type ExpectedOf } from
 import { bucketsFromRollups, type TimelineBucket } from '../../timeline/buckets';
 import { expectedBand } from '../../timeline/model-band';
 import type { RunTimeline } from '../../timeline/run-timeline';
-import { gridFor, planTimeline, TIMELINE_POINTS_DEFAULT, type TimelinePlan } from '../../timeline/plan';
+import { checkPoints, gridFor, planTimeline, TIMELINE_POINTS_DEFAULT, type TimelinePlan } from '../../timeline/plan';
 import type { Db } from '../db';
 import { frameRollups, frames } from '../db/schema';
 import { rowToFrame } from '../ingest/frame-rows';
@@ -106,8 +106,8 @@ export async function runTimeline(db: Db, run: RunRow, q: TimelineQuery = {}): P
 	const from_ms = q.from_ms ?? whole?.from_ms;
 	const to_ms = q.to_ms ?? whole?.to_ms;
 	if (from_ms === undefined || to_ms === undefined || to_ms <= from_ms) {
-		// No frames yet and no explicit span: nothing to cover.
-		planTimeline(0, 1, points); // still validates N
+		// No frames yet (or a span starting after the last frame): nothing to cover, N still checked.
+		checkPoints(points);
 		return { resolution_s: FINEST_ROLLUP_S, rollup_s: FINEST_ROLLUP_S, buckets: [], span: null };
 	}
 	let plan = planTimeline(from_ms, to_ms, points);
