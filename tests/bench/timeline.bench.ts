@@ -89,7 +89,7 @@ if (process.env.BENCH_SKIP_PAGE !== '1') {
 		// From navigation to the tracks drawn and the page hydrated (the brush answers keys), two frames painted.
 		const draw = (runId: string) => async () => {
 			await page.goto(`${server.url}/runs/${runId}/timeline`, { waitUntil: 'load' });
-			await page.waitForSelector('.track-area section svg path');
+			await page.waitForSelector('.track-area section svg path', { state: 'attached' });
 			await page.evaluate(() => new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r))));
 		};
 		const pair = await interleaved(draw(data.weekRunId), draw(data.hourRunId), PAGE_TRIALS);
