@@ -318,3 +318,24 @@ export const ruleChanges = pgTable(
 	},
 	(t) => [index('rule_changes_setup_idx').on(t.setupId)]
 );
+
+/** Notes people pin to a time or span of a run ("helium transfer"), shown on the timeline. */
+export const runAnnotations = pgTable(
+	'run_annotations',
+	{
+		id: serial('id').primaryKey(),
+		runId: text('run_id')
+			.notNull()
+			.references(() => runs.id, { onDelete: 'cascade' }),
+		/** Agent clock (ms), like frame `t`, so a note lines up with the frames it is about. */
+		atMs: bigint('at_ms', { mode: 'number' }).notNull(),
+		/** End of the span (agent ms); null for a note at one instant. */
+		untilMs: bigint('until_ms', { mode: 'number' }),
+		text: text('text').notNull(),
+		authorId: text('author_id').references(() => user.id, { onDelete: 'set null' }),
+		/** Kept apart from the user row so the note still says who wrote it after they leave. */
+		authorName: text('author_name').notNull(),
+		createdAt: created()
+	},
+	(t) => [index('run_annotations_run_idx').on(t.runId, t.atMs)]
+);
