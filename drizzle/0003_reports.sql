@@ -17,7 +17,7 @@ CREATE TABLE "report_settings" (
 	"report_time" text DEFAULT '08:00' NOT NULL,
 	"time_zone" text,
 	"follow_setups" jsonb,
-	"created_at" timestamp with time zone DEFAULT now() NOT NULL,
+	"armed_at" timestamp with time zone DEFAULT now() NOT NULL,
 	"last_report_until_ms" bigint
 );
 --> statement-breakpoint

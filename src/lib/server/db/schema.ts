@@ -332,7 +332,7 @@ export const reportSettings = pgTable('report_settings', {
 	/** Setup ids followed; null follows the setups the person is a member of. */
 	followSetups: jsonb('follow_setups').$type<string[]>(),
 	/** When the schedule started: the first report never reaches back before its report time after this. */
-	armedAt: created(),
+	armedAt: timestamp('armed_at', { withTimezone: true }).notNull().defaultNow(),
 	/** End (ms) of the span of the last scheduled report; null before the first. */
 	lastReportUntilMs: bigint('last_report_until_ms', { mode: 'number' })
 });
