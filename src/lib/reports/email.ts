@@ -1,7 +1,7 @@
 // The morning report as an e-mail: a plain-text part that reads on its own, and an HTML part
 // with the same content plus a sparkline per run. Plain sentences, no field names.
 import { formatDuration, formatRate, kindLabel } from '../ui/format';
-import { formatInZone, formatP, rateSentence } from '../summary/words';
+import { formatInZone, pText, rateSentence } from '../summary/words';
 import type { MorningReport, ReportRun } from './report';
 import { sparkSvg } from './sparkline';
 
@@ -37,7 +37,7 @@ export function reportText(r: MorningReport, origin: string): string {
 		lines.push(`Data: ${formatDuration(s.exposure.data_s)} in ${s.exposure.frames} frames; locked ${lockedWords(run)} of the time (lock at or above ${s.timeLocked.threshold}).`);
 		lines.push(rateSentence('switching', s.switching, formatRate));
 		lines.push(rateSentence('escape', s.escape, formatRate));
-		if (s.occupancy.test) lines.push(`Equal filling of the ${s.states} states: p = ${formatP(s.occupancy.test.pValue)}${s.occupancy.test.pValue < 0.05 ? ', they do not fill equally' : ''}.`);
+		if (s.occupancy.test) lines.push(`Equal filling of the ${s.states} states: ${pText(s.occupancy.test.pValue)}${s.occupancy.test.pValue < 0.05 ? ', they do not fill equally' : ''}.`);
 		lines.push(s.lost.seconds > 0 ? `Lost data: ${formatDuration(s.lost.seconds)} (${s.lost.frames} frames never arrived).` : 'No data lost.');
 		lines.push(`Incidents: ${s.incidents.length}.`);
 		lines.push(`Timeline: ${origin}${run.timelinePath}`, '');

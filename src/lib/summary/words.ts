@@ -25,12 +25,18 @@ export function formatP(p: number | null | undefined): string {
 	return '< 0.0001';
 }
 
+/** "p = 0.03" or "p < 0.0001". */
+export function pText(p: number | null | undefined): string {
+	const f = formatP(p);
+	return f.startsWith('<') ? `p ${f}` : `p = ${f}`;
+}
+
 /** A sentence on a rate against its prediction. */
 export function rateSentence(what: string, r: RateComparison, fmt: (x: number | null) => string): string {
 	if (r.verdict === 'no exposure') return `No ${what} exposure in this span.`;
 	const seen = `${r.count} ${what} events in ${Math.round(r.exposure_s)} s: ${fmt(r.rate_per_s)} /s (${Math.round(r.confidence * 100)} % interval ${fmt(r.interval_per_s!.lower)}–${fmt(r.interval_per_s!.upper)} /s)`;
 	if (r.verdict === 'no prediction') return `${seen}; no rate model to compare with.`;
 	const against = `predicted ${fmt(r.expected_rate_per_s)} /s`;
-	if (r.verdict === 'as predicted') return `${seen}, as ${against} (p = ${formatP(r.pValue)}).`;
-	return `${seen}, ${r.verdict === 'above prediction' ? 'above' : 'below'} the ${against} (p = ${formatP(r.pValue)}).`;
+	if (r.verdict === 'as predicted') return `${seen}, as ${against} (${pText(r.pValue)}).`;
+	return `${seen}, ${r.verdict === 'above prediction' ? 'above' : 'below'} the ${against} (${pText(r.pValue)}).`;
 }
