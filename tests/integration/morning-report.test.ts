@@ -62,7 +62,9 @@ describe('morning report of a scripted night', () => {
 		const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'night-run', name: 'Night run' });
 		const runId = agent.welcome.run;
 		const seqs = Array.from({ length: LAST_SEQ }, (_, i) => i + 1).filter((s) => s < GAP.from || s > GAP.to);
-		const frames = seqs.map((s) => frame(s, lockOf(s), NIGHT));
+		// Each window's two switches go 0 → 1 and 1 → 0 (six states: K·K = 36 transition counts).
+		const transitions = Array.from({ length: 36 }, (_, i) => (i === 1 || i === 6 ? 1 : 0));
+		const frames = seqs.map((s) => ({ ...frame(s, lockOf(s), NIGHT), transitions }));
 		const send = async (list: typeof frames) => {
 			for (let i = 0; i < list.length; i += 100) agent.send({ type: 'frames', frames: list.slice(i, i + 100) });
 			await agent.waitFor((m) => m.type === 'ack' && m.seq === list.at(-1)!.seq, 30_000);
@@ -118,6 +120,9 @@ describe('morning report of a scripted night', () => {
 		expect(s.lost.frames).toBe(20);
 		expect(s.timeLocked.locked_s_min).toBe(frames.filter((f) => f.lock >= 0.5).length);
 		expect(s.timeLocked.locked_s_max).toBe(s.timeLocked.locked_s_min);
+		expect(s.transitions.counts[0][1]).toBe(frames.length);
+		expect(s.transitions.counts[1][0]).toBe(frames.length);
+		expect(s.occupancy.test.method).toBe('observed transitions');
 		expect(json.incidents).toHaveLength(1);
 		expect(json.incidents[0]).toMatchObject({ kind: 'lock_lost', acknowledgedBy: people.operator.name });
 		expect(json.incidents[0].toAcknowledge_s).toBeGreaterThanOrEqual(0);
@@ -129,6 +134,12 @@ describe('morning report of a scripted night', () => {
 		expect(hour.incidents).toHaveLength(1);
 		expect((await observer(`/api/runs/${runId}/summary?from_ms=9&to_ms=3`)).status).toBe(400);
 		expect((await observer(`/api/runs/no-such-run/summary`)).status).toBe(404);
+		const summaryPage = await observer(`/runs/${runId}/summary`);
+		expect(summaryPage.status).toBe(200);
+		const summaryHtml = await summaryPage.text();
+		expect(summaryHtml).toContain('Summary of Night run');
+		expect(summaryHtml).toContain('From state 0 (0°) to state 1 (60°)');
+		expect((await operator('/settings')).status).toBe(200);
 
 		// Kept: reopened as a page, only by its owner.
 		const page = await operator(`/reports/${mine!.reportId}`);
