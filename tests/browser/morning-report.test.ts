@@ -68,7 +68,7 @@ it('an operator sets the report time, opens the night’s report, follows a run 
 	expect(at9.length).toBe(1);
 	expect(at8.every((r: { reportId: string }) => r.reportId !== at9[0].reportId)).toBe(true);
 
-	await page.getByRole('link', { name: 'Reports', exact: true }).click();
+	await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Reports' }).click();
 	await page.getByRole('link', { name: /2026-11-30 09:00 – 2026-12-01 09:00/ }).click();
 	await expect.poll(() => page.getByRole('heading', { name: /Browser night/ }).count()).toBe(1);
 	const timeline = page.getByRole('link', { name: 'Open the timeline of this span' });
