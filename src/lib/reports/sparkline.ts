@@ -7,7 +7,12 @@ export function sparkPath(values: readonly (number | null)[], width: number, hei
 	if (known.length === 0) return '';
 	const top = max ?? Math.max(...known);
 	const scale = top > 0 ? (height - 2) / top : 0;
-	const step = values.length > 1 ? width / (values.length - 1) : 0;
+	// A single bucket is drawn as a level line across the box, so one value still shows.
+	if (values.length === 1) {
+		const y = (height - 1 - known[0] * scale).toFixed(1);
+		return `M0.0 ${y} L${width.toFixed(1)} ${y}`;
+	}
+	const step = width / (values.length - 1);
 	let d = '';
 	let pen = false;
 	values.forEach((v, i) => {

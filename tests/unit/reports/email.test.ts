@@ -115,3 +115,9 @@ describe('sparkPath', () => {
 		expect(sparkPath([null, null], 30, 12)).toBe('');
 	});
 });
+
+describe('sparkPath with one bucket', () => {
+	it('draws a level line across the box', () => {
+		expect(sparkPath([4], 30, 12)).toBe('M0.0 1.0 L30.0 1.0');
+	});
+});
