@@ -91,5 +91,10 @@ it('the run summary page shows the transitions as a heat map, on a phone too', a
 	expect(await map.count()).toBe(1);
 	expect(await map.locator('rect').count()).toBe(36);
 	await page.screenshot({ path: path.join(shots, 'run-summary-phone.png'), fullPage: true });
+	// Five minutes of the night, typed as lab wall-clock times (UTC here): frames seq 300–599.
+	await page.getByLabel(/^From/).fill('2026-11-30T23:05');
+	await page.getByLabel(/^To/).fill('2026-11-30T23:10');
+	await page.getByRole('button', { name: 'Summarise span' }).click();
+	await expect.poll(() => page.locator('dt:text-is("Frames") + dd').textContent()).toBe('300');
 	await page.context().close();
 });
