@@ -14,6 +14,8 @@ import { LiveBus } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
 import { createMailer } from './notify/mailer';
+import { reportNow } from './reports/clock';
+import { startReportScheduler } from './reports/scheduler';
 
 export interface Runtime {
 	config: Config;
@@ -22,6 +24,8 @@ export interface Runtime {
 	bus: LiveBus;
 	ingest: Ingest;
 	catcher: Awaited<ReturnType<typeof startMailCatcher>> | null;
+	/** The morning-report scheduler (its checks stop with PHASEWARDEN_REPORTS=0; `tick` still works). */
+	reports: ReturnType<typeof startReportScheduler>;
 	close(): Promise<void>;
 }
 
@@ -61,6 +65,8 @@ async function start(): Promise<Runtime> {
 		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
 	);
 	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs, databaseKind);
+	const reports = startReportScheduler({ db, mailer, origin: () => config.origin ?? 'http://localhost:5173', now: reportNow });
+	if (process.env.PHASEWARDEN_REPORTS === '0') reports.stop();
 	return {
 		config,
 		db,
@@ -68,8 +74,10 @@ async function start(): Promise<Runtime> {
 		bus,
 		ingest,
 		catcher,
+		reports,
 		async close() {
 			stopMaintenance();
+			reports.stop();
 			ingest.close();
 			await ingest.flush();
 			await catcher?.close();

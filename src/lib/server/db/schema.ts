@@ -339,3 +339,39 @@ export const runAnnotations = pgTable(
 	},
 	(t) => [index('run_annotations_run_idx').on(t.runId, t.atMs)]
 );
+
+/** A person's morning report: when (wall clock in a time zone), which setups, and where the schedule stands. */
+export const reportSettings = pgTable('report_settings', {
+	userId: text('user_id')
+		.primaryKey()
+		.references(() => user.id, { onDelete: 'cascade' }),
+	enabled: boolean('enabled').notNull().default(true),
+	/** HH:MM, 24-hour clock. */
+	reportTime: text('report_time').notNull().default('08:00'),
+	/** IANA zone; null follows the lab's (PHASEWARDEN_TIME_ZONE). */
+	timeZone: text('time_zone'),
+	/** Setup ids followed; null follows the setups the person is a member of. */
+	followSetups: jsonb('follow_setups').$type<string[]>(),
+	/** When the schedule started: the first report never reaches back before its report time after this. */
+	armedAt: timestamp('armed_at', { withTimezone: true }).notNull().defaultNow(),
+	/** End (ms) of the span of the last scheduled report; null before the first. */
+	lastReportUntilMs: bigint('last_report_until_ms', { mode: 'number' })
+});
+
+/** Every morning report made, scheduled or on demand, kept whole so an old one can be reopened. */
+export const morningReports = pgTable(
+	'morning_reports',
+	{
+		id: text('id').primaryKey(),
+		userId: text('user_id').references(() => user.id, { onDelete: 'cascade' }),
+		kind: text('kind', { enum: ['scheduled', 'on_demand'] }).notNull(),
+		sinceMs: bigint('since_ms', { mode: 'number' }).notNull(),
+		untilMs: bigint('until_ms', { mode: 'number' }).notNull(),
+		timeZone: text('time_zone').notNull(),
+		report: jsonb('report').$type<Record<string, unknown>>().notNull(),
+		createdAt: created(),
+		emailStatus: text('email_status', { enum: ['sent', 'failed', 'skipped'] }),
+		emailError: text('email_error')
+	},
+	(t) => [index('morning_reports_user_idx').on(t.userId, t.untilMs)]
+);
