@@ -4,10 +4,10 @@ INSERT INTO "outbox" ("id", "incident_id", "kind", "channel", "recipient", "payl
 SELECT 'legacy-' || n."id", n."incident_id", 'alert', n."channel",
 	COALESCE((SELECT u."id" FROM "user" u WHERE u."email" = n."recipient"), n."recipient"),
 	jsonb_build_object('legacy', true, 'reason', n."reason", 'address', n."recipient"),
-	n."status", 1, n."attempted_at", n."attempted_at", n."error", n."message_id",
-	CASE WHEN n."status" = 'sent' THEN n."attempted_at" END, n."attempted_at", 'legacy-notification:' || n."id"
+	n."status", 1, n."created_at", n."created_at", n."error", n."message_id",
+	CASE WHEN n."status" = 'sent' THEN n."created_at" END, n."created_at", 'legacy-notification:' || n."id"
 FROM "notifications" n;--> statement-breakpoint
 INSERT INTO "outbox_attempts" ("outbox_id", "started_at", "duration_ms", "outcome", "error")
-SELECT 'legacy-' || n."id", n."attempted_at", 0, CASE WHEN n."status" = 'sent' THEN 'sent' ELSE 'failed' END, n."error"
+SELECT 'legacy-' || n."id", n."created_at", 0, CASE WHEN n."status" = 'sent' THEN 'sent' ELSE 'failed' END, n."error"
 FROM "notifications" n;--> statement-breakpoint
 DROP TABLE "notifications" CASCADE;

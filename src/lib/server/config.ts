@@ -15,6 +15,8 @@ export interface Config {
 	snapshotEveryMs: number;
 	/** How often VACUUM, CHECKPOINT and raw-frame retention run. */
 	maintenanceEveryMs: number;
+	/** How often the delivery worker looks for retries that came due (new notifications wake it at once). */
+	outboxPollMs: number;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -29,7 +31,8 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
 		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
 		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
-		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000
+		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
+		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000
 	};
 }
 

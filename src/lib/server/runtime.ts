@@ -2,7 +2,6 @@
 // agent socket (through globalThis, so dev's module reloading and the production bundle see one).
 import { getRequestEvent } from '$app/server';
 import { sveltekitCookies } from 'better-auth/svelte-kit';
-import { createAlertDispatcher } from './alerts/dispatch';
 import { createAuth, type Auth } from './auth/options';
 import { loadAuthSecret } from './auth/secret';
 import { readConfig, type Config } from './config';
@@ -14,6 +13,7 @@ import { LiveBus } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
 import { createMailer } from './notify/mailer';
+import { startDelivery, type Delivery } from './outbox/start';
 
 export interface Runtime {
 	config: Config;
@@ -22,6 +22,8 @@ export interface Runtime {
 	bus: LiveBus;
 	ingest: Ingest;
 	catcher: Awaited<ReturnType<typeof startMailCatcher>> | null;
+	/** The outbox's delivery worker, the VAPID keys and the local push and SMS fakes. */
+	delivery: Delivery;
 	close(): Promise<void>;
 }
 
@@ -49,14 +51,13 @@ async function start(): Promise<Runtime> {
 	const mailer = smtpUrl ? createMailer({ smtpUrl, from: config.mailFrom }) : null;
 	if (catcher) console.log(`mail catcher listening on 127.0.0.1:${catcher.port}`);
 	const bus = new LiveBus();
-	const alerts = createAlertDispatcher(db, mailer, () => config.origin ?? 'http://localhost:5173');
+	// Notices are queued in the outbox by the transactions that open and resolve incidents; the
+	// worker wakes on the bus's incident events, so these hooks have nothing left to do.
+	const delivery = await startDelivery({ db, config, mailer, bus });
 	const ingest = new Ingest(
 		db,
 		bus,
-		{
-			incidentOpened: (i) => void alerts.incidentOpened(i).catch((err) => console.error('alert failed', err)),
-			incidentResolved: () => {}
-		},
+		{ incidentOpened: () => {}, incidentResolved: () => {} },
 		config.silenceCheckMs,
 		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
 	);
@@ -68,10 +69,13 @@ async function start(): Promise<Runtime> {
 		bus,
 		ingest,
 		catcher,
+		delivery,
 		async close() {
 			stopMaintenance();
 			ingest.close();
 			await ingest.flush();
+			await delivery.close();
+			mailer?.close();
 			await catcher?.close();
 			await closeDb();
 			unlockDataDir(config.dataDir);
