@@ -157,8 +157,8 @@ export class DeliveryWorker {
 /** An admin's retry: due now, with a fresh expiry if it had run out. Refused while a send is in flight. */
 export async function retryDelivery(db: Db, id: string, expiry_ms: number, now: Date = new Date()) {
 	const [row] = await db.select().from(outbox).where(eq(outbox.id, id));
-	if (!row) return { error: 404 as const, message: 'no delivery with this id' };
-	if (row.status === 'sending') return { error: 409 as const, message: 'this delivery is being sent right now' };
+	if (!row) return { row: null, error: 404, message: 'no delivery with this id' };
+	if (row.status === 'sending') return { row: null, error: 409, message: 'this delivery is being sent right now' };
 	const expiresAt = row.expiresAt > now ? row.expiresAt : new Date(now.getTime() + expiry_ms);
 	const [updated] = await db
 		.update(outbox)
