@@ -17,6 +17,8 @@ export interface Config {
 	maintenanceEveryMs: number;
 	/** How often the delivery worker looks for retries that came due (new notifications wake it at once). */
 	outboxPollMs: number;
+	/** The wait after a first failed delivery; it doubles with each failure up to ten minutes. */
+	outboxRetryBaseMs: number;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -32,7 +34,8 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
 		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
 		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
-		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000
+		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000,
+		outboxRetryBaseMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_RETRY_S', 5) * 1000
 	};
 }
 

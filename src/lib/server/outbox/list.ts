@@ -1,8 +1,8 @@
 // Reading the outbox for the admin page and GET /api/deliveries: newest first, with each row's attempts.
-import { and, desc, eq, inArray, lt, type SQL } from 'drizzle-orm';
+import { and, desc, eq, getTableColumns, inArray, lt, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '../db';
-import { OUTBOX_CHANNELS, OUTBOX_STATUSES, outbox, outboxAttempts } from '../db/schema';
+import { OUTBOX_CHANNELS, OUTBOX_STATUSES, outbox, outboxAttempts, pushSubscriptions, user } from '../db/schema';
 
 export const deliveryQuerySchema = z.object({
 	status: z.enum(OUTBOX_STATUSES, { message: `status must be one of ${OUTBOX_STATUSES.join(', ')}` }).optional(),
@@ -20,9 +20,13 @@ export async function listDeliveries(db: Db, q: DeliveryQuery) {
 	if (q.channel) filters.push(eq(outbox.channel, q.channel));
 	if (q.incident) filters.push(eq(outbox.incidentId, q.incident));
 	if (q.before) filters.push(lt(outbox.createdAt, q.before));
+	// The person behind the recipient: the user itself (e-mail, text) or the owner of the push device.
 	const rows = await db
-		.select()
+		.select({ ...getTableColumns(outbox), recipientName: sql<string | null>`coalesce(${user.name}, owner.name)` })
 		.from(outbox)
+		.leftJoin(user, eq(user.id, outbox.recipient))
+		.leftJoin(pushSubscriptions, eq(pushSubscriptions.id, outbox.recipient))
+		.leftJoin(sql`"user" as owner`, sql`owner.id = ${pushSubscriptions.userId}`)
 		.where(filters.length ? and(...filters) : undefined)
 		.orderBy(desc(outbox.createdAt), desc(outbox.id))
 		.limit(q.limit);

@@ -1,6 +1,7 @@
 // Wires the delivery worker to its channels: SMTP (or the mail catcher), web push (or the push
 // catcher), text messages (twilio, or its local fake) and webhooks. With PHASEWARDEN_CATCHER=1 the
 // fakes stand in for every outside service, so development, demo and tests never reach one.
+import { DEFAULT_BACKOFF } from '../../outbox/backoff';
 import type { Config } from '../config';
 import type { Db } from '../db';
 import type { LiveBus } from '../live/bus';
@@ -35,7 +36,7 @@ export async function startDelivery({ db, config, mailer, bus }: { db: Db; confi
 			...(sms ? { sms: smsSender(db, sms, origin) } : {}),
 			webhook: webhookSender(db, origin)
 		},
-		{ poll_ms: config.outboxPollMs }
+		{ poll_ms: config.outboxPollMs, backoff: { ...DEFAULT_BACKOFF, base_ms: config.outboxRetryBaseMs } }
 	);
 	// An incident event follows the commit that queued its notices: deliver them now, not at the next tick.
 	const unsubscribe = bus.subscribe((e) => {
