@@ -1,7 +1,7 @@
 // Push, text and webhook over the real server with the local push catcher and SMS fake, and a
 // webhook receiver in this test: what arrives, decrypted, and what the server does with a 410.
 import { createECDH, createHmac, randomBytes } from 'node:crypto';
-import { readFileSync } from 'node:fs';
+import { readFileSync, statSync } from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import path from 'node:path';
@@ -35,7 +35,7 @@ describe('web push', () => {
 		const keys = JSON.parse(readFileSync(file, 'utf8'));
 		expect(keys.publicKey).toMatch(/^[\w-]{80,}$/);
 		// 0600: the private key must not be readable by other accounts on the lab PC.
-		expect((Number((await import('node:fs')).statSync(file).mode) & 0o777).toString(8)).toBe('600');
+		expect((statSync(file).mode & 0o777).toString(8)).toBe('600');
 	});
 
 	it('sends a test push that the catcher decrypts, signed with the server key', async () => {
