@@ -164,3 +164,32 @@ describe('webhook', () => {
 		}
 	});
 });
+
+describe('pages', () => {
+	it('renders the settings page, the webhooks panel and the caught messages for the right roles', async () => {
+		const html = { headers: { accept: 'text/html' } };
+		const observer = await signIn(server, 'observer');
+		const settings = await observer('/settings', html);
+		expect(settings.status).toBe(200);
+		const settingsHtml = await settings.text();
+		expect(settingsHtml).toContain('Push on your devices');
+		expect(settingsHtml).toContain('Texts for critical alerts');
+		expect((await observer('/dev/inbox', html)).status).toBe(403);
+		expect(await (await observer(`/setups/${seeded.setupId}`, html)).text()).not.toContain('Add webhook');
+
+		const operator = await signIn(server, 'operator');
+		expect(await (await operator(`/setups/${seeded.setupId}`, html)).text()).toContain('Add webhook');
+		const inbox = await operator('/dev/inbox', html);
+		expect(inbox.status).toBe(200);
+		// Earlier tests in this file sent a test push and a lock-loss alert.
+		const inboxHtml = await inbox.text();
+		expect(inboxHtml).toContain('Phasewarden test');
+		expect(inboxHtml).toContain('Acknowledge');
+	});
+
+	it('serves the service worker without a session', async () => {
+		const res = await fetch(`${server.url}/service-worker.js`);
+		expect(res.status).toBe(200);
+		expect(await res.text()).toContain('notificationclick');
+	});
+});
