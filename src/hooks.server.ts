@@ -25,7 +25,8 @@ const authentication: Handle = async ({ event, resolve }) => {
 	return svelteKitHandler({ event, resolve, auth, building });
 };
 
-const PUBLIC_PATHS = ['/signin', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt'];
+// The service worker must load without a session: the browser fetches it on its own.
+const PUBLIC_PATHS = ['/signin', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
 
 /** Everything but sign-in needs a signed-in person; roles are checked in each route. */
 const signedIn: Handle = async ({ event, resolve }) => {

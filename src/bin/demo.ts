@@ -103,7 +103,7 @@ Phasewarden demo — the Aldermoor low-temperature lab
   open            ${origin}
   sign in as      ${demoPeople.map((p) => `${p.email} (${p.role})`).join('\n                  ')}
   password        ${DEMO_PASSWORD}
-  mail catcher    ${origin}/api/dev/mail (signed in as an operator or admin)
+  caught messages ${origin}/dev/inbox (e-mail, push, texts; signed in as an operator or admin)
   data            ${dataDir}
 A simulated agent streams run "T6 overnight" on Fridge Bramble; it loses lock after one minute.
 Ctrl-C stops everything.

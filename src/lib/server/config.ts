@@ -17,6 +17,10 @@ export interface Config {
 	snapshotEveryMs: number;
 	/** How often VACUUM, CHECKPOINT and raw-frame retention run. */
 	maintenanceEveryMs: number;
+	/** How often the delivery worker looks for retries that came due (new notifications wake it at once). */
+	outboxPollMs: number;
+	/** The wait after a first failed delivery; it doubles with each failure up to ten minutes. */
+	outboxRetryBaseMs: number;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -32,7 +36,9 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
 		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
 		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
-		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000
+		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
+		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000,
+		outboxRetryBaseMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_RETRY_S', 5) * 1000
 	};
 }
 

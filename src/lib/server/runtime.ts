@@ -2,7 +2,6 @@
 // agent socket (through globalThis, so dev's module reloading and the production bundle see one).
 import { getRequestEvent } from '$app/server';
 import { sveltekitCookies } from 'better-auth/svelte-kit';
-import { createAlertDispatcher } from './alerts/dispatch';
 import { createAuth, type Auth } from './auth/options';
 import { loadAuthSecret } from './auth/secret';
 import { readConfig, type Config } from './config';
@@ -16,6 +15,7 @@ import { startMailCatcher } from './notify/catcher';
 import { createMailer } from './notify/mailer';
 import { reportNow } from './reports/clock';
 import { startReportScheduler } from './reports/scheduler';
+import { startDelivery, type Delivery } from './outbox/start';
 
 export interface Runtime {
 	config: Config;
@@ -26,6 +26,8 @@ export interface Runtime {
 	catcher: Awaited<ReturnType<typeof startMailCatcher>> | null;
 	/** The morning-report scheduler (its checks stop with PHASEWARDEN_REPORTS=0; `tick` still works). */
 	reports: ReturnType<typeof startReportScheduler>;
+	/** The outbox's delivery worker, the VAPID keys and the local push and SMS fakes. */
+	delivery: Delivery;
 	close(): Promise<void>;
 }
 
@@ -53,14 +55,13 @@ async function start(): Promise<Runtime> {
 	const mailer = smtpUrl ? createMailer({ smtpUrl, from: config.mailFrom }) : null;
 	if (catcher) console.log(`mail catcher listening on 127.0.0.1:${catcher.port}`);
 	const bus = new LiveBus();
-	const alerts = createAlertDispatcher(db, mailer, () => config.origin ?? 'http://localhost:5173');
+	// Notices are queued in the outbox by the transactions that open and resolve incidents; the
+	// worker wakes on the bus's incident events, so these hooks have nothing left to do.
+	const delivery = await startDelivery({ db, config, mailer, bus });
 	const ingest = new Ingest(
 		db,
 		bus,
-		{
-			incidentOpened: (i) => void alerts.incidentOpened(i).catch((err) => console.error('alert failed', err)),
-			incidentResolved: () => {}
-		},
+		{ incidentOpened: () => {}, incidentResolved: () => {} },
 		config.silenceCheckMs,
 		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
 	);
@@ -75,11 +76,14 @@ async function start(): Promise<Runtime> {
 		ingest,
 		catcher,
 		reports,
+		delivery,
 		async close() {
 			stopMaintenance();
 			reports.stop();
 			ingest.close();
 			await ingest.flush();
+			await delivery.close();
+			mailer?.close();
 			await catcher?.close();
 			await closeDb();
 			unlockDataDir(config.dataDir);

@@ -118,3 +118,12 @@ export interface Person {
 	role: Role;
 	createdAt?: string;
 }
+
+/** An outgoing webhook of a setup, as the API shows it (never its secret after creation). */
+export interface Webhook {
+	id: string;
+	url: string;
+	label: string;
+	secretPrefix: string;
+	createdAt: string;
+}

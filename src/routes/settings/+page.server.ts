@@ -1,4 +1,5 @@
-// The signed-in person's own settings. Each section has its own named action.
+// The signed-in person's own settings: where alerts reach them, and their morning report. Each
+// section has its own named action or API calls.
 import { fail } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
 import { describeZodError } from '$lib/protocol/messages';
@@ -7,18 +8,25 @@ import { requireRole } from '$lib/server/http/guard';
 import { reportNow } from '$lib/server/reports/clock';
 import { getReportSettings, reportSettingsSchema, saveReportSettings } from '$lib/server/reports/settings';
 import { labTimeZone } from '$lib/server/reports/time-zone';
+import { listSubscriptions } from '$lib/server/push/subscriptions';
 import { getRuntime } from '$lib/server/runtime';
+import { getPhone } from '$lib/server/sms/phone';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const person = requireRole(event, 'observer');
-	const { db } = await getRuntime();
-	const [settings, allSetups, member] = await Promise.all([
+	const { db, delivery } = await getRuntime();
+	const [devices, phone, settings, allSetups, member] = await Promise.all([
+		listSubscriptions(db, person.id),
+		getPhone(db, person.id),
 		getReportSettings(db, person.id, reportNow()),
 		db.select({ id: setups.id, name: setups.name }).from(setups).orderBy(setups.name),
 		db.select({ id: setupMembers.setupId }).from(setupMembers).where(eq(setupMembers.userId, person.id))
 	]);
-	return { reportSettings: settings, setups: allSetups, memberOf: member.map((m) => m.id), labTimeZone: labTimeZone() };
+	return {
+		push: { devices, publicKey: delivery.vapid.publicKey, catcher: Boolean(delivery.pushCatcher) },
+		phone,
+		reportSettings: settings, setups: allSetups, memberOf: member.map((m) => m.id), labTimeZone: labTimeZone() };
 };
 
 export const actions: Actions = {

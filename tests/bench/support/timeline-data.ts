@@ -26,6 +26,7 @@ export type TimelineData = { dataDir: string; setupId: string; weekRunId: string
 async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId: string, frames: number, lostSeqs: [number, number] | null) {
 	const cache = new RollupCache();
 	let lastSeq = 0;
+	let stored = 0;
 	for (let first = 1; first <= frames; first += FRAMES_PER_STATEMENT) {
 		const batch = [];
 		for (let seq = first; seq < first + FRAMES_PER_STATEMENT && seq <= frames; seq++) {
@@ -41,8 +42,7 @@ async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId
 			new Date(),
 			batch.map((frame) => ({ frame, late: false })),
 			merged,
-			{ lastSeq: last.seq, lastFrameT: last.t, lastFrameAt: new Date(), lastLock: last.lock },
-			lostSeqs ? 1 : 0
+			{ lastSeq: last.seq, lastFrameT: last.t, lastFrameAt: new Date(), lastLock: last.lock, frameCount: stored += batch.length, gapCount: lostSeqs ? 1 : 0 }
 		);
 		for (const r of merged) cache.remember(r);
 		lastSeq = last.seq;

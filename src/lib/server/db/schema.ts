@@ -19,6 +19,7 @@ import type { AuxAggregate } from '../../rollup/rollup';
 import { user } from './auth-schema';
 
 export * from './auth-schema';
+export * from './delivery-schema';
 
 const created = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
 
@@ -254,25 +255,6 @@ export const incidentEvents = pgTable(
 		data: jsonb('data').$type<Record<string, unknown>>()
 	},
 	(t) => [index('incident_events_incident_idx').on(t.incidentId)]
-);
-
-/** Each delivery attempt of an alert and its outcome. */
-export const notifications = pgTable(
-	'notifications',
-	{
-		id: serial('id').primaryKey(),
-		incidentId: text('incident_id')
-			.notNull()
-			.references(() => incidents.id, { onDelete: 'cascade' }),
-		channel: text('channel', { enum: ['email', 'push'] }).notNull(),
-		recipient: text('recipient').notNull(),
-		reason: text('reason').notNull(),
-		status: text('status', { enum: ['sent', 'failed'] }).notNull(),
-		error: text('error'),
-		messageId: text('message_id'),
-		attemptedAt: created()
-	},
-	(t) => [index('notifications_incident_idx').on(t.incidentId)]
 );
 
 /** Every rate model saved for a setup; the newest per process is the one the detectors use. */

@@ -5,6 +5,7 @@ import { and, asc, count, desc, eq, ne, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
+import { queueIncidentNotices } from '../outbox/enqueue';
 
 export type IncidentRow = typeof incidents.$inferSelect;
 
@@ -46,6 +47,8 @@ export async function openIncident(tx: Tx | Db, run: { id: string; setupId: stri
 		})
 		.returning();
 	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'opened', data: { summary: c.summary, seq: c.seq ?? null } });
+	// In this transaction: the incident and its alerts are committed together or not at all.
+	await queueIncidentNotices(tx, row, 'alert');
 	return row;
 }
 
@@ -71,6 +74,7 @@ export async function clearCondition(
 		note: c.summary,
 		data: { seq: c.seq ?? null, evidence: c.evidence }
 	});
+	await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: c.summary });
 	return updated;
 }
 
@@ -110,6 +114,7 @@ export async function resolveIncident(db: Db, id: string, actorId: string, note?
 			.where(eq(incidents.id, id))
 			.returning();
 		await tx.insert(incidentEvents).values({ incidentId: id, action: 'resolved', actorId, note: note || null });
+		await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: note ? `Resolved by hand: ${note}` : 'Resolved by hand.' });
 		return updated;
 	});
 }

@@ -2,8 +2,17 @@
 // record, never an exception: an unreachable mail server must not stop ingest or incidents.
 import nodemailer from 'nodemailer';
 
-export type MailMessage = { to: string | string[]; subject: string; text: string; html?: string };
-export type SendResult = { ok: true; messageId?: string } | { ok: false; error: string };
+export type MailMessage = {
+	to: string | string[];
+	subject: string;
+	text: string;
+	html?: string;
+	/** Set by the outbox to its row id, so a message sent twice after a crash is recognisable. */
+	messageId?: string;
+	headers?: Record<string, string>;
+};
+/** `permanent`: the server refused for good (a 5xx reply); trying again would not help. */
+export type SendResult = { ok: true; messageId?: string } | { ok: false; error: string; permanent?: boolean };
 
 export interface Mailer {
 	send(message: MailMessage): Promise<SendResult>;
@@ -48,15 +57,16 @@ export function createMailer({ smtpUrl, from }: { smtpUrl: string; from: string 
 	});
 
 	return {
-		async send({ to, subject, text, html }) {
+		async send({ to, subject, text, html, messageId, headers }) {
 			try {
-				const info = await transport.sendMail({ from, to, subject, text, ...(html ? { html } : {}) });
+				const info = await transport.sendMail({ from, to, subject, text, ...(html ? { html } : {}), ...(messageId ? { messageId } : {}), ...(headers ? { headers } : {}) });
 				const rejected = (info.rejected ?? []).map(String);
-				if (rejected.length > 0) return { ok: false, error: `rejected by the mail server: ${rejected.join(', ')}` };
+				if (rejected.length > 0) return { ok: false, error: `rejected by the mail server: ${rejected.join(', ')}`, permanent: true };
 				return { ok: true, ...(info.messageId ? { messageId: info.messageId } : {}) };
 			} catch (err) {
-				const e = err as Error & { code?: string };
-				return { ok: false, error: e.code ? `${e.code}: ${e.message}` : e.message || String(err) };
+				const e = err as Error & { code?: string; responseCode?: number };
+				const permanent = typeof e.responseCode === 'number' && e.responseCode >= 500;
+				return { ok: false, error: e.code ? `${e.code}: ${e.message}` : e.message || String(err), permanent };
 			}
 		},
 		close: () => transport.close()

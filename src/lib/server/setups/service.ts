@@ -3,7 +3,7 @@ import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import type { Db } from '../db';
+import type { Db, Tx } from '../db';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
 export const newSetupSchema = z
@@ -68,7 +68,7 @@ export async function listSetupsWithStatus(db: Db) {
 	}));
 }
 
-export async function listMembers(db: Db, setupId: string) {
+export async function listMembers(db: Tx | Db, setupId: string) {
 	return db
 		.select({ id: user.id, name: user.name, email: user.email, role: user.role })
 		.from(setupMembers)
@@ -86,7 +86,7 @@ export async function removeMember(db: Db, setupId: string, userId: string) {
 }
 
 /** Who is alerted for a setup: its operators and admins (until on-call rotas refine this). */
-export async function alertRecipients(db: Db, setupId: string) {
+export async function alertRecipients(db: Tx | Db, setupId: string) {
 	const members = await listMembers(db, setupId);
 	const acting = members.filter((m) => m.role === 'operator' || m.role === 'admin');
 	if (acting.length > 0) return acting;

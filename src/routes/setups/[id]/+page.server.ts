@@ -6,7 +6,7 @@ import { fieldError } from '$lib/ui/fields';
 import { describeZodError } from '$lib/protocol/messages';
 import { getRuntime } from '$lib/server/runtime';
 import { retentionSchema, setRawRetention } from '$lib/server/setups/service';
-import type { AgentToken, Person, Run } from '$lib/ui/types';
+import type { AgentToken, Person, Run, Webhook } from '$lib/ui/types';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 interface SetupDetail {
@@ -29,12 +29,13 @@ interface SetupDetail {
 export const load: PageServerLoad = async ({ fetch, params, locals }) => {
 	const id = encodeURIComponent(params.id);
 	const operator = hasRole(locals.user?.role, 'operator');
-	const [detail, people] = await Promise.all([
+	const [detail, people, hooks] = await Promise.all([
 		apiGet<SetupDetail>(fetch, `/api/setups/${id}`),
 		// The people list is admin-only in the API; an operator who is not admin gets null and no picker.
-		operator ? apiGetOptional<{ users: Person[] }>(fetch, '/api/users') : Promise.resolve(null)
+		operator ? apiGetOptional<{ users: Person[] }>(fetch, '/api/users') : Promise.resolve(null),
+		operator ? apiGetOptional<{ webhooks: Webhook[] }>(fetch, `/api/setups/${id}/webhooks`) : Promise.resolve(null)
 	]);
-	return { ...detail, people: people?.users ?? null };
+	return { ...detail, people: people?.users ?? null, webhooks: hooks?.webhooks ?? [] };
 };
 
 function operatorOnly(event: RequestEvent, intent: string) {
@@ -45,6 +46,26 @@ function operatorOnly(event: RequestEvent, intent: string) {
 const base = (event: RequestEvent) => `/api/setups/${encodeURIComponent(event.params.id)}`;
 
 export const actions: Actions = {
+	addWebhook: async (event) => {
+		const denied = operatorOnly(event, 'addWebhook');
+		if (denied) return denied;
+		const form = await event.request.formData();
+		const url = field(form, 'url');
+		if (!url) return fail(400, { intent: 'addWebhook', message: 'Enter the URL that receives the alerts.' });
+		const res = await apiSend<{ webhook: Webhook; secret: string }>(event.fetch, `${base(event)}/webhooks`, 'POST', { url, label: field(form, 'label') ?? '' });
+		if (!res.ok || !res.data) return fail(res.status, { intent: 'addWebhook', message: fieldError(res.message).text });
+		// The signing secret is shown in this response only.
+		return { intent: 'addWebhook', webhookSecret: res.data.secret, webhook: res.data.webhook };
+	},
+	removeWebhook: async (event) => {
+		const denied = operatorOnly(event, 'removeWebhook');
+		if (denied) return denied;
+		const hookId = field(await event.request.formData(), 'hookId');
+		if (!hookId) return fail(400, { intent: 'removeWebhook', message: 'The form did not say which webhook (field "hookId").' });
+		const res = await apiSend(event.fetch, `${base(event)}/webhooks/${encodeURIComponent(hookId)}`, 'DELETE');
+		if (!res.ok) return fail(res.status, { intent: 'removeWebhook', message: res.message });
+		return { intent: 'removeWebhook', removed: hookId };
+	},
 	setRetention: async (event) => {
 		const denied = operatorOnly(event, 'setRetention');
 		if (denied) return denied;

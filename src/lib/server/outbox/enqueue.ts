@@ -1,0 +1,72 @@
+// Writes notifications into the outbox. Callers pass their transaction: a notification exists
+// exactly when the change that caused it was committed, so a crash can lose neither one alone.
+import { randomUUID } from 'node:crypto';
+import { and, eq, inArray, isNotNull } from 'drizzle-orm';
+import type { Db, Tx } from '../db';
+import { outbox, phoneNumbers, pushSubscriptions, setupWebhooks, type OutboxChannel } from '../db/schema';
+import type { IncidentRow } from '../incidents/service';
+import { chooseRecipients } from './recipients';
+import { outboxExpiry_ms } from './settings';
+
+export type OutboxKind = 'alert' | 'clear' | 'test';
+
+export interface NewDelivery {
+	incidentId?: string | null;
+	kind: OutboxKind;
+	channel: OutboxChannel;
+	recipient: string;
+	payload: Record<string, unknown>;
+	/** Same key twice, one delivery: a repeated enqueue (a retried commit, a replay) sends nothing more. */
+	dedupeKey: string;
+}
+
+/** Inserts the deliveries not queued already; returns how many were new. */
+export async function enqueue(tx: Tx | Db, deliveries: NewDelivery[], now: Date = new Date()): Promise<number> {
+	if (deliveries.length === 0) return 0;
+	const expiresAt = new Date(now.getTime() + outboxExpiry_ms());
+	const inserted = await tx
+		.insert(outbox)
+		.values(deliveries.map((d) => ({ id: randomUUID(), ...d, incidentId: d.incidentId ?? null, nextAttemptAt: now, expiresAt, createdAt: now })))
+		.onConflictDoNothing({ target: outbox.dedupeKey })
+		.returning({ id: outbox.id });
+	return inserted.length;
+}
+
+type IncidentNoticeSource = Pick<IncidentRow, 'id' | 'setupId' | 'runId' | 'kind' | 'severity' | 'summary'>;
+
+/**
+ * The notices for an incident that opened (`alert`) or resolved (`clear`): e-mail and every push
+ * device of each recipient, a text for critical alerts to a verified number, and each webhook of
+ * the setup. `step` is the escalation step (0 when the incident opens).
+ */
+export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNoticeSource, kind: 'alert' | 'clear', step = 0, extra: Record<string, unknown> = {}): Promise<number> {
+	const people = await chooseRecipients(tx, incident, step);
+	const ids = people.map((p) => p.id);
+	const [devices, phones, hooks] = await Promise.all([
+		ids.length
+			? tx.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId }).from(pushSubscriptions).where(inArray(pushSubscriptions.userId, ids))
+			: [],
+		ids.length && kind === 'alert' && incident.severity === 'critical'
+			? tx.select({ userId: phoneNumbers.userId }).from(phoneNumbers).where(and(inArray(phoneNumbers.userId, ids), isNotNull(phoneNumbers.verifiedAt)))
+			: [],
+		tx.select({ id: setupWebhooks.id }).from(setupWebhooks).where(eq(setupWebhooks.setupId, incident.setupId))
+	]);
+	const summary = { step, severity: incident.severity, incidentKind: incident.kind, summary: incident.summary, runId: incident.runId, ...extra };
+	const key = (channel: OutboxChannel, recipient: string) => `${kind}:${incident.id}:${step}:${channel}:${recipient}`;
+	const row = (channel: OutboxChannel, recipient: string, extra: Record<string, unknown> = {}): NewDelivery => ({
+		incidentId: incident.id,
+		kind,
+		channel,
+		recipient,
+		payload: { ...summary, ...extra },
+		dedupeKey: key(channel, recipient)
+	});
+	const deliveries: NewDelivery[] = [];
+	for (const person of people) {
+		deliveries.push(row('email', person.id, { address: person.email }));
+		for (const d of devices) if (d.userId === person.id) deliveries.push(row('push', d.id, { userId: person.id }));
+		if (phones.some((p) => p.userId === person.id)) deliveries.push(row('sms', person.id));
+	}
+	for (const hook of hooks) deliveries.push(row('webhook', hook.id));
+	return enqueue(tx, deliveries);
+}
