@@ -1,13 +1,14 @@
 // What the incident page draws: the evidence's windows read back from the stored frames (a
 // bounded read by seq, the primary key), turned into chart models, and the phase-space picture
 // over the same windows.
-import { and, asc, desc, eq, gte, lte } from 'drizzle-orm';
+import { and, desc, eq, gte, lte } from 'drizzle-orm';
 import type { Db } from '../db';
 import { frames } from '../db/schema';
 import { evidenceCharts, type Chart } from '../../incidents/evidence-chart';
 import { EVIDENCE_WINDOWS_MAX, evidenceSeqSpan } from '../../incidents/evidence-span';
 import type { EvidenceWindow } from '../../incidents/evidence-window';
-import { runIq, type RunIq } from '../runs/iq';
+import { runIq } from '../runs/iq';
+import type { RunIq } from '../../iq/run-iq';
 import type { RunRow } from '../runs/service';
 
 export type EvidenceView = {

@@ -4,23 +4,15 @@
 import { and, count, eq, gte, isNotNull, lte, sql, asc, type SQL } from 'drizzle-orm';
 import type { Db } from '../db';
 import { frames } from '../db/schema';
-import { lobeCentres, sumIq, type IqSum, type Lobe } from '../../iq/histogram';
+import { lobeCentres, sumIq } from '../../iq/histogram';
+import type { RunIq } from '../../iq/run-iq';
 import type { RunRow } from './service';
+
+export type { RunIq };
 
 export const IQ_FRAMES_MAX = 2000;
 /** Without a span the picture shows the run's last hour. */
 export const IQ_DEFAULT_SPAN_MS = 3_600_000;
-
-export type RunIq = {
-	from_ms: number;
-	to_ms: number;
-	states: number;
-	/** Frames in the span that carry a histogram, and every how many of them were added. */
-	framesWithIq: number;
-	sampledEvery: number;
-	sum: IqSum | null;
-	lobes: Lobe[];
-};
 
 export type IqSpan = { from_ms?: number; to_ms?: number };
 
@@ -38,11 +30,19 @@ export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFra
 	const sampledEvery = Math.max(1, Math.ceil(n / IQ_FRAMES_MAX));
 	if (sampledEvery > 1) where.push(sql`${frames.seq} % ${sampledEvery} = 0`);
 	const rows = await db
-		.select({ iq: frames.iq })
+		.select({ seq: frames.seq, iq: frames.iq, counts: frames.counts, vacuum: frames.vacuum, shots: frames.shots })
 		.from(frames)
 		.where(and(...where))
 		.orderBy(asc(frames.seq))
 		.limit(IQ_FRAMES_MAX);
 	const sum = sumIq(rows.map((r) => r.iq));
-	return { from_ms, to_ms, states: run.states, framesWithIq: n, sampledEvery, sum, lobes: sum ? lobeCentres(sum, run.states) : [] };
+	const occupancy = { counts: new Array<number>(run.states).fill(0), vacuum: 0, shots: 0, fromSeq: rows[0]?.seq ?? null, toSeq: rows.at(-1)?.seq ?? null };
+	for (const r of rows) {
+		r.counts.forEach((c, i) => {
+			if (i < run.states) occupancy.counts[i] += c;
+		});
+		occupancy.vacuum += r.vacuum;
+		occupancy.shots += r.shots;
+	}
+	return { from_ms, to_ms, states: run.states, framesWithIq: n, sampledEvery, sum, lobes: sum ? lobeCentres(sum, run.states) : [], occupancy };
 }
