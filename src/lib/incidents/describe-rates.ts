@@ -70,7 +70,8 @@ export function describeRateDrift(f: IncidentFacts): Description {
 		);
 	}
 	const ref = objAt(ev, 'reference');
-	if (ref && numAt(ref, 'ratioLower') !== null) {
+	// A model that states no uncertainty allows only its prediction: nothing to say about a range.
+	if (ref && numAt(ref, 'ratioLower') !== null && Math.abs((numAt(ref, 'ratioUpper') ?? 1) - numAt(ref, 'ratioLower')!) > 1e-6) {
 		const basis = strAt(ref, 'basis') === 'baseline' ? 'this run’s own baseline' : 'the rate model’s uncertainty';
 		details.push(`Given ${basis}, anything from ${num(numAt(ref, 'ratioLower'), 2)} to ${num(numAt(ref, 'ratioUpper'), 2)} times the prediction would have been normal.`);
 	}

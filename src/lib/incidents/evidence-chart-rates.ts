@@ -21,7 +21,8 @@ function groupBars(rows: PerWindow[], focus: ChartInput['focus']): CountBar[] {
 	const bars: CountBar[] = [];
 	for (let i = 0; i < rows.length; i += size) {
 		const g = rows.slice(i, i + size);
-		const sum = (f: (r: PerWindow) => number | null) => (g.every((r) => f(r) !== null) ? g.reduce((a, r) => a + f(r)!, 0) : null);
+		// Per window (the group's mean), so a short last group reads on the same scale as the rest.
+		const sum = (f: (r: PerWindow) => number | null) => (g.every((r) => f(r) !== null) ? g.reduce((a, r) => a + f(r)!, 0) / g.length : null);
 		const first = g[0].w;
 		const last = g.at(-1)!.w;
 		bars.push({
@@ -29,7 +30,7 @@ function groupBars(rows: PerWindow[], focus: ChartInput['focus']): CountBar[] {
 			toSeq: last.seq,
 			from_ms: first.t_ms - first.window_s * 1000,
 			to_ms: last.t_ms,
-			observed: g.reduce((a, r) => a + r.observed, 0),
+			observed: g.reduce((a, r) => a + r.observed, 0) / g.length,
 			expected: sum((r) => r.expected),
 			lower: sum((r) => r.lower),
 			upper: sum((r) => r.upper),
@@ -54,10 +55,11 @@ function calibration(windows: EvidenceWindow[], fromSeq: number, toSeq: number, 
 
 function countsAlt(bars: CountBar[], p: Process): string {
 	const focus = bars.filter((b) => b.focus);
-	const obs = focus.reduce((a, b) => a + b.observed, 0);
-	const exp = focus.reduce((a, b) => a + (b.expected ?? 0), 0);
+	const windows = (b: CountBar) => b.toSeq - b.fromSeq + 1;
+	const obs = focus.reduce((a, b) => a + b.observed * windows(b), 0);
+	const exp = focus.reduce((a, b) => a + (b.expected ?? 0) * windows(b), 0);
 	const span = bars.length ? ` from ${utcClock(bars[0].from_ms)} to ${utcClock(bars.at(-1)!.to_ms)}` : '';
-	return `${noun(p)} per window${span}; over the marked windows ${num(obs)} were counted where ${num(exp, 3)} were predicted.`;
+	return `${noun(p)} per window${span}; over the marked windows ${num(Math.round(obs))} were counted where ${num(exp, 3)} were predicted.`;
 }
 
 export function driftCharts(input: ChartInput): Chart[] {
@@ -86,7 +88,7 @@ export function driftCharts(input: ChartInput): Chart[] {
 			yLabel: `${noun(p)} per window`,
 			bars,
 			alt: countsAlt(bars, p),
-			note: bars.some((b) => b.toSeq > b.fromSeq) ? `Each bar sums ${bars[0].toSeq - bars[0].fromSeq + 1} windows.` : undefined
+			note: groupNote(bars)
 		}
 	];
 	const cusum = cusumPath(input, rows, fromSeq, toSeq);
@@ -160,7 +162,12 @@ export function burstCharts(input: ChartInput): Chart[] {
 			yLabel: `${noun(p)} per window`,
 			bars,
 			alt: countsAlt(bars, p),
-			note: bars.some((b) => b.toSeq > b.fromSeq) ? `Each bar sums ${bars[0].toSeq - bars[0].fromSeq + 1} windows.` : undefined
+			note: groupNote(bars)
 		}
 	];
+}
+
+function groupNote(bars: CountBar[]): string | undefined {
+	if (!bars.some((b) => b.toSeq > b.fromSeq)) return undefined;
+	return `Each bar is the mean of ${bars[0].toSeq - bars[0].fromSeq + 1} windows.`;
 }
