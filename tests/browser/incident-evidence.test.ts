@@ -1,6 +1,7 @@
 // A person opens a rate-drift incident and sees its evidence drawn: the windows' counts against
 // the prediction, the drift statistic against its decision limit, sentences with the numbers,
 // no raw JSON; on a phone too (screenshots saved). The alert e-mail says the same in sentences.
+// The run page draws the simulated agent's IQ histograms as the phase-space picture.
 import { mkdirSync } from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
@@ -9,6 +10,7 @@ import { RUN, frame, startAgent } from '../integration/support/agent-socket';
 import { PASSWORD, people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from '../integration/support/server';
 import { mulberry32, poissonKnuth } from '../support/random';
 import { launchChromium } from './chromium';
+import { createSimulator } from '../../agent/simulate';
 
 const shots = path.resolve(import.meta.dirname, '../../test-results');
 let seeded: Seeded;
@@ -72,8 +74,9 @@ it('the rate-drift incident draws its windows and its CUSUM, in words and charts
 		await page.screenshot({ path: path.join(shots, 'incident-evidence-desktop.png'), fullPage: true });
 
 		await page.setViewportSize({ width: 390, height: 844 });
-		const box = await counts.boundingBox();
-		expect(box!.width).toBeLessThanOrEqual(390);
+		// the page itself never scrolls sideways; a chart too wide for the phone scrolls in its own box
+		expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+		expect((await counts.boundingBox())!.width).toBeGreaterThanOrEqual(470);
 		await page.screenshot({ path: path.join(shots, 'incident-evidence-phone.png'), fullPage: true });
 	} catch (err) {
 		await page.screenshot({ path: path.join(shots, 'incident-evidence-failure.png'), fullPage: true }).catch(() => {});
@@ -96,4 +99,31 @@ it('the drift alert e-mail says it in sentences with the interval and no field n
 	expect(text).toMatch(/times the prediction, \d+(\.\d)? % interval \([\d.]+–[\d.]+\)/);
 	const body = text.slice(text.indexOf('What happened'), text.indexOf('Open the incident'));
 	expect(body).not.toMatch(/\b[A-Za-z]+_[A-Za-z0-9_]+\b|W0 per|nominal m k/);
+});
+
+it('the run page draws the simulated agent’s IQ histograms with one ringed lobe per state', async () => {
+	const sim = createSimulator({ seed: 7, startMs: Date.now() - 300_000, order: 3, states: 6, iqBins: 24, loseLockAtMin: 100, switchRate_per_s: 1 });
+	const frames = Array.from({ length: 120 }, () => sim.next());
+	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'iq-run', name: 'IQ run' });
+	agent.send({ type: 'frames', frames });
+	await agent.waitFor((m) => m.type === 'ack' && m.seq === 120, 30_000);
+	await agent.close();
+	const page = await browser.newPage({ viewport: { width: 1280, height: 900 } });
+	try {
+		await page.goto(`${server.url}/signin`);
+		await page.getByLabel(/e-?mail/i).fill(people.observer.email);
+		await page.getByLabel(/password/i).fill(PASSWORD);
+		await page.getByRole('button', { name: /sign in/i }).click();
+		await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+		await page.goto(`${server.url}/runs/${agent.welcome.run}?iq_span=all`);
+		const picture = page.locator('svg[data-chart="phase-space"]');
+		await picture.waitFor();
+		expect(await picture.locator('[data-part="lobe"]').count()).toBe(6);
+		expect(await picture.locator('[data-part="bin"]').count()).toBeGreaterThan(50);
+		expect(await picture.getAttribute('aria-label')).toMatch(/Summed IQ histogram of 120 frames/);
+		await picture.scrollIntoViewIfNeeded();
+		await page.locator('#iq-h').locator('xpath=..').locator('xpath=..').screenshot({ path: path.join(shots, 'phase-space.png') });
+	} finally {
+		await page.close();
+	}
 });

@@ -2,8 +2,12 @@
 import type { IqSum, Lobe } from './histogram';
 
 export type RunIq = {
+	/** The span asked for (agent clock, ms). */
 	from_ms: number;
 	to_ms: number;
+	/** The first and last frame found in it; null when none. */
+	firstFrame_ms: number | null;
+	lastFrame_ms: number | null;
 	states: number;
 	/** Frames in the span that carry a histogram, and every how many of them were added. */
 	framesWithIq: number;

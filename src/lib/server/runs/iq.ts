@@ -30,7 +30,7 @@ export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFra
 	const sampledEvery = Math.max(1, Math.ceil(n / IQ_FRAMES_MAX));
 	if (sampledEvery > 1) where.push(sql`${frames.seq} % ${sampledEvery} = 0`);
 	const rows = await db
-		.select({ seq: frames.seq, iq: frames.iq, counts: frames.counts, vacuum: frames.vacuum, shots: frames.shots })
+		.select({ seq: frames.seq, t: frames.t, iq: frames.iq, counts: frames.counts, vacuum: frames.vacuum, shots: frames.shots })
 		.from(frames)
 		.where(and(...where))
 		.orderBy(asc(frames.seq))
@@ -44,5 +44,5 @@ export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFra
 		occupancy.vacuum += r.vacuum;
 		occupancy.shots += r.shots;
 	}
-	return { from_ms, to_ms, states: run.states, framesWithIq: n, sampledEvery, sum, lobes: sum ? lobeCentres(sum, run.states) : [], occupancy };
+	return { from_ms, to_ms, firstFrame_ms: rows[0]?.t ?? null, lastFrame_ms: rows.at(-1)?.t ?? null, states: run.states, framesWithIq: n, sampledEvery, sum, lobes: sum ? lobeCentres(sum, run.states) : [], occupancy };
 }
