@@ -4,17 +4,10 @@ import { getRuntime } from '$lib/server/runtime';
 import { runIq } from '$lib/server/runs/iq';
 import { getRun } from '$lib/server/runs/service';
 import type { RunIq } from '$lib/iq/run-iq';
-
-export const IQ_SPANS = [
-	{ value: '15m', label: 'last 15 min', ms: 15 * 60_000 },
-	{ value: '1h', label: 'last hour', ms: 3_600_000 },
-	{ value: '6h', label: 'last 6 hours', ms: 6 * 3_600_000 },
-	{ value: '24h', label: 'last 24 hours', ms: 24 * 3_600_000 },
-	{ value: 'all', label: 'whole run', ms: null }
-] as const;
+import { iqSpanOf } from '$lib/iq/spans';
 
 export async function phaseSpaceFor(runId: string, url: URL): Promise<{ iq: RunIq | null; iqSpan: string }> {
-	const chosen = IQ_SPANS.find((s) => s.value === url.searchParams.get('iq_span')) ?? IQ_SPANS[1];
+	const chosen = iqSpanOf(url.searchParams.get('iq_span'));
 	const { db } = await getRuntime();
 	const run = await getRun(db, runId);
 	if (!run || run.lastFrameT === null) return { iq: null, iqSpan: chosen.value };
