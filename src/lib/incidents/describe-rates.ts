@@ -121,7 +121,7 @@ export function describeSwitchingBurst(f: IncidentFacts): Description {
 		};
 	}
 	const details = [
-		`That is ${rateAgainst(noun, observed, expected, exposure_s, { lower: lowerEdge, upper: tested })}, the range being what the rate model’s uncertainty allows.`,
+		`That is ${rateAgainst(noun, observed, expected, exposure_s, { lower: lowerEdge, upper: tested })}${tested > expected * (1 + 1e-6) ? ', the range being what the rate model’s uncertainty allows' : ''}.`,
 		`At the upper edge of that range, ${count(numAt(worst, 'thresholdCount') ?? 0, noun)} or more would already have been flagged; the chance of ${num(observed)} or more is ${chance(numAt(worst, 'pValue'))}, against a limit of ${chance(numAt(worst, 'alpha'))}.`
 	];
 	const others = listAt(ev, 'tests').filter((t) => t !== worst && strAt(t, 'scope') !== strAt(worst, 'scope'));
