@@ -95,6 +95,20 @@ describe('switching_burst', () => {
 	});
 });
 
+describe('switching_burst with an uncertain model', () => {
+	it('gives the range the model allows, symmetric in ln W about the prediction', () => {
+		const run = run6({ switching: { ...flatSwitching(0.5), W0_sigma: 0.2 } });
+		const fs = [...Array.from({ length: 30 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i % 2 })), { ...frame(31, 0.95), switches: 20 }];
+		const open = firstOpen(feed(new DetectorEngine({ rate_drift: { enabled: false } }, run), fs), 'switching_burst');
+		const worst = open.evidence.worst as Record<string, number>;
+		expect(worst.testedAgainst).toBeGreaterThan(worst.expected);
+		const hi = Number(worst.testedAgainst.toPrecision(2));
+		const lo = Number(((worst.expected * worst.expected) / worst.testedAgainst).toPrecision(2));
+		const t = textOf({ kind: 'switching_burst', key: 'switching', evidence: open.evidence });
+		expect(t).toContain(`expected 0.5 (${lo}–${hi}), the range being what the rate model’s uncertainty allows`);
+	});
+});
+
 describe('rate_drift', () => {
 	it('ratio with its interval, since when, and the statistic against its decision limit', () => {
 		const run = run6({ switching: flatSwitching(1) });
