@@ -92,6 +92,8 @@ const agent = spawn(
 		'--run-name', 'T6 overnight, pump 15.02 GHz',
 		'--lose-lock-at-min', '1',
 		'--lock-loss-min', '1.5',
+		// IQ histograms so the run page's phase-space picture shows the state lobes.
+		'--iq-bins', '24',
 		'--spool', path.join(dataDir, 'agent-spool.ndjson'),
 		'--seed', '7'
 	],

@@ -11,18 +11,13 @@ import type { JsonValue } from './events';
 import { measuredTemperature, TEMPERATURE_AUX, type RateProcess } from './expected';
 import { fmt } from './rate-evidence';
 import type { DetectorRules, RuleKind } from './rules';
+import { KIND_LABELS } from '../incidents/kinds';
 
 /** The fixed detector order, the same as the engine's. */
 export const DETECTOR_KINDS: readonly RuleKind[] = ['lock_lost', 'agent_silent', 'switching_burst', 'rate_drift', 'occupancy_imbalance', 'aux_limit'];
 
-export const DETECTOR_TITLES: Record<RuleKind, string> = {
-	lock_lost: 'Lock lost',
-	agent_silent: 'Agent silent',
-	switching_burst: 'Switching burst',
-	rate_drift: 'Rate drift',
-	occupancy_imbalance: 'Occupancy imbalance',
-	aux_limit: 'Aux limits'
-};
+/** The rules' titles: the kinds' labels ($lib/incidents/kinds), the aux rule in the plural as it holds several limits. */
+export const DETECTOR_TITLES: Record<RuleKind, string> = { ...KIND_LABELS, aux_limit: 'Aux limits' };
 
 /** Stable names of the reasons, for code and tests; the texts are for people. */
 export type StatusCode =

@@ -99,17 +99,10 @@ export function formatRate(x: number | null | undefined, significant = 3): strin
 	return `${Number(mant.toPrecision(significant))} × 10${sup}`;
 }
 
-/** Incident kinds and actions as words people read. */
-export function kindLabel(kind: string): string {
-	const known: Record<string, string> = {
-		lock_lost: 'Lock lost',
-		agent_silent: 'Agent silent',
-		switching_high: 'Switching too often',
-		escape_high: 'Escaping too often'
-	};
-	return known[kind] ?? kind.replace(/_/g, ' ').replace(/^./, (c) => c.toUpperCase());
-}
+/** Incident kinds as words people read: the one list lives in $lib/incidents/kinds. */
+export { kindLabel, incidentTitle } from '../incidents/kinds';
 
+/** Incident actions as words people read. */
 export function actionLabel(action: string): string {
 	const known: Record<string, string> = {
 		opened: 'Opened',

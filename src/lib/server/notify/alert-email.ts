@@ -1,12 +1,16 @@
 // The alert e-mail for an incident (and the notice when its condition clears): pure text in,
-// subject, plain text and HTML out.
-import { viewEvidence, type EvidenceView } from './evidence-format';
+// subject, plain text and HTML out. What happened is told in the same sentences as on the
+// incident page ($lib/incidents/describe), never as the detector's field names.
+import { describeIncident, type Description } from '../../incidents/describe';
+import { kindLabel } from '../../incidents/kinds';
 
 export type IncidentForEmail = {
 	id: string;
 	kind: string;
 	severity: string;
+	/** The detector's one-line summary; kept for the record, the e-mail tells it in sentences. */
 	summary: string;
+	key?: string | null;
 	openedAt: Date | string | number;
 	evidence: Record<string, unknown>;
 };
@@ -27,18 +31,7 @@ export type RenderedEmail = { subject: string; text: string; html: string };
 export const MONITOR_CAUTION =
 	'Phasewarden is a monitor, not a safety interlock: the cryostat, its helium handling and the microwave sources keep their own interlocks and the lab’s safety rules.';
 
-const KIND_LABELS: Record<string, string> = {
-	lock_lost: 'Lock lost',
-	agent_silent: 'Agent silent',
-	switching_burst: 'Switching burst',
-	rate_drift: 'Rate drift',
-	occupancy_imbalance: 'Occupancy imbalance',
-	aux_limit: 'Auxiliary limit'
-};
-
-export function kindLabel(kind: string): string {
-	return KIND_LABELS[kind] ?? kind.charAt(0).toUpperCase() + kind.slice(1).replace(/_/g, ' ');
-}
+export { kindLabel };
 
 const DAYS = ['Sunday', 'Monday', 'Tuesday', 'Wednesday', 'Thursday', 'Friday', 'Saturday'];
 const MONTHS = ['January', 'February', 'March', 'April', 'May', 'June', 'July', 'August', 'September', 'October', 'November', 'December'];
@@ -71,10 +64,24 @@ function alignRows(rows: string[][], indent = '  '): string[] {
 	return rows.map((r) => indent + r.map((cell, c) => (c === r.length - 1 ? cell : cell.padEnd(widths[c]))).join('  ').trimEnd());
 }
 
-function evidenceText(view: EvidenceView): string[] {
-	const lines = [`Evidence${view.rule ? ` (rule ${view.rule}${view.version !== undefined ? `, version ${view.version}` : ''})` : ''}`];
-	if (view.facts.length) lines.push(...alignRows(view.facts));
-	for (const t of view.tables) lines.push('', t.title, ...alignRows([t.columns, ...t.rows]));
+/** Sentences wrapped at 78 columns, as mail clients show plain text best. */
+function wrap(sentence: string, width = 78): string[] {
+	const lines: string[] = [];
+	let line = '';
+	for (const word of sentence.split(/\s+/)) {
+		if (line && line.length + 1 + word.length > width) {
+			lines.push(line);
+			line = word;
+		} else line = line ? `${line} ${word}` : word;
+	}
+	if (line) lines.push(line);
+	return lines;
+}
+
+function descriptionText(d: Description, version: number | undefined): string[] {
+	const lines = ['What happened', ...wrap(d.what)];
+	if (d.details.length) lines.push('', 'What the detector saw', ...d.details.flatMap((s) => wrap(`- ${s}`).map((l, i) => (i === 0 ? l : `  ${l}`))));
+	if (version !== undefined) lines.push('', `Detector rule version ${version}.`);
 	return lines;
 }
 
@@ -82,24 +89,12 @@ function evidenceText(view: EvidenceView): string[] {
 
 const cell = 'padding:3px 10px;border-bottom:1px solid #d8dde3;text-align:left;font-variant-numeric:tabular-nums';
 
-function evidenceHtml(view: EvidenceView): string {
-	const heading = `Evidence${view.rule ? ` <span style="font-weight:normal">(rule <code>${escapeHtml(view.rule)}</code>${view.version !== undefined ? `, version ${view.version}` : ''})</span>` : ''}`;
-	const facts = view.facts.length
-		? `<table style="border-collapse:collapse">${view.facts
-				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
-				.join('')}</table>`
+function descriptionHtml(d: Description, version: number | undefined): string {
+	const details = d.details.length
+		? `<h2 style="font-size:15px;margin:20px 0 6px">What the detector saw</h2><ul style="margin:0;padding-left:20px">${d.details.map((x) => `<li style="margin:0 0 4px">${escapeHtml(x)}</li>`).join('')}</ul>`
 		: '';
-	const tables = view.tables
-		.map(
-			(t) =>
-				`<h3 style="font-size:14px;margin:16px 0 4px">${escapeHtml(t.title)}</h3><table style="border-collapse:collapse"><thead><tr>${t.columns
-					.map((c) => `<th style="${cell};font-weight:600">${escapeHtml(c)}</th>`)
-					.join('')}</tr></thead><tbody>${t.rows
-					.map((r) => `<tr>${r.map((c) => `<td style="${cell}">${escapeHtml(c)}</td>`).join('')}</tr>`)
-					.join('')}</tbody></table>`
-		)
-		.join('');
-	return `<h2 style="font-size:15px;margin:20px 0 6px">${heading}</h2>${facts}${tables}`;
+	const rule = version !== undefined ? `<p style="margin:10px 0 0;color:#5a6573">Detector rule version ${version}.</p>` : '';
+	return `<h2 style="font-size:15px;margin:20px 0 6px">What happened</h2><p style="margin:0">${escapeHtml(d.what)}</p>${details}${rule}`;
 }
 
 function page(title: string, body: string): string {
@@ -112,21 +107,24 @@ type Section = { label: string; iso: string; human: string };
 
 function compose(
 	input: IncidentEmailInput,
-	opts: { subjectTag: string; headline: string; when: Section[]; summary: string; evidence: Record<string, unknown> }
+	opts: { subjectTag: string; headline: string; when: Section[]; evidence: Record<string, unknown>; what?: string }
 ): RenderedEmail {
 	const { incident, run, setup } = input;
 	const kind = kindLabel(incident.kind);
 	const link = incidentUrl(input.appOrigin, incident.id);
-	const view = viewEvidence(opts.evidence);
 	const setupName = oneLine(setup.name);
 	const runName = oneLine(run.name);
+	const said: Description = opts.what
+		? { what: oneLine(opts.what), details: [] }
+		: describeIncident({ kind: incident.kind, key: incident.key, evidence: opts.evidence, setupName, runName });
+	const version = typeof opts.evidence.version === 'number' ? opts.evidence.version : undefined;
 
 	const subject = `[Phasewarden] ${opts.subjectTag}: ${kind} on ${setupName}, run ${runName}`;
 
 	const facts: [string, string][] = [
 		['Setup', setupName],
 		['Run', runName],
-		['Incident', `${kind} (${incident.kind}), ${incident.severity}`],
+		['Incident', `${kind}, ${incident.severity}`],
 		...opts.when.map((w): [string, string] => [w.label, `${w.iso} (${w.human})`])
 	];
 	const text = [
@@ -134,9 +132,7 @@ function compose(
 		'',
 		...alignRows(facts, ''),
 		'',
-		oneLine(opts.summary),
-		'',
-		...evidenceText(view),
+		...descriptionText(said, version),
 		'',
 		`Open the incident: ${link}`,
 		'',
@@ -152,8 +148,7 @@ function compose(
 			`<table style="border-collapse:collapse">${facts
 				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
 				.join('')}</table>`,
-			`<p style="margin:14px 0">${escapeHtml(oneLine(opts.summary))}</p>`,
-			evidenceHtml(view),
+			descriptionHtml(said, version),
 			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
 			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`
 		].join('')
@@ -173,7 +168,6 @@ export function renderIncidentEmail(input: IncidentEmailInput): RenderedEmail {
 		subjectTag: severity,
 		headline: `${kindLabel(incident.kind)} (${incident.severity}) on ${oneLine(input.setup.name)}`,
 		when: [section('Opened', incident.openedAt, 'incident.openedAt')],
-		summary: incident.summary,
 		evidence: incident.evidence
 	});
 }
@@ -184,7 +178,8 @@ export function renderIncidentClearedEmail(input: ClearedEmailInput): RenderedEm
 		subjectTag: 'Cleared',
 		headline: `${kindLabel(input.incident.kind)} cleared on ${oneLine(input.setup.name)}`,
 		when: [section('Opened', input.incident.openedAt, 'incident.openedAt'), section('Cleared', input.cleared.at, 'cleared.at')],
-		summary: input.cleared.summary,
-		evidence: input.cleared.evidence ?? input.incident.evidence
+		evidence: input.cleared.evidence ?? input.incident.evidence,
+		// Without the clearing's evidence the opening's would tell the wrong story: the summary says it.
+		...(input.cleared.evidence ? {} : { what: input.cleared.summary })
 	});
 }

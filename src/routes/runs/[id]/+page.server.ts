@@ -3,6 +3,7 @@ import type { DetectorStatus } from '$lib/detect/status';
 import { apiGet } from '$lib/ui/api';
 import type { Frame, Gap, Incident, Occupancy, Run } from '$lib/ui/types';
 import { incidentActions } from '../../incidents/incident-actions.server';
+import { phaseSpaceFor } from './phase-space.server';
 import type { Actions, PageServerLoad } from './$types';
 
 interface RunDetail {
@@ -14,14 +15,15 @@ interface RunDetail {
 	detectors: DetectorStatus[] | null;
 }
 
-export const load: PageServerLoad = async ({ fetch, params, depends }) => {
+export const load: PageServerLoad = async ({ fetch, params, depends, url }) => {
 	depends('pw:run');
 	const id = encodeURIComponent(params.id);
-	const [detail, frames] = await Promise.all([
+	const [detail, frames, phaseSpace] = await Promise.all([
 		apiGet<RunDetail>(fetch, `/api/runs/${id}`),
-		apiGet<{ frames: Frame[]; lastSeq: number }>(fetch, `/api/runs/${id}/frames`)
+		apiGet<{ frames: Frame[]; lastSeq: number }>(fetch, `/api/runs/${id}/frames`),
+		phaseSpaceFor(params.id, url)
 	]);
-	return { ...detail, frames: frames.frames };
+	return { ...detail, frames: frames.frames, ...phaseSpace };
 };
 
 export const actions: Actions = incidentActions;
