@@ -15,6 +15,8 @@ export interface Config {
 	snapshotEveryMs: number;
 	/** How often VACUUM, CHECKPOINT and raw-frame retention run. */
 	maintenanceEveryMs: number;
+	/** How long an invitation link works. */
+	inviteTtl_s: number;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -29,7 +31,8 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
 		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
 		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
-		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000
+		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
+		inviteTtl_s: positiveSeconds(env, 'PHASEWARDEN_INVITE_TTL_S', 7 * 24 * 3600)
 	};
 }
 

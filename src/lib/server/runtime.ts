@@ -13,7 +13,8 @@ import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
 import { LiveBus } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
-import { createMailer } from './notify/mailer';
+import { createMailer, type Mailer } from './notify/mailer';
+import { RESET_TTL_S, resetPasswordSender } from './people/reset-mail';
 
 export interface Runtime {
 	config: Config;
@@ -22,6 +23,7 @@ export interface Runtime {
 	bus: LiveBus;
 	ingest: Ingest;
 	catcher: Awaited<ReturnType<typeof startMailCatcher>> | null;
+	mailer: Mailer | null;
 	close(): Promise<void>;
 }
 
@@ -42,7 +44,10 @@ async function start(): Promise<Runtime> {
 		db,
 		secret: loadAuthSecret(config.dataDir, config.authSecret),
 		baseURL: config.origin,
-		extraPlugins: [sveltekitCookies(getRequestEvent)]
+		extraPlugins: [sveltekitCookies(getRequestEvent)],
+		// Read when a reset is asked for, by which time the mailer below exists.
+		sendResetPassword: (data) => resetPasswordSender(mailer, () => config.origin ?? 'http://localhost:5173')(data),
+		resetPasswordTtl_s: RESET_TTL_S
 	});
 	const catcher = config.catcher ? await startMailCatcher({ port: config.catcherPort }) : null;
 	const smtpUrl = config.smtpUrl ?? (catcher ? `smtp://127.0.0.1:${catcher.port}` : undefined);
@@ -68,6 +73,7 @@ async function start(): Promise<Runtime> {
 		bus,
 		ingest,
 		catcher,
+		mailer,
 		async close() {
 			stopMaintenance();
 			ingest.close();

@@ -117,4 +117,6 @@ export interface Person {
 	email: string;
 	role: Role;
 	createdAt?: string;
+	/** Deactivated: cannot sign in, API tokens refused. */
+	banned?: boolean | null;
 }

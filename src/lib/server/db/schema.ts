@@ -19,6 +19,7 @@ import type { AuxAggregate } from '../../rollup/rollup';
 import { user } from './auth-schema';
 
 export * from './auth-schema';
+export * from './people-schema';
 
 const created = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
 
