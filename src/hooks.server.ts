@@ -34,7 +34,7 @@ const authentication: Handle = async ({ event, resolve }) => {
 	return svelteKitHandler({ event, resolve, auth, building });
 };
 
-const PUBLIC_PATHS = ['/signin', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt'];
+const PUBLIC_PATHS = ['/signin', '/forgot-password', '/reset-password/', '/invite/', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt'];
 
 /** Everything but sign-in needs a signed-in person; roles are checked in each route. */
 const signedIn: Handle = async ({ event, resolve }) => {
