@@ -176,6 +176,28 @@ describe('personal API tokens', () => {
 	});
 });
 
+describe('pages', () => {
+	it('shows a new token once on the settings page, and the invitations page only to operators and admins', async () => {
+		const observer = await signInAs(server, people.observer.email, PASSWORD);
+		const made = await postForm(server, '/settings?/createApiToken', { label: 'page token' }, observer.cookie);
+		expect(made.status).toBe(200);
+		const secret = /pwp_[A-Za-z0-9_-]+/.exec(await made.text())?.[0];
+		expect(secret).toBeDefined();
+		expect((await call(server, '/api/setups', { token: secret! })).status).toBe(200);
+		const later = await (await fetch(`${server.url}/settings`, { headers: { cookie: observer.cookie } })).text();
+		expect(later).toContain('page token');
+		expect(later).not.toContain(secret!);
+
+		expect((await fetch(`${server.url}/invitations`, { headers: { cookie: observer.cookie } })).status).toBe(403);
+		const invitePage = await fetch(`${server.url}/invitations`, { headers: { cookie: operator.cookie } });
+		expect(invitePage.status).toBe(200);
+		// Operators are offered only the roles they may invite.
+		const html = await invitePage.text();
+		expect(html).toContain('<option value="operator"');
+		expect(html).not.toContain('<option value="admin"');
+	});
+});
+
 describe('invitation expiry', () => {
 	let short: RunningServer;
 	beforeAll(async () => {
