@@ -126,6 +126,10 @@ describe('deactivation', () => {
 		expect((await call(server, '/api/setups', session)).status).toBe(401);
 		expect((await call(server, '/api/setups', { token: token.secret })).status).toBe(401);
 		expect((await signInAs(server, email, 'first-password-1')).status).toBe(403);
+		// No reset link for a deactivated person (the mail would be sent before the form answers).
+		expect((await postForm(server, '/forgot-password?/request', { email })).status).toBe(200);
+		const mail = (await (await call(server, '/api/dev/mail', admin)).json()) as { messages: { to: string[] }[] };
+		expect(mail.messages.filter((m) => m.to.includes(email))).toHaveLength(0);
 
 		expect((await call(server, `/api/users/${id}/active`, admin, { method: 'PUT', body: JSON.stringify({ active: true }) })).status).toBe(200);
 		expect((await signInAs(server, email, 'first-password-1')).status).toBe(200);
