@@ -4,6 +4,7 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { svelteKitHandler } from 'better-auth/svelte-kit';
 import { isRole } from '$lib/roles';
 import { handleAgentUpgrade } from '$lib/server/ingest/upgrade';
+import { personFromBearer } from '$lib/server/people/bearer';
 import { getRuntime } from '$lib/server/runtime';
 
 const UPGRADE_KEY = Symbol.for('phasewarden.upgrade');
@@ -14,9 +15,17 @@ export const init: ServerInit = async () => {
 	(globalThis as Record<symbol, unknown>)[UPGRADE_KEY] = handleAgentUpgrade;
 };
 
-/** better-auth's own routes (/api/auth/*), then the session on locals. */
+/** better-auth's own routes (/api/auth/*), then the person on locals: from an API token, else the session. */
 const authentication: Handle = async ({ event, resolve }) => {
-	const { auth } = await getRuntime();
+	const { auth, db } = await getRuntime();
+	const bearer = await personFromBearer(db, event.request.headers);
+	// A script whose token stopped working must hear so, not be treated as signed out and redirected.
+	if (bearer.kind === 'invalid') return json({ message: 'this API token is unknown or revoked, or its person is deactivated' }, { status: 401 });
+	if (bearer.kind === 'user') {
+		event.locals.user = bearer.user;
+		event.locals.sessionId = null;
+		return resolve(event);
+	}
 	const result = await auth.api.getSession({ headers: event.request.headers });
 	event.locals.user = result
 		? { id: result.user.id, email: result.user.email, name: result.user.name, role: isRole(result.user.role) ? result.user.role : 'observer' }
@@ -26,7 +35,7 @@ const authentication: Handle = async ({ event, resolve }) => {
 };
 
 // The service worker must load without a session: the browser fetches it on its own.
-const PUBLIC_PATHS = ['/signin', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
+const PUBLIC_PATHS = ['/signin', '/forgot-password', '/reset-password/', '/invite/', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
 
 /** Everything but sign-in needs a signed-in person; roles are checked in each route. */
 const signedIn: Handle = async ({ event, resolve }) => {

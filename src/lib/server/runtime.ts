@@ -12,10 +12,11 @@ import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
 import { LiveBus } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
-import { createMailer } from './notify/mailer';
+import { createMailer, type Mailer } from './notify/mailer';
 import { reportNow } from './reports/clock';
 import { startReportScheduler } from './reports/scheduler';
 import { startDelivery, type Delivery } from './outbox/start';
+import { RESET_TTL_S, resetPasswordSender } from './people/reset-mail';
 
 export interface Runtime {
 	config: Config;
@@ -28,6 +29,7 @@ export interface Runtime {
 	reports: ReturnType<typeof startReportScheduler>;
 	/** The outbox's delivery worker, the VAPID keys and the local push and SMS fakes. */
 	delivery: Delivery;
+	mailer: Mailer | null;
 	close(): Promise<void>;
 }
 
@@ -48,7 +50,10 @@ async function start(): Promise<Runtime> {
 		db,
 		secret: loadAuthSecret(config.dataDir, config.authSecret),
 		baseURL: config.origin,
-		extraPlugins: [sveltekitCookies(getRequestEvent)]
+		extraPlugins: [sveltekitCookies(getRequestEvent)],
+		// Read when a reset is asked for, by which time the mailer below exists.
+		sendResetPassword: (data) => resetPasswordSender(mailer, () => config.origin ?? 'http://localhost:5173')(data),
+		resetPasswordTtl_s: RESET_TTL_S
 	});
 	const catcher = config.catcher ? await startMailCatcher({ port: config.catcherPort }) : null;
 	const smtpUrl = config.smtpUrl ?? (catcher ? `smtp://127.0.0.1:${catcher.port}` : undefined);
@@ -77,6 +82,7 @@ async function start(): Promise<Runtime> {
 		catcher,
 		reports,
 		delivery,
+		mailer,
 		async close() {
 			stopMaintenance();
 			reports.stop();

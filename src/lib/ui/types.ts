@@ -117,6 +117,8 @@ export interface Person {
 	email: string;
 	role: Role;
 	createdAt?: string;
+	/** Deactivated: cannot sign in, API tokens refused. */
+	banned?: boolean | null;
 }
 
 /** An outgoing webhook of a setup, as the API shows it (never its secret after creation). */

@@ -1,6 +1,8 @@
 // Admin: people and their roles. Guarded here for a clear 403 page; the API enforces it as well.
 import { error, fail } from '@sveltejs/kit';
 import { isRole } from '$lib/roles';
+import { ActivationError, setActive } from '$lib/server/people/activation';
+import { getRuntime } from '$lib/server/runtime';
 import { apiGet, apiSend, field } from '$lib/ui/api';
 import { fieldError } from '$lib/ui/fields';
 import type { Person } from '$lib/ui/types';
@@ -39,5 +41,20 @@ export const actions: Actions = {
 		const res = await apiSend<{ user: Person }>(fetch, `/api/users/${encodeURIComponent(userId)}`, 'PATCH', { role });
 		if (!res.ok) return fail(res.status, { intent: 'changeRole', userId, message: fieldError(res.message).text });
 		return { intent: 'changeRole', userId, changed: role };
+	},
+	setActive: async ({ request, locals }) => {
+		const form = await request.formData();
+		const userId = field(form, 'userId');
+		const active = field(form, 'active') === 'true';
+		if (locals.user?.role !== 'admin') return fail(403, { intent: 'setActive', userId, message: 'Only admins deactivate people.' });
+		if (!userId) return fail(400, { intent: 'setActive', userId, message: 'The form did not say who.' });
+		const { db } = await getRuntime();
+		try {
+			if (!(await setActive(db, userId, active))) return fail(404, { intent: 'setActive', userId, message: 'No such person.' });
+		} catch (err) {
+			if (err instanceof ActivationError) return fail(409, { intent: 'setActive', userId, message: fieldError(err.message).text });
+			throw err;
+		}
+		return { intent: 'setActive', userId, active };
 	}
 };

@@ -11,12 +11,14 @@ import { labTimeZone } from '$lib/server/reports/time-zone';
 import { listSubscriptions } from '$lib/server/push/subscriptions';
 import { getRuntime } from '$lib/server/runtime';
 import { getPhone } from '$lib/server/sms/phone';
+import { apiTokenActions, loadApiTokens } from './api-tokens.server';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const person = requireRole(event, 'observer');
 	const { db, delivery } = await getRuntime();
-	const [devices, phone, settings, allSetups, member] = await Promise.all([
+	const [apiTokens, devices, phone, settings, allSetups, member] = await Promise.all([
+		loadApiTokens(event),
 		listSubscriptions(db, person.id),
 		getPhone(db, person.id),
 		getReportSettings(db, person.id, reportNow()),
@@ -24,12 +26,14 @@ export const load: PageServerLoad = async (event) => {
 		db.select({ id: setupMembers.setupId }).from(setupMembers).where(eq(setupMembers.userId, person.id))
 	]);
 	return {
+		apiTokens,
 		push: { devices, publicKey: delivery.vapid.publicKey, catcher: Boolean(delivery.pushCatcher) },
 		phone,
 		reportSettings: settings, setups: allSetups, memberOf: member.map((m) => m.id), labTimeZone: labTimeZone() };
 };
 
 export const actions: Actions = {
+	...apiTokenActions,
 	reports: async (event) => {
 		const person = requireRole(event, 'observer');
 		const form = await event.request.formData();

@@ -11,9 +11,12 @@ export interface AuthSettings {
 	secret: string;
 	baseURL?: string;
 	extraPlugins?: BetterAuthPlugin[];
+	/** Mails a reset link; without it (the CLI) password reset is off. */
+	sendResetPassword?: (data: { user: { email: string; banned?: boolean | null }; token: string }) => Promise<void>;
+	resetPasswordTtl_s?: number;
 }
 
-export function createAuth({ db, secret, baseURL, extraPlugins = [] }: AuthSettings) {
+export function createAuth({ db, secret, baseURL, extraPlugins = [], sendResetPassword, resetPasswordTtl_s }: AuthSettings) {
 	return betterAuth({
 		secret,
 		baseURL,
@@ -22,8 +25,16 @@ export function createAuth({ db, secret, baseURL, extraPlugins = [] }: AuthSetti
 			provider: 'pg',
 			schema: { user: schema.user, session: schema.session, account: schema.account, verification: schema.verification }
 		}),
-		// Sign-up is closed: people are added by an admin (admin page or the user:add CLI).
-		emailAndPassword: { enabled: true, disableSignUp: true, minPasswordLength: 8 },
+		// Sign-up is closed: people are invited, or added by an admin (admin page or the user:add CLI).
+		// A reset signs the person out everywhere: whoever knew the old password loses their session too.
+		emailAndPassword: {
+			enabled: true,
+			disableSignUp: true,
+			minPasswordLength: 8,
+			sendResetPassword,
+			resetPasswordTokenExpiresIn: resetPasswordTtl_s,
+			revokeSessionsOnPasswordReset: true
+		},
 		session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
 		telemetry: { enabled: false },
 		plugins: [admin({ ac, roles: accessRoles, defaultRole: 'observer', adminRoles: ['admin'] }), ...extraPlugins]

@@ -28,7 +28,7 @@ export async function setUserRole(db: Db, userId: string, role: (typeof ROLES)[n
 
 export async function listUsers(db: Db) {
 	return db
-		.select({ id: user.id, email: user.email, name: user.name, role: user.role, createdAt: user.createdAt })
+		.select({ id: user.id, email: user.email, name: user.name, role: user.role, createdAt: user.createdAt, banned: user.banned })
 		.from(user)
 		.orderBy(user.name);
 }
