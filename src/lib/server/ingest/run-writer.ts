@@ -32,6 +32,13 @@ export interface SnapshotPolicy {
 	everyFrames: number;
 }
 
+/** What one imported batch did: frames stored (new or gap-filling) and seqs already stored. */
+export interface ImportBatchOutcome {
+	stored: number;
+	filledGaps: number;
+	duplicates: number[];
+}
+
 export const DEFAULT_SNAPSHOT_POLICY: SnapshotPolicy = { everyMs: 30_000, everyFrames: 20_000 };
 
 export interface CommitResult {
@@ -140,6 +147,24 @@ export class RunWriter {
 		return done;
 	}
 
+	/**
+	 * Stores frames from a file (recorded while the link was down) in turn with the live commits.
+	 * They are historical: stored like late frames, never fed to the detectors. Frames in the run's
+	 * gaps fill them; above the last seq they extend the run (the caller allows that only for a run
+	 * no agent is streaming); any other seq is already stored and is reported as a duplicate.
+	 */
+	importBatch(batch: Frame[]): Promise<ImportBatchOutcome> {
+		const done = this.chain.then(() => {
+			if (this.broken) throw new Error(`run ${this.run.id}: its writer failed; try the import again`);
+			return this.commit(batch, true);
+		});
+		this.chain = done.then(
+			() => undefined,
+			(err) => this.fail(err as Error)
+		);
+		return done;
+	}
+
 	/** Saves the detector state if frames were fed since the last save and it is older than `olderThanMs`. */
 	saveSnapshotIfStale(now_ms: number, olderThanMs = this.policy.everyMs): Promise<void> {
 		const done = this.chain.then(async () => {
@@ -170,20 +195,22 @@ export class RunWriter {
 		}
 	}
 
-	private async commit(batch: Frame[]) {
+	private async commit(batch: Frame[], imported = false): Promise<ImportBatchOutcome> {
 		const sorted = [...batch].sort((a, b) => a.seq - b.seq);
 		// Above the last seq: new. At or below it: late data when its seq is missing, else a duplicate
 		// (acked, never stored twice).
 		const fresh: Frame[] = [];
 		const late: Frame[] = [];
+		const duplicates: number[] = [];
 		sorted.forEach((f, i) => {
-			if (i > 0 && f.seq === sorted[i - 1].seq) return;
-			if (f.seq > this.run.lastSeq) fresh.push(f);
+			if (i > 0 && f.seq === sorted[i - 1].seq) duplicates.push(f.seq);
+			else if (f.seq > this.run.lastSeq) fresh.push(f);
 			else if (this.gaps.contains(f.seq)) late.push(f);
+			else duplicates.push(f.seq);
 		});
 		if (fresh.length === 0 && late.length === 0) {
 			this.onCommit({ lastSeq: this.run.lastSeq, stored: [], opened: [], resolved: [], run: this.run });
-			return;
+			return { stored: 0, filledGaps: 0, duplicates };
 		}
 
 		const receivedAt = Date.now();
@@ -194,12 +221,12 @@ export class RunWriter {
 		for (const f of fresh) {
 			if (f.seq > prev + 1) opened.push(this.gaps.add(prev + 1, f.seq - 1, new Date(receivedAt)));
 			prev = f.seq;
-			events.push(...this.engine.onFrame(f, receivedAt));
+			if (!imported) events.push(...this.engine.onFrame(f, receivedAt));
 		}
-		this.fedSinceSnapshot += fresh.length;
+		if (!imported) this.fedSinceSnapshot += fresh.length;
 		const snapshotDue =
-			fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
-		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: false }))];
+			!imported && fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
+		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: imported }))];
 		const last = fresh.at(-1);
 		const progress: RunProgress | null = last
 			? { lastSeq: last.seq, lastFrameT: Math.round(last.t), lastFrameAt: new Date(receivedAt), lastLock: last.lock }
@@ -242,8 +269,11 @@ export class RunWriter {
 				frameCount: this.run.frameCount + storedSeqs.size,
 				gapCount
 			};
-			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh.filter((f) => storedSeqs.has(f.seq)), run: this.run, ...recorded });
+			// Imported frames are history, not live news: nothing is published as newly arrived.
+			const published = imported ? [] : fresh.filter((f) => storedSeqs.has(f.seq));
+			this.onCommit({ lastSeq: this.run.lastSeq, stored: published, run: this.run, ...recorded });
 			if (this.broken) throw new Error(`run ${this.run.id}: writer out of step with the database`);
+			return { stored: storedSeqs.size, filledGaps: late.length, duplicates };
 		} catch (err) {
 			// Nothing was committed, but the engine and the gap list moved on: this writer is done, and
 			// the next one restores both from the database.

@@ -1,6 +1,6 @@
 // Incidents as CSV, oldest first, a page at a time (keyset on opened_at, id), with the same
 // filters as the incidents list. Evidence is left out: it is nested and the incident page shows it.
-import { and, asc, eq, gt, or, type SQL } from 'drizzle-orm';
+import { and, asc, eq, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import { z } from 'zod';
 import { csvLines } from '../../transfer/frame-csv';
@@ -33,17 +33,19 @@ export async function* incidentsCsv(db: Db, q: IncidentExportQuery): AsyncGenera
 	if (q.run) filters.push(eq(incidents.runId, q.run));
 	if (q.kind) filters.push(eq(incidents.kind, q.kind));
 	yield csvLines([HEADER]);
-	let after: { openedAt: Date; id: string } | null = null;
+	// The cursor keeps opened_at as Postgres text: a JS Date would drop the microseconds and repeat rows.
+	let after: { openedAt: string; id: string } | null = null;
 	for (;;) {
 		const where = [...filters];
-		if (after) where.push(or(gt(incidents.openedAt, after.openedAt), and(eq(incidents.openedAt, after.openedAt), gt(incidents.id, after.id)))!);
+		if (after) where.push(sql`(${incidents.openedAt}, ${incidents.id}) > (${after.openedAt}::timestamptz, ${after.id})`);
 		const rows = await db
 			.select({
 				i: incidents,
 				runName: runs.name,
 				setupName: setups.name,
 				ackedBy: acker.name,
-				resolvedBy: resolver.name
+				resolvedBy: resolver.name,
+				cursor: sql<string>`${incidents.openedAt}::text`
 			})
 			.from(incidents)
 			.innerJoin(runs, eq(runs.id, incidents.runId))
@@ -60,8 +62,8 @@ export async function* incidentsCsv(db: Db, q: IncidentExportQuery): AsyncGenera
 				iso(i.acknowledgedAt), ackedBy, iso(i.resolvedAt), resolvedBy, i.conditionActive ? 'true' : 'false'
 			])
 		);
-		const last = rows[rows.length - 1].i;
-		after = { openedAt: last.openedAt, id: last.id };
+		const last = rows[rows.length - 1];
+		after = { openedAt: last.cursor, id: last.i.id };
 		if (rows.length < PAGE_ROWS) return;
 	}
 }
