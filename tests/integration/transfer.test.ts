@@ -38,6 +38,13 @@ async function postImport(fetcher: Fetcher, text: string, runKey?: string) {
 
 const lines = (text: string) => text.split('\n').filter((l) => l !== '');
 
+/** Frames and switches summed over a run's 10 s rollups: the timeline's view of the run. */
+async function rollupTotals(id: string) {
+	const body = await (await observer(`/api/runs/${id}/rollups?resolution=10`)).json();
+	const rows = body.rollups as { frames: number; switches: number }[];
+	return { frames: rows.reduce((a, r) => a + r.frames, 0), switches: rows.reduce((a, r) => a + r.switches, 0) };
+}
+
 beforeAll(async () => {
 	seeded = await seedDataDir();
 	server = await startServer(seeded.dataDir);
@@ -110,6 +117,7 @@ describe('import', () => {
 		const detail = await (await observer(`/api/runs/${outcome.runId}`)).json();
 		expect(detail.gaps.map((g: { fromSeq: number; toSeq: number }) => [g.fromSeq, g.toSeq])).toEqual([[301, 400]]);
 		expect(detail.run).toMatchObject({ frameCount: SENT.length, status: 'ended', lastSeq: 1200 });
+		expect(await rollupTotals(outcome.runId)).toEqual(await rollupTotals(runId));
 	});
 
 	it('refuses a malformed file naming every bad line, and stores nothing', async () => {
@@ -148,6 +156,8 @@ describe('import', () => {
 		const detail = await (await observer(`/api/runs/${runId}`)).json();
 		expect(detail.gaps.map((g: { fromSeq: number; toSeq: number }) => [g.fromSeq, g.toSeq])).toEqual([[351, 400]]);
 		expect(detail.run.frameCount).toBe(SENT.length + 50);
+		// The rollups take the filled frames in: 2 switches each (support/agent-socket.ts frame()).
+		expect(await rollupTotals(runId)).toEqual({ frames: SENT.length + 50, switches: 2 * (SENT.length + 50) });
 		const csv = csvParse(await (await observer(`/api/runs/${runId}/export.csv`)).text());
 		expect(csv.length).toBe(SENT.length + 50);
 		expect(csv.filter((r) => r.late === 'true').map((r) => Number(r.seq))).toEqual(Array.from({ length: 50 }, (_, i) => 301 + i));
