@@ -9,7 +9,7 @@ import { sizeFromEnv, sleep } from './support/env';
 import { migrationsDir } from './support/seed';
 import { rssMB, signIn, startAppServer } from './support/server';
 import { printTable, type BenchRow } from './support/table';
-import { weekRun } from './support/week-run';
+import { WEEK_T0_MS, weekRun } from './support/week-run';
 
 const FRAMES = sizeFromEnv('BENCH_EXPORT_FRAMES', 7 * 24 * 3600);
 const IQ_BINS = sizeFromEnv('BENCH_EXPORT_IQ_BINS', 8);
@@ -64,7 +64,7 @@ async function main() {
 	try {
 		const observer = await signIn(app);
 		// Warm the route code and the database's first pages, then let the server settle.
-		await (await observer.fetch(`/api/runs/${week.runId}/export.csv?to_ms=${week.frames}`)).text();
+		await (await observer.fetch(`/api/runs/${week.runId}/export.csv?from_ms=${WEEK_T0_MS}&to_ms=${WEEK_T0_MS + 3_600_000}`)).text();
 		await sleep(SETTLE_S * 1000);
 		idleMB = rssMB(app.pid);
 		for (const format of ['csv', 'ndjson'] as const) {
