@@ -26,14 +26,14 @@ function richFrame(seq: number) {
 // Seqs 1–300 and 401–1200 streamed; 301–400 lost on the way.
 const SENT = [...Array.from({ length: 300 }, (_, i) => i + 1), ...Array.from({ length: 800 }, (_, i) => i + 401)];
 
-async function postImport(fetcher: Fetcher, text: string, runKey?: string) {
+async function postImport(fetcher: Fetcher, text: string, runKey?: string, query = '') {
 	const form = new FormData();
 	form.set('file', new Blob([text], { type: 'application/x-ndjson' }), 'night.ndjson');
 	if (runKey) form.set('runKey', runKey);
 	// Encode the multipart body once so the signed-in fetcher can send it with its boundary.
 	const encoded = new Request('http://encode.invalid/', { method: 'POST', body: form });
 	const body = await encoded.arrayBuffer();
-	return fetcher(`/api/setups/${seeded.setupId}/import`, { method: 'POST', body, headers: { 'content-type': encoded.headers.get('content-type')! } });
+	return fetcher(`/api/setups/${seeded.setupId}/import${query}`, { method: 'POST', body, headers: { 'content-type': encoded.headers.get('content-type')! } });
 }
 
 const lines = (text: string) => text.split('\n').filter((l) => l !== '');
@@ -165,6 +165,20 @@ describe('import', () => {
 		const ahead = await postImport(operator, JSON.stringify(richFrame(1201)), 'transfer-src');
 		expect(ahead.status).toBe(400);
 		expect((await ahead.json()).lines).toEqual([{ line: 1, message: expect.stringMatching(/seq 1201 is above 1200: run "transfer-src" is still open/) }]);
+	});
+
+	it('with ?progress=1 streams the checking and storing phases, then the outcome or the refusal', async () => {
+		const text = Array.from({ length: 1200 }, (_, i) => JSON.stringify(frame(i + 1))).join('\n');
+		const res = await postImport(operator, text, 'transfer-progress', '?progress=1');
+		expect(res.status).toBe(200);
+		const events = lines(await res.text()).map((l) => JSON.parse(l));
+		expect(events[0]).toEqual({ phase: 'checking' });
+		expect(events.filter((e) => e.phase === 'storing').map((e) => e.done)).toEqual([0, 500, 1000, 1200]);
+		expect(events.at(-1).outcome).toMatchObject({ runKey: 'transfer-progress', created: true, stored: 1200 });
+
+		const bad = await postImport(operator, 'nope', undefined, '?progress=1');
+		const last = lines(await bad.text()).map((l) => JSON.parse(l)).at(-1);
+		expect(last.refused).toMatchObject({ status: 400, lines: [{ line: 1, message: expect.stringMatching(/not valid JSON/) }] });
 	});
 
 	it('lets operators import and refuses observers (403) and strangers (401)', async () => {
