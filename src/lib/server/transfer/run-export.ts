@@ -46,16 +46,21 @@ export async function exportFrameCount(db: Db, run: Pick<RunRow, 'id' | 'frameCo
 	return n;
 }
 
-export async function* runCsv(db: Db, runId: string, layout: FrameCsvLayout, span: ExportSpan): AsyncGenerator<string> {
+// Both exports stop at the run's last seq when the download began, so a live run's file matches the
+// frame count announced in its header (frames that fill gaps meanwhile may still join).
+type ExportedRun = Pick<RunRow, 'id' | 'lastSeq'>;
+
+export async function* runCsv(db: Db, run: ExportedRun, layout: FrameCsvLayout, span: ExportSpan): AsyncGenerator<string> {
 	yield csvLines([frameCsvHeader(layout)]);
-	for await (const page of framePages(db, runId, { withoutIq: true, pageSize: CSV_PAGE_ROWS, fromT: span.from_ms, toT: span.to_ms })) {
+	const pages = framePages(db, run.id, { withoutIq: true, pageSize: CSV_PAGE_ROWS, toSeq: run.lastSeq, fromT: span.from_ms, toT: span.to_ms });
+	for await (const page of pages) {
 		yield csvLines(page.map((stored) => frameCsvCells(layout, stored)));
 	}
 }
 
 /** One wire-format frame per line, exactly as an agent sends it (iq included), ready to replay or import. */
-export async function* runNdjson(db: Db, runId: string, span: ExportSpan): AsyncGenerator<string> {
-	for await (const page of framePages(db, runId, { pageSize: NDJSON_PAGE_ROWS, fromT: span.from_ms, toT: span.to_ms })) {
+export async function* runNdjson(db: Db, run: ExportedRun, span: ExportSpan): AsyncGenerator<string> {
+	for await (const page of framePages(db, run.id, { pageSize: NDJSON_PAGE_ROWS, toSeq: run.lastSeq, fromT: span.from_ms, toT: span.to_ms })) {
 		yield page.map((stored) => JSON.stringify(stored.frame) + '\n').join('');
 	}
 }

@@ -13,7 +13,7 @@ export const GET: RequestHandler = async (event) => {
 	const run = await getRun(db, event.params.id);
 	if (!run) error(404, 'no run with this id');
 	const [layout, rows] = await Promise.all([csvLayoutOf(db, run), exportFrameCount(db, run, span)]);
-	return downloadResponse(runCsv(db, run.id, layout, span), {
+	return downloadResponse(runCsv(db, run, layout, span), {
 		contentType: 'text/csv; charset=utf-8',
 		fileName: exportFileName(run, span, 'csv'),
 		rows

@@ -12,7 +12,7 @@ export const GET: RequestHandler = async (event) => {
 	const { db } = await getRuntime();
 	const run = await getRun(db, event.params.id);
 	if (!run) error(404, 'no run with this id');
-	return downloadResponse(runNdjson(db, run.id, span), {
+	return downloadResponse(runNdjson(db, run, span), {
 		contentType: 'application/x-ndjson; charset=utf-8',
 		fileName: exportFileName(run, span, 'ndjson'),
 		rows: await exportFrameCount(db, run, span)
