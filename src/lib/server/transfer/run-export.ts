@@ -17,7 +17,7 @@ export interface ExportSpan {
 
 // CSV rows leave out the IQ histogram, so a larger page stays small; NDJSON lines carry it (up to
 // 64×64 counts each), so its pages are shorter.
-const CSV_PAGE_ROWS = 2000;
+const CSV_PAGE_ROWS = 500;
 const NDJSON_PAGE_ROWS = 250;
 const COARSEST_S = Math.max(...ROLLUP_RESOLUTIONS_S);
 
