@@ -1,6 +1,9 @@
 // Production server: adapter-node's handler plus the agent WebSocket on the same port.
 // Honours PORT and HOST like adapter-node's own server (ORIGIN is read by the handler).
 import http from 'node:http';
+// Frame files imported on a setup's page run to hundreds of megabytes; adapter-node's default
+// request limit (512 KB) would refuse them. Set BODY_SIZE_LIMIT to choose another bound.
+process.env.BODY_SIZE_LIMIT ??= '512M';
 // Loaded by URL so the type checker does not wander into the generated bundle.
 const { handler } = await import(new URL('../../build/handler.js', import.meta.url).href);
 

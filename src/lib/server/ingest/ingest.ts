@@ -17,7 +17,8 @@ import { endRun, findOrCreateRun, publicRun } from '../runs/service';
 import { findActiveToken, markTokenUsed } from '../setups/tokens';
 import { AgentConnection } from './connection';
 import { GroupCommitter } from './group-commit';
-import { DEFAULT_SNAPSHOT_POLICY, RunWriter, type CommitResult, type SnapshotPolicy } from './run-writer';
+import type { Frame } from '../../protocol/frame';
+import { DEFAULT_SNAPSHOT_POLICY, RunWriter, type CommitResult, type ImportBatchOutcome, type SnapshotPolicy } from './run-writer';
 
 export const AGENT_STREAM_PATH = '/api/agent/stream';
 const HEARTBEAT_MS = 15_000;
@@ -98,6 +99,29 @@ export class Ingest {
 		}
 		this.writers.delete(writer.run.id);
 		writer.release();
+	}
+
+	/** Whether an agent is streaming this run right now. */
+	isStreaming(runId: string): boolean {
+		return [...this.connections].some((c) => c.runId === runId);
+	}
+
+	/**
+	 * Stores frames from a file through the run's own writer, so they take turns with live commits
+	 * and the writer's gap list and rollup cache stay true. `onBatch` hears each batch's outcome.
+	 */
+	async importFrames(runId: string, batches: AsyncIterable<Frame[]>, onBatch: (outcome: ImportBatchOutcome, frames: number) => void) {
+		const writer = await this.writerFor(runId);
+		try {
+			for await (const batch of batches) onBatch(await writer.importBatch(batch), batch.length);
+		} finally {
+			// An ended run gets no more frames from an agent: its writer need not stay.
+			if (writer.run.status === 'ended' && !this.isStreaming(runId) && this.writers.get(runId) === writer) {
+				await writer.idle();
+				this.writers.delete(runId);
+			}
+			this.bus.publish({ type: 'run', runId, setupId: writer.run.setupId, run: publicRun(writer.run) });
+		}
 	}
 
 	private writerFor(runId: string): Promise<RunWriter> {

@@ -36,6 +36,13 @@ export interface SnapshotPolicy {
 	everyFrames: number;
 }
 
+/** What one imported batch did: frames stored (new or gap-filling) and seqs already stored. */
+export interface ImportBatchOutcome {
+	stored: number;
+	filledGaps: number;
+	duplicates: number[];
+}
+
 export const DEFAULT_SNAPSHOT_POLICY: SnapshotPolicy = { everyMs: 30_000, everyFrames: 20_000 };
 
 /** The run row's progress is written at least this often while frames arrive (and on every other write). */
@@ -166,6 +173,24 @@ export class RunWriter {
 	}
 
 	/**
+	 * Stores frames from a file (recorded while the link was down) in turn with the live commits.
+	 * They are historical: stored like late frames, never fed to the detectors. Frames in the run's
+	 * gaps fill them; above the last seq they extend the run (the caller allows that only for a run
+	 * no agent is streaming); any other seq is already stored and is reported as a duplicate.
+	 */
+	importBatch(batch: Frame[]): Promise<ImportBatchOutcome> {
+		const done = this.chain.then(() => {
+			if (this.broken) throw new Error(`run ${this.run.id}: its writer failed; try the import again`);
+			return this.commit(batch, true);
+		});
+		this.chain = done.then(
+			() => undefined,
+			(err) => this.fail(err as Error)
+		);
+		return done;
+	}
+
+	/**
 	 * Saves the detector state if frames were fed since the last save and it is older than
 	 * `olderThanMs`, and the run's progress if the row is behind and was written over
 	 * PROGRESS_EVERY_MS ago (or `olderThanMs` is 0: at shutdown and run end).
@@ -212,20 +237,22 @@ export class RunWriter {
 		}
 	}
 
-	private async commit(batch: Frame[]) {
+	private async commit(batch: Frame[], imported = false): Promise<ImportBatchOutcome> {
 		const sorted = [...batch].sort((a, b) => a.seq - b.seq);
 		// Above the last seq: new. At or below it: late data when its seq is missing, else a duplicate
 		// (acked, never stored twice).
 		const fresh: Frame[] = [];
 		const late: Frame[] = [];
+		const duplicates: number[] = [];
 		sorted.forEach((f, i) => {
-			if (i > 0 && f.seq === sorted[i - 1].seq) return;
-			if (f.seq > this.run.lastSeq) fresh.push(f);
+			if (i > 0 && f.seq === sorted[i - 1].seq) duplicates.push(f.seq);
+			else if (f.seq > this.run.lastSeq) fresh.push(f);
 			else if (this.gaps.contains(f.seq)) late.push(f);
+			else duplicates.push(f.seq);
 		});
 		if (fresh.length === 0 && late.length === 0) {
 			this.onCommit({ lastSeq: this.run.lastSeq, stored: [], opened: [], resolved: [], run: this.run });
-			return;
+			return { stored: 0, filledGaps: 0, duplicates };
 		}
 
 		const receivedAt = Date.now();
@@ -236,12 +263,12 @@ export class RunWriter {
 		for (const f of fresh) {
 			if (f.seq > prev + 1) opened.push(this.gaps.add(prev + 1, f.seq - 1, new Date(receivedAt)));
 			prev = f.seq;
-			events.push(...this.engine.onFrame(f, receivedAt));
+			if (!imported) events.push(...this.engine.onFrame(f, receivedAt));
 		}
-		this.fedSinceSnapshot += fresh.length;
+		if (!imported) this.fedSinceSnapshot += fresh.length;
 		const snapshotDue =
-			fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
-		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: false }))];
+			!imported && fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
+		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: imported }))];
 		const last = fresh.at(-1);
 		const gapCount = this.gaps.count;
 		// If every frame is stored (a shortfall stops this writer below, and the next one recounts).
@@ -289,8 +316,11 @@ export class RunWriter {
 			rememberProgress(this.run.id, progress);
 			if (writeProgress) this.progressSaved(receivedAt);
 			else this.progressDirty = true;
-			this.onCommit({ lastSeq: this.run.lastSeq, stored: fresh.filter((f) => storedSeqs.has(f.seq)), run: this.run, ...recorded });
+			// Imported frames are history, not live news: nothing is published as newly arrived.
+			const published = imported ? [] : fresh.filter((f) => storedSeqs.has(f.seq));
+			this.onCommit({ lastSeq: this.run.lastSeq, stored: published, run: this.run, ...recorded });
 			if (this.broken) throw new Error(`run ${this.run.id}: writer out of step with the database`);
+			return { stored: storedSeqs.size, filledGaps: late.length, duplicates };
 		} catch (err) {
 			// Nothing was committed, but the engine and the gap list moved on: this writer is done, and
 			// the next one restores both from the database.

@@ -1,6 +1,6 @@
 // Long reads of a run's frames, a page at a time by seq (keyset), yielding to the event loop
 // between pages so a day-long run never loads into memory at once nor blocks live ingest.
-import { and, asc, eq, getTableColumns, gt, lte, type SQL } from 'drizzle-orm';
+import { and, asc, eq, getTableColumns, gt, gte, lt, lte, type SQL } from 'drizzle-orm';
 import type { Frame } from '../../protocol/frame';
 import type { Db } from '../db';
 import { frames } from '../db/schema';
@@ -24,6 +24,10 @@ export interface FramePageOptions {
 	pageSize?: number;
 	/** Leave out the IQ histograms (the detectors never read them; they are most of a row's bytes). */
 	withoutIq?: boolean;
+	/** Only frames with agent time t at or after this (ms). */
+	fromT?: number;
+	/** Only frames with agent time t before this (ms). */
+	toT?: number;
 }
 
 const { iq: _iq, ...columnsWithoutIq } = getTableColumns(frames);
@@ -36,6 +40,8 @@ export async function* framePages(db: Db, runId: string, options: FramePageOptio
 		const where: SQL[] = [eq(frames.runId, runId), gt(frames.seq, after)];
 		if (options.toSeq !== undefined) where.push(lte(frames.seq, options.toSeq));
 		if (options.skipLate) where.push(eq(frames.late, false));
+		if (options.fromT !== undefined) where.push(gte(frames.t, options.fromT));
+		if (options.toT !== undefined) where.push(lt(frames.t, options.toT));
 		const rows = await db
 			.select(options.withoutIq ? columnsWithoutIq : getTableColumns(frames))
 			.from(frames)
