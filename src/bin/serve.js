@@ -1,6 +1,10 @@
 // Production server: adapter-node's handler plus the agent WebSocket on the same port.
 // Honours PORT and HOST like adapter-node's own server (ORIGIN is read by the handler).
 import http from 'node:http';
+import { securityHeaders } from '../lib/server/http/security-headers.js';
+
+// adapter-node refuses bodies past this (read when the handler loads); the hooks answer 413 with the same number.
+process.env.BODY_SIZE_LIMIT ||= '1M';
 // Loaded by URL so the type checker does not wander into the generated bundle.
 const { handler } = await import(new URL('../../build/handler.js', import.meta.url).href);
 
@@ -9,7 +13,13 @@ const shared = /** @type {Record<symbol, any>} */ (globalThis);
 const port = Number(process.env.PORT ?? 3000);
 const host = process.env.HOST ?? '0.0.0.0';
 
-const server = http.createServer(handler);
+// Static files are served by the handler outside SvelteKit's hooks, so the baseline headers go on here;
+// SvelteKit's own responses set them again (and their Content-Security-Policy) on top.
+const baseline = Object.entries(securityHeaders({ hsts: process.env.PHASEWARDEN_HSTS === '1' || (process.env.ORIGIN ?? '').startsWith('https:') }));
+const server = http.createServer((req, res) => {
+	for (const [name, value] of baseline) res.setHeader(name, value);
+	handler(req, res);
+});
 server.on('upgrade', (req, socket, head) => {
 	const upgrade = shared[UPGRADE_KEY];
 	if (typeof upgrade !== 'function') return socket.destroy();

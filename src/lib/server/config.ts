@@ -15,6 +15,10 @@ export interface Config {
 	snapshotEveryMs: number;
 	/** How often VACUUM, CHECKPOINT and raw-frame retention run. */
 	maintenanceEveryMs: number;
+	/** Reverse proxies whose X-Forwarded-For is believed (PHASEWARDEN_TRUSTED_PROXY); none by default. */
+	trustedProxies: string[];
+	/** Send Strict-Transport-Security even when ORIGIN is not https (PHASEWARDEN_HSTS=1). */
+	hsts: boolean;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -29,7 +33,12 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		migrationsDir: path.resolve(env.PHASEWARDEN_MIGRATIONS || 'drizzle'),
 		silenceCheckMs: Number(env.PHASEWARDEN_SILENCE_CHECK_MS ?? 5000),
 		snapshotEveryMs: positiveSeconds(env, 'PHASEWARDEN_SNAPSHOT_S', 30) * 1000,
-		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000
+		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
+		trustedProxies: (env.PHASEWARDEN_TRUSTED_PROXY ?? '')
+			.split(',')
+			.map((a) => a.trim())
+			.filter(Boolean),
+		hsts: env.PHASEWARDEN_HSTS === '1' || (env.ORIGIN ?? '').startsWith('https:')
 	};
 }
 
