@@ -1,10 +1,14 @@
 // Production server: adapter-node's handler plus the agent WebSocket on the same port.
 // Honours PORT and HOST like adapter-node's own server (ORIGIN is read by the handler).
 import http from 'node:http';
+import { DEFAULT_BODY_LIMIT, parseByteLimit, tooLargeMessage } from '../lib/server/http/body-size.js';
 import { securityHeaders } from '../lib/server/http/security-headers.js';
 
 // adapter-node refuses bodies past this (read when the handler loads); the hooks answer 413 with the same number.
-process.env.BODY_SIZE_LIMIT ||= '1M';
+process.env.BODY_SIZE_LIMIT ||= DEFAULT_BODY_LIMIT;
+const bodyLimit_bytes = parseByteLimit(process.env.BODY_SIZE_LIMIT);
+/** Past this much of an oversized body the connection is cut instead of read to the end. */
+const DRAIN_CAP_BYTES = 64 * 1024 * 1024;
 // Loaded by URL so the type checker does not wander into the generated bundle.
 const { handler } = await import(new URL('../../build/handler.js', import.meta.url).href);
 
@@ -18,8 +22,27 @@ const host = process.env.HOST ?? '0.0.0.0';
 const baseline = Object.entries(securityHeaders({ hsts: process.env.PHASEWARDEN_HSTS === '1' || (process.env.ORIGIN ?? '').startsWith('https:') }));
 const server = http.createServer((req, res) => {
 	for (const [name, value] of baseline) res.setHeader(name, value);
+	const declared_bytes = Number(req.headers['content-length'] ?? 0);
+	if (declared_bytes > bodyLimit_bytes) return refuseOversized(req, res, declared_bytes);
 	handler(req, res);
 });
+
+/**
+ * A declared length over the limit: the rest of the body is read and dropped before the 413, because
+ * a client still sending (fetch, most HTTP libraries) sees a broken pipe, not the answer, if we hang up first.
+ * @param {http.IncomingMessage} req @param {http.ServerResponse} res @param {number} declared_bytes
+ */
+function refuseOversized(req, res, declared_bytes) {
+	let drained_bytes = 0;
+	req.on('data', (chunk) => {
+		drained_bytes += chunk.length;
+		if (drained_bytes > DRAIN_CAP_BYTES) req.destroy();
+	});
+	req.on('end', () => {
+		res.writeHead(413, { 'content-type': 'application/json' });
+		res.end(JSON.stringify({ message: tooLargeMessage(`${declared_bytes} bytes`, bodyLimit_bytes) }));
+	});
+}
 server.on('upgrade', (req, socket, head) => {
 	const upgrade = shared[UPGRADE_KEY];
 	if (typeof upgrade !== 'function') return socket.destroy();

@@ -3,24 +3,14 @@
 // server has no limit at all; so a declared length over the limit is refused before any route runs,
 // and a body of undeclared length (chunked) is read here first so it fails the same way.
 import { json, type Handle } from '@sveltejs/kit';
+import { DEFAULT_BODY_LIMIT, parseByteLimit, tooLargeMessage } from './body-size.js';
 
 // The production server (src/bin/serve.js) sets the same default before adapter-node reads it.
-export const DEFAULT_BODY_LIMIT = '1M';
-
-/** The byte count of a BODY_SIZE_LIMIT value as adapter-node reads it ('512K', '1M', '1G', bytes). */
-export function parseByteLimit(value: string): number {
-	const multiplier: Record<string, number> = { K: 1024, M: 1024 ** 2, G: 1024 ** 3 };
-	const unit = value.at(-1)?.toUpperCase() ?? '';
-	const bytes = unit in multiplier ? Number(value.slice(0, -1)) * multiplier[unit] : Number(value);
-	if (!(bytes > 0)) throw new Error(`BODY_SIZE_LIMIT must be a positive size like 512K or 2M, got "${value}"`);
-	return bytes;
-}
-
 // In development the limit is ours alone: only the production server's adapter enforces it while reading.
 const limit_bytes = parseByteLimit(process.env.BODY_SIZE_LIMIT || DEFAULT_BODY_LIMIT);
 
 function tooLarge(detail: string) {
-	return json({ message: `request body too large: ${detail}; the limit is ${limit_bytes} bytes (BODY_SIZE_LIMIT)` }, { status: 413 });
+	return json({ message: tooLargeMessage(detail, limit_bytes) }, { status: 413 });
 }
 
 export const refuseOversizedBodies: Handle = async ({ event, resolve }) => {
