@@ -43,7 +43,7 @@ export const guardApiWrites: Handle = async ({ event, resolve }) => {
 	const { config } = await getRuntime();
 	const problem = apiWriteProblem(
 		{ method: event.request.method, pathname: event.url.pathname, headers: event.request.headers },
-		config.origin ?? event.url.origin
+		config.origin ? new URL(config.origin).origin : event.url.origin
 	);
 	if (problem) return json({ message: problem.message }, { status: problem.status });
 	return resolve(event);
