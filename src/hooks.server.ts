@@ -41,4 +41,13 @@ const signedIn: Handle = async ({ event, resolve }) => {
 };
 
 // Headers first so every answer carries them, refusals included; the sign-in brake sits in front of better-auth.
-export const handle = sequence(addSecurityHeaders, refuseOversizedBodies, stampClientAddress, guardApiWrites, refuseUnstorableText, limitJsonSignIn, authentication, signedIn);
+export const handle = sequence(
+	addSecurityHeaders,
+	refuseOversizedBodies,
+	stampClientAddress,
+	guardApiWrites,
+	refuseUnstorableText,
+	limitJsonSignIn,
+	authentication,
+	signedIn
+);
