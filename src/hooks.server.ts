@@ -3,6 +3,11 @@ import { json, redirect, type Handle, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { svelteKitHandler } from 'better-auth/svelte-kit';
 import { isRole } from '$lib/roles';
+import { guardApiWrites } from '$lib/server/http/api-write-guard';
+import { refuseOversizedBodies } from '$lib/server/http/body-limit';
+import { addSecurityHeaders } from '$lib/server/http/headers-hook';
+import { limitJsonSignIn, stampClientAddress } from '$lib/server/http/signin-guard';
+import { refuseUnstorableText } from '$lib/server/http/text-guard';
 import { handleAgentUpgrade } from '$lib/server/ingest/upgrade';
 import { personFromBearer } from '$lib/server/people/bearer';
 import { getRuntime } from '$lib/server/runtime';
@@ -45,4 +50,14 @@ const signedIn: Handle = async ({ event, resolve }) => {
 	redirect(303, `/signin?next=${encodeURIComponent(path + event.url.search)}`);
 };
 
-export const handle = sequence(authentication, signedIn);
+// Headers first so every answer carries them, refusals included; the sign-in brake sits in front of better-auth.
+export const handle = sequence(
+	addSecurityHeaders,
+	refuseOversizedBodies,
+	stampClientAddress,
+	guardApiWrites,
+	refuseUnstorableText,
+	limitJsonSignIn,
+	authentication,
+	signedIn
+);

@@ -23,6 +23,10 @@ export interface Config {
 	outboxRetryBaseMs: number;
 	/** How long an invitation link works. */
 	inviteTtl_s: number;
+	/** Reverse proxies whose X-Forwarded-For is believed (PHASEWARDEN_TRUSTED_PROXY); none by default. */
+	trustedProxies: string[];
+	/** Send Strict-Transport-Security even when ORIGIN is not https (PHASEWARDEN_HSTS=1). */
+	hsts: boolean;
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
@@ -41,7 +45,12 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
 		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000,
 		outboxRetryBaseMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_RETRY_S', 5) * 1000,
-		inviteTtl_s: positiveSeconds(env, 'PHASEWARDEN_INVITE_TTL_S', 7 * 24 * 3600)
+		inviteTtl_s: positiveSeconds(env, 'PHASEWARDEN_INVITE_TTL_S', 7 * 24 * 3600),
+		trustedProxies: (env.PHASEWARDEN_TRUSTED_PROXY ?? '')
+			.split(',')
+			.map((a) => a.trim())
+			.filter(Boolean),
+		hsts: env.PHASEWARDEN_HSTS === '1' || (env.ORIGIN ?? '').startsWith('https:')
 	};
 }
 

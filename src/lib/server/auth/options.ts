@@ -16,7 +16,11 @@ export interface AuthSettings {
 	resetPasswordTtl_s?: number;
 }
 
+/** Set by the server's hooks from the socket (or a trusted proxy), never taken from the client as sent. */
+export const CLIENT_ADDRESS_HEADER = 'x-phasewarden-client-address';
+
 export function createAuth({ db, secret, baseURL, extraPlugins = [], sendResetPassword, resetPasswordTtl_s }: AuthSettings) {
+	const adminPlugin = admin({ ac, roles: accessRoles, defaultRole: 'observer', adminRoles: ['admin'] });
 	return betterAuth({
 		secret,
 		baseURL,
@@ -37,7 +41,15 @@ export function createAuth({ db, secret, baseURL, extraPlugins = [], sendResetPa
 		},
 		session: { expiresIn: 60 * 60 * 24 * 14, updateAge: 60 * 60 * 24 },
 		telemetry: { enabled: false },
-		plugins: [admin({ ac, roles: accessRoles, defaultRole: 'observer', adminRoles: ['admin'] }), ...extraPlugins]
+		// On in development too. Password sign-in has its own per-account brake (signin-limiter.ts);
+		// this one is the library's per-address, per-path window for its other routes.
+		rateLimit: { enabled: true, storage: 'memory', customRules: { '/sign-in/email': false } },
+		advanced: { ipAddress: { ipAddressHeaders: [CLIENT_ADDRESS_HEADER] } },
+		// People are managed through the app's API (/api/users), which holds the app's rules (no admin
+		// takes their own role, nobody is impersonated); the plugin's HTTP routes would bypass them.
+		// Server code may still call auth.api.* directly.
+		disabledPaths: Object.values(adminPlugin.endpoints).map((endpoint) => endpoint.path),
+		plugins: [adminPlugin, ...extraPlugins]
 	});
 }
 

@@ -1,6 +1,7 @@
 // Adding people and changing roles: shared by the admin page, the API and the user:add CLI.
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { safeText } from '../../protocol/safe-text';
 import { ROLES } from '../../roles';
 import type { Db } from '../db';
 import { user } from '../db/schema';
@@ -8,9 +9,9 @@ import type { Auth } from './options';
 
 export const newUserSchema = z.object({
 	email: z.email('email must be a valid e-mail address'),
-	name: z.string().trim().min(1, 'name is required').max(100),
+	name: safeText(z.string().trim().min(1, 'name is required').max(100)),
 	role: z.enum(ROLES, { message: 'role must be admin, operator or observer' }),
-	password: z.string().min(8, 'password must have at least 8 characters').max(128)
+	password: safeText(z.string().min(8, 'password must have at least 8 characters').max(128))
 });
 export type NewUser = z.infer<typeof newUserSchema>;
 

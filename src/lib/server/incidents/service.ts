@@ -3,6 +3,7 @@
 import { randomUUID } from 'node:crypto';
 import { and, asc, count, desc, eq, ne, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { safeText } from '../../protocol/safe-text';
 import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
 import { queueIncidentNotices } from '../outbox/enqueue';
@@ -10,7 +11,7 @@ import { queueIncidentNotices } from '../outbox/enqueue';
 export type IncidentRow = typeof incidents.$inferSelect;
 
 export const INCIDENT_STATES = ['open', 'acknowledged', 'resolved'] as const;
-export const noteSchema = z.object({ note: z.string().trim().max(2000, 'note is at most 2000 characters').optional() });
+export const noteSchema = z.object({ note: safeText(z.string().trim().max(2000, 'note is at most 2000 characters')).optional() });
 
 export interface OpenCondition {
 	kind: string;
@@ -147,9 +148,9 @@ const incidentColumns = {
 
 export const incidentQuerySchema = z.object({
 	state: z.enum(INCIDENT_STATES, { message: 'state must be open, acknowledged or resolved' }).optional(),
-	setup: z.string().min(1).optional(),
-	run: z.string().min(1).optional(),
-	kind: z.string().min(1).optional(),
+	setup: safeText(z.string().min(1)).optional(),
+	run: safeText(z.string().min(1)).optional(),
+	kind: safeText(z.string().min(1)).optional(),
 	sort: z.enum(['openedAt', 'severity', 'kind', 'state'], { message: 'sort must be openedAt, severity, kind or state' }).default('openedAt'),
 	order: z.enum(['asc', 'desc'], { message: 'order must be asc or desc' }).default('desc'),
 	page: z.coerce.number().int().min(1, 'page starts at 1').default(1),

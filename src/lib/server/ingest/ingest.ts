@@ -21,6 +21,8 @@ import type { Frame } from '../../protocol/frame';
 import { DEFAULT_SNAPSHOT_POLICY, RunWriter, type CommitResult, type ImportBatchOutcome, type SnapshotPolicy } from './run-writer';
 
 export const AGENT_STREAM_PATH = '/api/agent/stream';
+/** Close code for a socket whose token was revoked; the agent's reconnect then meets a 401 and stops. */
+export const CLOSE_TOKEN_REVOKED = 4001;
 const HEARTBEAT_MS = 15_000;
 
 export interface IngestHooks {
@@ -83,6 +85,17 @@ export class Ingest {
 		await writer.idle();
 		this.bus.publish({ type: 'run', runId: run.id, setupId: run.setupId, run: publicRun(writer.run) });
 		return { writer };
+	}
+
+	/** A revoked token's open sockets close now rather than streaming on until they happen to drop. */
+	closeToken(tokenId: string): number {
+		let closed = 0;
+		for (const conn of this.connections) {
+			if (conn.token.id !== tokenId) continue;
+			conn.close(CLOSE_TOKEN_REVOKED, 'agent token revoked');
+			closed++;
+		}
+		return closed;
 	}
 
 	detach(conn: AgentConnection) {

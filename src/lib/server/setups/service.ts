@@ -3,13 +3,14 @@ import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
+import { safeText } from '../../protocol/safe-text';
 import type { Db, Tx } from '../db';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
 export const newSetupSchema = z
 	.object({
-		name: z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters'),
-		description: z.string().trim().max(500).default(''),
+		name: safeText(z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters')),
+		description: safeText(z.string().trim().max(500)).default(''),
 		order: z.coerce.number().int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
 		states: z.coerce.number().int().min(2).max(16),
 		mode_GHz: z.coerce.number().positive('mode_GHz must be positive').max(100),

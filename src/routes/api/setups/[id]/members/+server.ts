@@ -1,13 +1,14 @@
 import { error } from '@sveltejs/kit';
 import { eq } from 'drizzle-orm';
 import { z } from 'zod';
+import { safeText } from '$lib/protocol/safe-text';
 import { user as users } from '$lib/server/db/schema';
 import { json, readJson, requireRole } from '$lib/server/http/guard';
 import { getRuntime } from '$lib/server/runtime';
 import { addMember, getSetup, listMembers } from '$lib/server/setups/service';
 import type { RequestHandler } from './$types';
 
-const body = z.object({ userId: z.string().min(1, 'userId is required') });
+const body = z.object({ userId: safeText(z.string().min(1, 'userId is required')) });
 
 export const POST: RequestHandler = async (event) => {
 	requireRole(event, 'operator');

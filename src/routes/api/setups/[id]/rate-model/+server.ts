@@ -1,5 +1,6 @@
 import { error } from '@sveltejs/kit';
 import { z } from 'zod';
+import { safeText } from '$lib/protocol/safe-text';
 import { rateModelSchema } from '$lib/physics/rate-model-schema';
 import { json, readJson, requireRole } from '$lib/server/http/guard';
 import { currentRateModel, rateModelHistory, saveRateModel } from '$lib/server/models/rate-models';
@@ -20,7 +21,7 @@ export const GET: RequestHandler = async (event) => {
 	return json({ rateModel, escapeModel, history });
 };
 
-const body = rateModelSchema.and(z.object({ note: z.string().trim().max(500).optional() }));
+const body = rateModelSchema.and(z.object({ note: safeText(z.string().trim().max(500)).optional() }));
 
 /** Saves a model for its process; it applies to frames committed from now on. */
 export const PUT: RequestHandler = async (event) => {

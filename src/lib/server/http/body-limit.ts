@@ -1,0 +1,42 @@
+// Oversized request bodies get 413 with a message on every route. adapter-node already stops reading
+// past BODY_SIZE_LIMIT, but better-auth turns the resulting stream error into a 500, and the dev
+// server has no limit at all; so a declared length over the limit is refused before any route runs,
+// and a body of undeclared length (chunked) is read here first so it fails the same way.
+import { json, type Handle } from '@sveltejs/kit';
+import { bodyLimitFor, tooLargeMessage } from './body-size.js';
+
+// The production server (src/bin/serve.js) applies the same limits before adapter-node reads a body.
+// In development the limits are ours alone: only the production server's adapter enforces one while reading.
+function tooLarge(detail: string, limit_bytes: number) {
+	return json({ message: tooLargeMessage(detail, limit_bytes) }, { status: 413 });
+}
+
+export const refuseOversizedBodies: Handle = async ({ event, resolve }) => {
+	const limit_bytes = bodyLimitFor(event.url.pathname);
+	const declared = Number(event.request.headers.get('content-length') ?? 0);
+	if (declared > limit_bytes) return tooLarge(`${declared} bytes`, limit_bytes);
+	if (event.request.body && !event.request.headers.has('content-length') && (await runsPastLimit(event.request, limit_bytes))) {
+		return tooLarge('the body ran past it', limit_bytes);
+	}
+	return resolve(event);
+};
+
+/** Reads a copy of the body, stopping as soon as it passes the limit (adapter-node's own stop counts too). */
+async function runsPastLimit(request: Request, limit_bytes: number): Promise<boolean> {
+	const reader = request.clone().body!.getReader();
+	let size_bytes = 0;
+	try {
+		for (;;) {
+			const { done, value } = await reader.read();
+			if (done) return false;
+			size_bytes += value.byteLength;
+			if (size_bytes > limit_bytes) {
+				await reader.cancel();
+				return true;
+			}
+		}
+	} catch (err) {
+		if ((err as { status?: number }).status === 413) return true;
+		throw err;
+	}
+}
