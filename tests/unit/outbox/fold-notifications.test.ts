@@ -24,11 +24,11 @@ function migrationsBefore(tag: string): string {
 	return dir;
 }
 
-describe('0004_fold_notifications', () => {
+describe('0006_fold_notifications', () => {
 	it('moves each old notification into the outbox with its attempt', async () => {
 		const client = new PGlite();
 		const db = drizzle(client);
-		await migrate(db, { migrationsFolder: migrationsBefore('0004_fold_notifications') });
+		await migrate(db, { migrationsFolder: migrationsBefore('0006_fold_notifications') });
 		await client.exec(`
 			INSERT INTO "user" (id, name, email, email_verified, created_at, updated_at) VALUES ('u1', 'Ada', 'ada@lab.test', true, now(), now());
 			INSERT INTO setups (id, name, "order", states, mode_ghz, nominal_mk) VALUES ('s1', 'fridge', 3, 6, 5, 12);
