@@ -80,6 +80,31 @@ it('an operator sets the report time, opens the night’s report, follows a run 
 	expect(await page.getByRole('navigation', { name: 'Main' }).isVisible()).toBe(false);
 	expect(await page.getByRole('button', { name: 'Print' }).isVisible()).toBe(false);
 	await page.screenshot({ path: path.join(shots, 'morning-report-print.png'), fullPage: true });
+	await page.emulateMedia({ media: 'screen' });
+
+	// The morning's walk: from the report to the run's night on the timeline, into the lock loss,
+	// a note pinned to it, and the incident's evidence drawn.
+	await timeline.click();
+	await page.waitForURL(/\/timeline\?/);
+	const area = page.getByRole('application', { name: /run timeline/i });
+	await area.waitFor();
+	const incidentSpan = page.locator('a[data-severity]').first();
+	await incidentSpan.waitFor();
+	await area.focus();
+	const before = new URL(page.url());
+	await page.keyboard.press('+');
+	await expect.poll(() => new URL(page.url()).searchParams.get('from_ms')).not.toBe(before.searchParams.get('from_ms'));
+	const box = (await area.boundingBox())!;
+	await page.mouse.click(box.x + box.width * 0.5, box.y + 40);
+	await page.getByRole('textbox', { name: /^note/i }).fill('pump unlocked during the night');
+	await page.getByRole('button', { name: /add note/i }).click();
+	await page.getByRole('button', { name: /note: pump unlocked/i }).waitFor();
+	await page.locator('a[data-severity]').first().click();
+	await page.waitForURL(/\/incidents\//);
+	const level = page.locator('svg[data-chart="level"]');
+	await level.waitFor();
+	expect(await level.getAttribute('aria-label')).toMatch(/lock/i);
+	await page.screenshot({ path: path.join(shots, 'morning-walk-evidence.png'), fullPage: true });
 	await page.context().close();
 });
 

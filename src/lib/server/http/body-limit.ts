@@ -31,12 +31,39 @@ async function runsPastLimit(request: Request, limit_bytes: number): Promise<boo
 			if (done) return false;
 			size_bytes += value.byteLength;
 			if (size_bytes > limit_bytes) {
-				await reader.cancel();
+				// Not awaited: cancelling one branch of a tee settles only once the other branch is
+				// cancelled too, and the other one is drained below.
+				void reader.cancel();
+				await drainRest(request);
 				return true;
 			}
 		}
 	} catch (err) {
 		if ((err as { status?: number }).status === 413) return true;
 		throw err;
+	}
+}
+
+/** Past this much of an oversized body the rest is no longer read (the client then sees the connection end). */
+const DRAIN_CAP_BYTES = 64 * 1024 * 1024;
+
+/**
+ * Reads and drops the rest of a refused body before the 413 goes out: a client still sending (fetch
+ * with a streamed body) reads no answer until its body is through. Only the import route lets
+ * adapter-node read large bodies, so this is what holds the other routes to their own limit.
+ */
+async function drainRest(request: Request) {
+	const reader = request.body?.getReader();
+	if (!reader) return;
+	let drained_bytes = 0;
+	try {
+		for (;;) {
+			const { done, value } = await reader.read();
+			if (done) return;
+			drained_bytes += value.byteLength;
+			if (drained_bytes > DRAIN_CAP_BYTES) return void (await reader.cancel());
+		}
+	} catch {
+		/* the client gave up: nothing left to drain */
 	}
 }
