@@ -1,6 +1,7 @@
 // Shapes the settings page gets from the push and phone APIs, and the browser side of subscribing.
-export type PushDevice = { id: string; endpoint: string; label: string; createdAt: string; lastSentAt: string | null };
-export type PhoneState = { number: string; verifiedAt: string | null; codePending: boolean };
+// Dates arrive as Date from the page's loader and as ISO strings from the JSON API after a change.
+export type PushDevice = { id: string; endpoint: string; label: string; createdAt: string | Date; lastSentAt: string | Date | null };
+export type PhoneState = { number: string; verifiedAt: string | Date | null; codePending: boolean };
 
 /** The VAPID key as the bytes PushManager.subscribe wants. */
 export function vapidKeyBytes(base64url: string): Uint8Array<ArrayBuffer> {
