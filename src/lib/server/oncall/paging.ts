@@ -1,6 +1,6 @@
 // What happens to alerts when an incident opens, is acknowledged or resolves: grouping, the first
 // page (step 0) and the escalation timer, all in the caller's transaction so they commit with it.
-import { and, eq, gte, inArray, ne } from 'drizzle-orm';
+import { and, eq, inArray, ne } from 'drizzle-orm';
 import { moreSevere, nextEscalation, type Severity } from '../../oncall/escalation';
 import type { Db, Tx } from '../db';
 import { escalations, incidentEvents, incidents } from '../db/schema';
@@ -59,14 +59,13 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 		reason = 'consequence';
 	}
 	if (!cause) {
-		// Database time on both sides: opened_at is stamped by the database.
-		const since = new Date(Date.now() - groupWindow_ms());
-		const [first] = await tx
-			.select()
-			.from(incidents)
-			.where(and(open, gte(incidents.openedAt, since)))
-			.orderBy(incidents.openedAt)
-			.limit(1);
+		// A burst is judged on the run's own clock (the agent's frame time) when both incidents
+		// carry it, so a replay of a long night does not lump hours together; else on server time.
+		const window_ms = groupWindow_ms();
+		const candidates = await tx.select().from(incidents).where(open).orderBy(incidents.openedAt);
+		const near = (c: typeof incidents.$inferSelect) =>
+			c.openedT !== null && row.openedT !== null ? Math.abs(row.openedT - c.openedT) <= window_ms : Date.now() - c.openedAt.getTime() <= window_ms;
+		const first = candidates.find(near);
 		if (first) {
 			cause = first;
 			reason = 'burst';
