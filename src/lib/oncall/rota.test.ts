@@ -83,3 +83,12 @@ describe('onCallSpans', () => {
 		expect(spans.at(-1)!.until.toISOString()).toBe('2026-03-24T00:00:00.000Z');
 	});
 });
+
+describe('fromLocal', () => {
+	it('reads a Vienna wall-clock time with the offset in force (CET before, CEST after 2026-03-29)', async () => {
+		const { fromLocal } = await import('./rota');
+		expect(fromLocal('2026-03-17T20:00', VIENNA).toISOString()).toBe('2026-03-17T19:00:00.000Z');
+		expect(fromLocal('2026-03-30T09:00', VIENNA).toISOString()).toBe('2026-03-30T07:00:00.000Z');
+		expect(() => fromLocal('tuesday night', VIENNA)).toThrow(/YYYY-MM-DDTHH:MM/);
+	});
+});

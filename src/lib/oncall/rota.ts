@@ -119,3 +119,14 @@ export function onCallSpans(rota: WeeklyRota | null, overrides: RotaOverride[], 
 	}
 	return spans;
 }
+
+/** The instant a local wall-clock "YYYY-MM-DDTHH:MM" names in `timeZone` (in a skipped hour: just after the jump). */
+export function fromLocal(local: string, timeZone: string): Date {
+	const m = /^(\d{4})-(\d{2})-(\d{2})T(\d{2}):(\d{2})$/.exec(local);
+	if (!m) throw new RangeError(`a local time must be YYYY-MM-DDTHH:MM, got ${JSON.stringify(local)}`);
+	const target = civilDays(Number(m[1]), Number(m[2]), Number(m[3])) * MINUTES_PER_DAY + Number(m[4]) * 60 + Number(m[5]);
+	let t = (target + EPOCH_MONDAY_DAYS * MINUTES_PER_DAY) * 60_000;
+	// Two corrections reach the offset in force at that instant (offsets change at most once nearby).
+	for (let i = 0; i < 2; i++) t -= (localMinutes(new Date(t), timeZone) - target) * 60_000;
+	return new Date(t);
+}

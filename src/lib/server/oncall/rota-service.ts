@@ -3,21 +3,14 @@ import { randomUUID } from 'node:crypto';
 import { and, asc, eq, gt, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { DEFAULT_ESCALATION_POLICY, type EscalationPolicy } from '../../oncall/escalation';
-import { onCallAt, onCallSpans, parseHandoverTime, type RotaOverride, type WeeklyRota } from '../../oncall/rota';
+import { onCallAt, onCallSpans, type RotaOverride, type WeeklyRota } from '../../oncall/rota';
 import type { Db, Tx } from '../db';
 import { escalationPolicies, rotaOverrides, rotas, user } from '../db/schema';
 import { labTimeZone } from '../reports/time-zone';
 import { listMembers } from '../setups/service';
 
-export const rotaSchema = z.object({
-	members: z.array(z.string().min(1)).max(50, 'a rota has at most 50 people'),
-	handoverWeekday: z.coerce.number().int().min(1, 'handoverWeekday is 1 (Monday) to 7 (Sunday)').max(7, 'handoverWeekday is 1 (Monday) to 7 (Sunday)'),
-	handoverTime: z.string().refine((s) => { try { parseHandoverTime(s); return true; } catch { return false; } }, 'handoverTime must be HH:MM (24-hour)'),
-	startsOn: z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'startsOn must be a date YYYY-MM-DD'),
-	criticalAckMin: z.coerce.number().int().min(1, 'criticalAckMin is at least 1 minute').max(1440).default(10),
-	warningAckMin: z.coerce.number().int().min(1, 'warningAckMin is at least 1 minute').max(1440).default(30)
-});
-export type RotaInput = z.infer<typeof rotaSchema>;
+export { rotaSchema, type RotaInput } from '../../oncall/forms';
+import type { RotaInput } from '../../oncall/forms';
 
 export const overrideSchema = z
 	.object({
@@ -49,6 +42,8 @@ export async function getPolicy(db: Tx | Db, setupId: string): Promise<Escalatio
 /** Replaces the rota and policy; every person in it must be an operator or admin member of the setup. */
 export async function saveRota(db: Db, setupId: string, input: RotaInput, actorId: string) {
 	const members = await listMembers(db, setupId);
+	input = { ...input, members: input.members.filter((id) => id !== '') };
+	if (new Set(input.members).size !== input.members.length) throw new RotaError('a person appears twice in the rota');
 	for (const id of input.members) {
 		const m = members.find((x) => x.id === id);
 		if (!m) throw new RotaError(`${id} is not a member of this setup`);
