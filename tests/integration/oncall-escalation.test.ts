@@ -143,3 +143,44 @@ describe('on call, grouping and escalation', () => {
 		await poll('the escalated pages', async () => ((await alertEmails(server)).length >= 4 ? true : null));
 	}, 120_000);
 });
+
+describe('rota page and overrides', () => {
+	it('lets an operator add and remove an override; observers read the page without its forms', async () => {
+		const seeded = await seedDataDir();
+		const server = await startServer(seeded.dataDir, undefined, { PHASEWARDEN_TEST_HOOKS: '1', PHASEWARDEN_TIME_ZONE: 'Europe/Vienna' });
+		cleanup.push(() => server.stop());
+		const admin = await signIn(server, 'admin');
+		const operator = await signIn(server, 'operator');
+		const [adminId, operatorId] = [await userId(admin), await userId(operator)];
+		await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 }) });
+		for (const id of [adminId, operatorId]) await admin(`/api/setups/${seeded.setupId}/members`, { method: 'POST', body: JSON.stringify({ userId: id }) });
+		const rota = { members: [operatorId, adminId], handoverWeekday: 1, handoverTime: '09:00', startsOn: '2026-03-16' };
+		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify({ ...rota, members: [operatorId, operatorId] }) })).status).toBe(400);
+		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify({ ...rota, handoverTime: '9pm' }) })).status).toBe(400);
+		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify(rota) })).status).toBe(200);
+
+		// "I cover Wednesday night": the admin covers from 20:00 to 08:00 Vienna time (CET, UTC+1).
+		const bad = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, { method: 'POST', body: JSON.stringify({ userId: adminId, from: '2026-03-19T07:00:00Z', until: '2026-03-18T19:00:00Z' }) });
+		expect(bad.status).toBe(400);
+		expect((await bad.json()).message).toMatch(/until must be after from/);
+		const added = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, { method: 'POST', body: JSON.stringify({ userId: adminId, from: '2026-03-18T19:00:00Z', until: '2026-03-19T07:00:00Z', note: 'I cover Wednesday night' }) });
+		expect(added.status).toBe(201);
+		const { override } = await added.json();
+		await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse('2026-03-18T23:00:00Z') }) });
+		const view = await (await operator(`/api/setups/${seeded.setupId}/rota`)).json();
+		expect(view.now).toEqual({ primary: adminId, secondary: operatorId });
+		expect(view.spans.some((s: { primary: string; from: string }) => s.primary === 'Test Operator' && s.from === '2026-03-19T07:00:00.000Z')).toBe(true);
+
+		const observer = await signIn(server, 'observer');
+		const page = await observer(`/setups/${seeded.setupId}/oncall`, { headers: { accept: 'text/html' } });
+		expect(page.status).toBe(200);
+		const html = await page.text();
+		expect(html).toContain('Test Admin');
+		expect(html).not.toContain('Save rota');
+		const opPage = await (await operator(`/setups/${seeded.setupId}/oncall`, { headers: { accept: 'text/html' } })).text();
+		expect(opPage).toContain('Save rota');
+		expect((await observer(`/api/setups/${seeded.setupId}/rota/overrides/${override.id}`, { method: 'DELETE' })).status).toBe(403);
+		expect((await operator(`/api/setups/${seeded.setupId}/rota/overrides/${override.id}`, { method: 'DELETE' })).status).toBe(204);
+		expect((await operator(`/api/setups/${seeded.setupId}/rota/overrides/${override.id}`, { method: 'DELETE' })).status).toBe(404);
+	}, 120_000);
+});
