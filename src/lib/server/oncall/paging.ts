@@ -86,12 +86,22 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 	return row;
 }
 
-/** Acknowledging any incident of a group stops the group's escalation; resolving stops its own. */
+/** Acknowledging any incident of a group stops the group's escalation; resolving stops (or hands on) its own. */
 export async function stopPaging(tx: Tx | Db, row: Pick<IncidentRow, 'id' | 'causeIncidentId'>, why: 'acknowledged' | 'resolved') {
 	const ids = [row.id];
-	if (why === 'acknowledged' && row.causeIncidentId) {
-		const head = await headOf(tx, row.causeIncidentId);
-		if (head) ids.push(head.id);
+	if (why === 'acknowledged') for (const member of await incidentGroup(tx, row.id)) ids.push(member.id);
+	if (why === 'resolved') {
+		// A group head that clears while the rest of its group is still open (a burst that ended
+		// while the lock is still lost) hands its timer to the most severe open member.
+		const [timer] = await tx.select().from(escalations).where(eq(escalations.incidentId, row.id));
+		if (timer) {
+			const members = await tx.select().from(incidents).where(and(eq(incidents.causeIncidentId, row.id), eq(incidents.state, 'open')));
+			const heir = members.sort((a, b) => (moreSevere(a.severity, b.severity) === a.severity ? -1 : 1))[0];
+			if (heir) {
+				await tx.update(escalations).set({ incidentId: heir.id }).where(eq(escalations.incidentId, row.id));
+				return;
+			}
+		}
 	}
 	await tx.delete(escalations).where(inArray(escalations.incidentId, ids));
 }
