@@ -65,7 +65,7 @@ describe('lock loss end to end', () => {
 		expect(incident.evidence.rule).toBe('lock_lost');
 
 		const history = await (await observer(`/api/incidents/${incident.id}`)).json();
-		expect(history.events.map((e: { action: string }) => e.action)).toEqual(['opened', 'auto_resolved']);
+		expect(history.events.map((e: { action: string }) => e.action)).toEqual(['opened', 'paged', 'auto_resolved']);
 
 		const operator = await signIn(server, 'operator');
 		const mail = await poll('the alert e-mail', async () => {
@@ -105,6 +105,8 @@ describe('lock loss end to end', () => {
 		const history = await (await observer(`/api/incidents/${open.id}`)).json();
 		expect(history.events.map((e: { action: string; actorName: string | null }) => [e.action, e.actorName])).toEqual([
 			['opened', null],
+			// The first page is part of the history ("paged … at …").
+			['paged', null],
 			['acknowledged', people.operator.name],
 			['resolved', people.operator.name]
 		]);

@@ -21,6 +21,8 @@ export interface Config {
 	outboxPollMs: number;
 	/** The wait after a first failed delivery; it doubles with each failure up to ten minutes. */
 	outboxRetryBaseMs: number;
+	/** How often due escalation steps are looked for. */
+	escalationPollMs: number;
 	/** How long an invitation link works. */
 	inviteTtl_s: number;
 	/** Reverse proxies whose X-Forwarded-For is believed (PHASEWARDEN_TRUSTED_PROXY); none by default. */
@@ -45,6 +47,7 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): Config {
 		maintenanceEveryMs: positiveSeconds(env, 'PHASEWARDEN_MAINTENANCE_S', 300) * 1000,
 		outboxPollMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_POLL_S', 5) * 1000,
 		outboxRetryBaseMs: positiveSeconds(env, 'PHASEWARDEN_OUTBOX_RETRY_S', 5) * 1000,
+		escalationPollMs: positiveSeconds(env, 'PHASEWARDEN_ESCALATION_POLL_S', 15) * 1000,
 		inviteTtl_s: positiveSeconds(env, 'PHASEWARDEN_INVITE_TTL_S', 7 * 24 * 3600),
 		trustedProxies: (env.PHASEWARDEN_TRUSTED_PROXY ?? '')
 			.split(',')

@@ -16,6 +16,7 @@ import { createMailer, type Mailer } from './notify/mailer';
 import { reportNow } from './reports/clock';
 import { startReportScheduler } from './reports/scheduler';
 import { startDelivery, type Delivery } from './outbox/start';
+import { startEscalation, type Escalation } from './oncall/scheduler';
 import { RESET_TTL_S, resetPasswordSender } from './people/reset-mail';
 
 export interface Runtime {
@@ -29,6 +30,8 @@ export interface Runtime {
 	reports: ReturnType<typeof startReportScheduler>;
 	/** The outbox's delivery worker, the VAPID keys and the local push and SMS fakes. */
 	delivery: Delivery;
+	/** Pages the next step of unacknowledged incidents when their timers fall due. */
+	escalation: Escalation;
 	mailer: Mailer | null;
 	close(): Promise<void>;
 }
@@ -63,6 +66,7 @@ async function start(): Promise<Runtime> {
 	// Notices are queued in the outbox by the transactions that open and resolve incidents; the
 	// worker wakes on the bus's incident events, so these hooks have nothing left to do.
 	const delivery = await startDelivery({ db, config, mailer, bus });
+	const escalation = startEscalation({ db, every_ms: config.escalationPollMs, onPaged: () => void delivery.worker.wake() });
 	const ingest = new Ingest(
 		db,
 		bus,
@@ -82,8 +86,10 @@ async function start(): Promise<Runtime> {
 		catcher,
 		reports,
 		delivery,
+		escalation,
 		mailer,
 		async close() {
+			await escalation.stop();
 			stopMaintenance();
 			reports.stop();
 			ingest.close();

@@ -110,7 +110,10 @@ export function actionLabel(action: string): string {
 		resolved: 'Resolved',
 		auto_resolved: 'Resolved itself',
 		condition_cleared: 'Condition cleared',
-		note: 'Note'
+		note: 'Note',
+		paged: 'Paged',
+		escalated: 'Escalated',
+		grouped: 'Grouped'
 	};
 	return known[action] ?? action.replace(/_/g, ' ');
 }

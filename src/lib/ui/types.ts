@@ -82,7 +82,7 @@ export interface Incident {
 export interface IncidentEvent {
 	id: number | string;
 	at: string;
-	action: 'opened' | 'acknowledged' | 'resolved' | 'auto_resolved' | 'condition_cleared' | 'note';
+	action: 'opened' | 'acknowledged' | 'resolved' | 'auto_resolved' | 'condition_cleared' | 'note' | 'paged' | 'escalated' | 'grouped';
 	note: string | null;
 	actorName: string | null;
 }

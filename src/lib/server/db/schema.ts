@@ -21,6 +21,7 @@ import { user } from './auth-schema';
 export * from './auth-schema';
 export * from './delivery-schema';
 export * from './people-schema';
+export * from './rota-schema';
 
 const created = () => timestamp('created_at', { withTimezone: true }).notNull().defaultNow();
 
@@ -228,14 +229,20 @@ export const incidents = pgTable(
 		resolvedAt: timestamp('resolved_at', { withTimezone: true }),
 		resolvedBy: text('resolved_by').references(() => user.id, { onDelete: 'set null' }),
 		/** True while the detector still sees the condition. */
-		conditionActive: boolean('condition_active').notNull().default(true)
+		conditionActive: boolean('condition_active').notNull().default(true),
+		/**
+		 * The incident this one is grouped under: the first of a burst on the run, or the open
+		 * lock_lost / agent_silent it is a consequence of. Grouped incidents notify nobody themselves.
+		 */
+		causeIncidentId: text('cause_incident_id')
 	},
 	(t) => [
 		uniqueIndex('incidents_one_open_idx')
 			.on(t.runId, t.kind, t.key)
 			.where(sql`${t.state} <> 'resolved'`),
 		index('incidents_state_idx').on(t.state),
-		index('incidents_run_idx').on(t.runId)
+		index('incidents_run_idx').on(t.runId),
+		index('incidents_cause_idx').on(t.causeIncidentId)
 	]
 );
 
@@ -249,7 +256,7 @@ export const incidentEvents = pgTable(
 			.references(() => incidents.id, { onDelete: 'cascade' }),
 		at: created(),
 		action: text('action', {
-			enum: ['opened', 'acknowledged', 'resolved', 'condition_cleared', 'auto_resolved', 'note']
+			enum: ['opened', 'acknowledged', 'resolved', 'condition_cleared', 'auto_resolved', 'note', 'paged', 'escalated', 'grouped']
 		}).notNull(),
 		actorId: text('actor_id').references(() => user.id, { onDelete: 'set null' }),
 		note: text('note'),

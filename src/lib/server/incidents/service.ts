@@ -6,6 +6,7 @@ import { z } from 'zod';
 import { safeText } from '../../protocol/safe-text';
 import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
+import { pageOrGroup, stopPaging } from '../oncall/paging';
 import { queueIncidentNotices } from '../outbox/enqueue';
 
 export type IncidentRow = typeof incidents.$inferSelect;
@@ -48,9 +49,8 @@ export async function openIncident(tx: Tx | Db, run: { id: string; setupId: stri
 		})
 		.returning();
 	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'opened', data: { summary: c.summary, seq: c.seq ?? null } });
-	// In this transaction: the incident and its alerts are committed together or not at all.
-	await queueIncidentNotices(tx, row, 'alert');
-	return row;
+	// In this transaction: the incident, its alerts and its escalation timer commit together or not at all.
+	return pageOrGroup(tx, row);
 }
 
 /** The detector no longer sees the condition: the incident resolves itself, noted in its history. */
@@ -75,6 +75,7 @@ export async function clearCondition(
 		note: c.summary,
 		data: { seq: c.seq ?? null, evidence: c.evidence }
 	});
+	await stopPaging(tx, updated, 'resolved');
 	await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: c.summary });
 	return updated;
 }
@@ -100,6 +101,7 @@ export async function acknowledgeIncident(db: Db, id: string, actorId: string, n
 			.where(eq(incidents.id, id))
 			.returning();
 		await tx.insert(incidentEvents).values({ incidentId: id, action: 'acknowledged', actorId, note: note || null });
+		await stopPaging(tx, updated, 'acknowledged');
 		return updated;
 	});
 }
@@ -115,6 +117,7 @@ export async function resolveIncident(db: Db, id: string, actorId: string, note?
 			.where(eq(incidents.id, id))
 			.returning();
 		await tx.insert(incidentEvents).values({ incidentId: id, action: 'resolved', actorId, note: note || null });
+		await stopPaging(tx, updated, 'resolved');
 		await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: note ? `Resolved by hand: ${note}` : 'Resolved by hand.' });
 		return updated;
 	});

@@ -4,6 +4,7 @@ import { error, fail } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/http/guard';
 import { incidentEvidenceView } from '$lib/server/incidents/evidence-view';
 import { getIncident } from '$lib/server/incidents/service';
+import { incidentGroup } from '$lib/server/oncall/paging';
 import { getRuntime } from '$lib/server/runtime';
 import { getRun } from '$lib/server/runs/service';
 import { apiSend, field } from '$lib/ui/api';
@@ -21,7 +22,8 @@ export const load: PageServerLoad = async (event) => {
 	const evidence = run ? await incidentEvidenceView(db, found.incident, run) : null;
 	// Dates as the JSON API gives them, so the page and its components read one shape.
 	const wire = JSON.parse(JSON.stringify(found)) as { incident: Incident; events: IncidentEvent[] };
-	return { ...wire, evidence, states: run?.states ?? null };
+	const group = JSON.parse(JSON.stringify(await incidentGroup(db, event.params.id))) as { id: string; kind: string; severity: string; state: string; summary: string; openedAt: string; head: boolean }[];
+	return { ...wire, evidence, states: run?.states ?? null, group };
 };
 
 export const actions: Actions = {

@@ -1,0 +1,124 @@
+// What happens to alerts when an incident opens, is acknowledged or resolves: grouping, the first
+// page (step 0) and the escalation timer, all in the caller's transaction so they commit with it.
+import { and, eq, inArray, ne } from 'drizzle-orm';
+import { moreSevere, nextEscalation, type Severity } from '../../oncall/escalation';
+import type { Db, Tx } from '../db';
+import { escalations, incidentEvents, incidents } from '../db/schema';
+import type { IncidentRow } from '../incidents/service';
+import { queueIncidentNotices } from '../outbox/enqueue';
+import { chooseRecipients } from '../outbox/recipients';
+import { pagingNow } from './clock';
+import { getPolicy } from './rota-service';
+
+/** Kinds that follow from a lost lock or a silent agent rather than being causes of their own. */
+const CONSEQUENCE_KINDS = ['rate_drift', 'switching_burst', 'occupancy_imbalance'];
+const CAUSE_KINDS = ['lock_lost', 'agent_silent'];
+
+export function groupWindow_ms(env: NodeJS.ProcessEnv = process.env): number {
+	const s = Number(env.PHASEWARDEN_GROUP_WINDOW_S ?? 60);
+	if (!Number.isFinite(s) || s < 0) throw new RangeError(`PHASEWARDEN_GROUP_WINDOW_S must be a number of seconds ≥ 0, got ${env.PHASEWARDEN_GROUP_WINDOW_S}`);
+	return s * 1000;
+}
+
+/** The incident a group's page and timer belong to: follow cause links up (at most a few). */
+async function headOf(tx: Tx | Db, id: string): Promise<typeof incidents.$inferSelect | null> {
+	let current: typeof incidents.$inferSelect | undefined;
+	for (let i = 0, next: string | null = id; next && i < 5; i++) {
+		[current] = await tx.select().from(incidents).where(eq(incidents.id, next));
+		next = current?.causeIncidentId ?? null;
+	}
+	return current ?? null;
+}
+
+const names = (people: { name: string }[]) => people.map((p) => p.name).join(', ') || 'nobody';
+
+/** Raises (or starts) the head's escalation when a more severe incident joins its group. */
+async function raiseGroupSeverity(tx: Tx | Db, head: IncidentRow, severity: Severity, now: Date) {
+	const [timer] = await tx.select().from(escalations).where(eq(escalations.incidentId, head.id));
+	if (timer) {
+		const raised = moreSevere(timer.severity, severity);
+		if (raised !== timer.severity) await tx.update(escalations).set({ severity: raised }).where(eq(escalations.incidentId, head.id));
+		return;
+	}
+	if (head.state !== 'open' || moreSevere(head.severity, severity) === head.severity) return;
+	const next = nextEscalation(await getPolicy(tx, head.setupId), severity, 0, now.getTime());
+	if (next) await tx.insert(escalations).values({ incidentId: head.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity }).onConflictDoNothing();
+}
+
+/**
+ * A new incident either joins a group (a consequence of an open lock_lost / agent_silent, or a
+ * burst on the same run within the window) and notifies nobody, or heads a group of its own:
+ * it pages step 0 now and sets its escalation timer.
+ */
+export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pagingNow()): Promise<IncidentRow> {
+	const open = and(eq(incidents.runId, row.runId), ne(incidents.state, 'resolved'), ne(incidents.id, row.id));
+	let cause: typeof incidents.$inferSelect | undefined;
+	let reason = '';
+	if (CONSEQUENCE_KINDS.includes(row.kind)) {
+		[cause] = await tx.select().from(incidents).where(and(open, inArray(incidents.kind, CAUSE_KINDS))).limit(1);
+		reason = 'consequence';
+	}
+	if (!cause) {
+		// A burst is judged on the run's own clock (the agent's frame time) when both incidents
+		// carry it, so a replay of a long night does not lump hours together; else on server time.
+		const window_ms = groupWindow_ms();
+		const candidates = await tx.select().from(incidents).where(open).orderBy(incidents.openedAt);
+		const near = (c: typeof incidents.$inferSelect) =>
+			c.openedT !== null && row.openedT !== null ? Math.abs(row.openedT - c.openedT) <= window_ms : Date.now() - c.openedAt.getTime() <= window_ms;
+		const first = candidates.find(near);
+		if (first) {
+			cause = first;
+			reason = 'burst';
+		}
+	}
+	if (cause) {
+		const [linked] = await tx.update(incidents).set({ causeIncidentId: cause.id }).where(eq(incidents.id, row.id)).returning();
+		await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'grouped', note: `grouped with ${cause.kind}; notifies nobody separately`, data: { causeIncidentId: cause.id, reason } });
+		const head = await headOf(tx, cause.id);
+		if (head) await raiseGroupSeverity(tx, head, row.severity, now);
+		return linked;
+	}
+	const people = await chooseRecipients(tx, row, 0);
+	await queueIncidentNotices(tx, row, 'alert', 0);
+	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'paged', note: `paged ${names(people)} at ${now.toISOString()}`, data: { step: 0, to: people.map((p) => p.id), at: now.toISOString() } });
+	const next = nextEscalation(await getPolicy(tx, row.setupId), row.severity, 0, now.getTime());
+	if (next) await tx.insert(escalations).values({ incidentId: row.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity: row.severity });
+	return row;
+}
+
+/** Acknowledging any incident of a group stops the group's escalation; resolving stops (or hands on) its own. */
+export async function stopPaging(tx: Tx | Db, row: Pick<IncidentRow, 'id' | 'causeIncidentId'>, why: 'acknowledged' | 'resolved') {
+	const ids = [row.id];
+	if (why === 'acknowledged') for (const member of await incidentGroup(tx, row.id)) ids.push(member.id);
+	if (why === 'resolved') {
+		// A group head that clears while the rest of its group is still open (a burst that ended
+		// while the lock is still lost) hands its timer to the most severe open member.
+		const [timer] = await tx.select().from(escalations).where(eq(escalations.incidentId, row.id));
+		if (timer) {
+			const members = await tx.select().from(incidents).where(and(eq(incidents.causeIncidentId, row.id), eq(incidents.state, 'open')));
+			const heir = members.sort((a, b) => (moreSevere(a.severity, b.severity) === a.severity ? -1 : 1))[0];
+			if (heir) {
+				await tx.update(escalations).set({ incidentId: heir.id }).where(eq(escalations.incidentId, row.id));
+				return;
+			}
+		}
+	}
+	await tx.delete(escalations).where(inArray(escalations.incidentId, ids));
+}
+
+/** The incidents grouped with this one (its head and everything linked under it), oldest first. */
+export async function incidentGroup(db: Tx | Db, id: string) {
+	const head = await headOf(db, id);
+	if (!head) return [];
+	const members = [head];
+	let frontier = [head.id];
+	for (let depth = 0; depth < 4 && frontier.length; depth++) {
+		const children = await db.select().from(incidents).where(inArray(incidents.causeIncidentId, frontier));
+		members.push(...children);
+		frontier = children.map((c) => c.id);
+	}
+	if (members.length < 2) return [];
+	return members
+		.sort((a, b) => a.openedAt.getTime() - b.openedAt.getTime())
+		.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, state: m.state, summary: m.summary, openedAt: m.openedAt, head: m.id === head.id, causeIncidentId: m.causeIncidentId }));
+}
