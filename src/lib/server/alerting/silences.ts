@@ -115,3 +115,15 @@ export async function silenceCovering(tx: Tx | Db, incident: { setupId: string; 
 		.limit(1);
 	return row ?? null;
 }
+
+/** Every silence that ever covered a run (its own and its setup's), newest first; for the run timeline. */
+export function silencesOfRun(db: Db, runId: string) {
+	return db
+		.select({ id: silences.id, kind: silences.kind, reason: silences.reason, startsAt: silences.startsAt, until: silences.until, endedAt: silences.endedAt, createdByName: creator.name })
+		.from(silences)
+		.innerJoin(runs, eq(runs.setupId, silences.setupId))
+		.leftJoin(creator, eq(creator.id, silences.createdBy))
+		.where(and(eq(runs.id, runId), or(isNull(silences.runId), eq(silences.runId, runId))))
+		.orderBy(desc(silences.startsAt))
+		.limit(200);
+}
