@@ -132,6 +132,17 @@ describe('silences', () => {
 		const listed = (await (await observer('/api/silences?active=1')).json()) as { silences: { reason: string; createdByName: string; active: boolean }[] };
 		expect(listed.silences).toEqual([expect.objectContaining({ reason: 'helium transfer', createdByName: people.operator.name, active: true })]);
 
+		// A second silence, ended early: it stays listed with who ended it, and ending it twice is refused.
+		const early = (await (await operator('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, kind: 'rate_drift', duration_min: 60, reason: 'pump sweep' }) })).json()) as { silence: { id: string } };
+		expect((await observer(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(403);
+		expect((await admin(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(200);
+		expect((await admin(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(409);
+		const all = (await (await observer('/api/silences')).json()) as { silences: { id: string; active: boolean; endedByName: string | null }[] };
+		expect(all.silences.find((s) => s.id === early.silence.id)).toMatchObject({ active: false, endedByName: people.admin.name });
+		const tooLong = await operator('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, duration_min: 30 * 24 * 60, reason: 'forever' }) });
+		expect(tooLong.status).toBe(400);
+		expect(await tooLong.text()).toMatch(/at most 14 days/);
+
 		const quietRun = await lockLossRun(server.wsUrl, seeded.token, 'silenced');
 		const quiet = await incidentOf(operator, quietRun);
 		const detail = (await (await operator(`/api/incidents/${quiet.id}`)).json()) as { events: { action: string; note: string | null }[] };
