@@ -46,7 +46,10 @@ it('an operator silences a rule; another person acknowledges from the one-tap li
 	await desk.screenshot({ path: path.join(shots, 'silence-overview.png') });
 
 	// Lock is lost (not the silenced rule): the admin's alert e-mail carries the one-tap link.
-	await lockLossRun(server.wsUrl, token, 'phone-ack');
+	const runId = await lockLossRun(server.wsUrl, token, 'phone-ack');
+	// The run page shows the silence of its setup's rule too.
+	await desk.goto(`${server.url}/runs/${runId}`);
+	await desk.getByTestId('silence-note').getByText(/Occupancy imbalance/).waitFor();
 	const operator = await signIn(server, 'operator');
 	const link = await poll('the admin’s alert e-mail', async () => {
 		const { messages } = (await (await operator('/api/dev/mail')).json()) as { messages: { to: string[]; text?: string }[] };
