@@ -52,7 +52,8 @@ export async function timelineMarks(db: Db, run: RunRow): Promise<TimelineMarks>
 	const onAgentClock = (d: Date) => agentTimeOf(d.getTime(), run.lastFrameT, lastAt);
 	const silenceMarks = silenceRows.map((s) => ({
 		id: s.id,
-		from_ms: onAgentClock(s.startsAt),
+		// A silence set before the run began is drawn from the run's start, where the axis begins.
+		from_ms: onAgentClock(s.startsAt > run.startedAt ? s.startsAt : run.startedAt),
 		to_ms: onAgentClock(s.endedAt && s.endedAt < s.until ? s.endedAt : s.until),
 		reason: s.kind ? `${s.reason} (${s.kind} only)` : s.reason,
 		by: s.createdByName ?? ''
