@@ -39,8 +39,9 @@ const authentication: Handle = async ({ event, resolve }) => {
 	return svelteKitHandler({ event, resolve, auth, building });
 };
 
-// The service worker must load without a session: the browser fetches it on its own.
-const PUBLIC_PATHS = ['/signin', '/forgot-password', '/reset-password/', '/invite/', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
+// The service worker must load without a session: the browser fetches it on its own. One-tap
+// acknowledge links (/ack/) carry their own signed authority and create no session.
+const PUBLIC_PATHS = ['/signin', '/forgot-password', '/reset-password/', '/invite/', '/ack/', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
 
 /** Everything but sign-in needs a signed-in person; roles are checked in each route. */
 const signedIn: Handle = async ({ event, resolve }) => {

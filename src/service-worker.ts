@@ -42,7 +42,7 @@ sw.addEventListener('push', (event) => {
 sw.addEventListener('notificationclick', (event) => {
 	const message = event.notification.data as PushMessage;
 	event.notification.close();
-	// The Acknowledge action opens its own URL: today the incident page, later a one-tap link.
+	// The Acknowledge action opens its own URL: the one-tap confirmation page for this delivery.
 	const target = message.actions.find((a) => a.action === event.action)?.url ?? message.url;
 	event.waitUntil(sw.clients.openWindow(target));
 });

@@ -60,6 +60,8 @@ describe('web push', () => {
 		expect(alert.payload.title).toMatch(/^Critical: Lock lost · Test fridge/);
 		expect(alert.payload.url).toBe(`${server.url}/incidents/${incidents[0].id}`);
 		expect(alert.payload.actions[0]).toMatchObject({ action: 'acknowledge', title: 'Acknowledge' });
+		// The action is a one-tap acknowledge link, not the incident page behind a sign-in.
+		expect(alert.payload.actions[0].url).toMatch(new RegExp(`^${server.url}/ack/[\\w-]+\\.[\\w-]+$`));
 		expect(alert.urgency).toBe('high');
 		expect(alert.payload.body.length).toBeLessThanOrEqual(140);
 	});

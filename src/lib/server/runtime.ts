@@ -3,6 +3,7 @@
 import { getRequestEvent } from '$app/server';
 import { sveltekitCookies } from 'better-auth/svelte-kit';
 import { createAuth, type Auth } from './auth/options';
+import { configureAckLinks } from './alerting/ack-links';
 import { loadAuthSecret } from './auth/secret';
 import { readConfig, type Config } from './config';
 import { lockDataDir, unlockDataDir } from './data-lock';
@@ -49,9 +50,11 @@ async function start(): Promise<Runtime> {
 	const config = readConfig();
 	lockDataDir(config.dataDir);
 	const { db, kind: databaseKind, close: closeDb } = await openConfiguredDatabase(config);
+	const authSecret = loadAuthSecret(config.dataDir, config.authSecret);
+	configureAckLinks(authSecret);
 	const auth = createAuth({
 		db,
-		secret: loadAuthSecret(config.dataDir, config.authSecret),
+		secret: authSecret,
 		baseURL: config.origin,
 		extraPlugins: [sveltekitCookies(getRequestEvent)],
 		// Read when a reset is asked for, by which time the mailer below exists.

@@ -1,5 +1,5 @@
 // Things drawn over the timeline's tracks as spans or pins: lost data, incidents, notes. Types
-// shared by the loader and the page; `SilenceMark` is the hook for silences once they exist.
+// shared by the loader and the page; `SilenceMark` places the silences (src/lib/server/alerting) on the axis.
 import type { Annotation } from '../annotations/schema';
 
 /** Seq range never delivered, placed in time between the frames around it. */

@@ -11,14 +11,16 @@ import { labTimeZone } from '$lib/server/reports/time-zone';
 import { listSubscriptions } from '$lib/server/push/subscriptions';
 import { getRuntime } from '$lib/server/runtime';
 import { getPhone } from '$lib/server/sms/phone';
+import { alertPrefsActions, loadAlertPrefs } from './alert-prefs.server';
 import { apiTokenActions, loadApiTokens } from './api-tokens.server';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	const person = requireRole(event, 'observer');
 	const { db, delivery } = await getRuntime();
-	const [apiTokens, devices, phone, settings, allSetups, member] = await Promise.all([
+	const [apiTokens, alertPrefs, devices, phone, settings, allSetups, member] = await Promise.all([
 		loadApiTokens(event),
+		loadAlertPrefs(event),
 		listSubscriptions(db, person.id),
 		getPhone(db, person.id),
 		getReportSettings(db, person.id, reportNow()),
@@ -27,6 +29,7 @@ export const load: PageServerLoad = async (event) => {
 	]);
 	return {
 		apiTokens,
+		alertPrefs,
 		push: { devices, publicKey: delivery.vapid.publicKey, catcher: Boolean(delivery.pushCatcher) },
 		phone,
 		reportSettings: settings, setups: allSetups, memberOf: member.map((m) => m.id), labTimeZone: labTimeZone() };
@@ -34,6 +37,7 @@ export const load: PageServerLoad = async (event) => {
 
 export const actions: Actions = {
 	...apiTokenActions,
+	...alertPrefsActions,
 	reports: async (event) => {
 		const person = requireRole(event, 'observer');
 		const form = await event.request.formData();

@@ -2,6 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import type { IncidentContext } from '../../../src/lib/server/outbox/incident-context';
 import { pushMessage } from '../../../src/lib/server/outbox/push-message';
+import { configureAckLinks } from '../../../src/lib/server/alerting/ack-links';
+import { verifyAckToken } from '../../../src/lib/alerting/ack-token';
 import type { OutboxRow } from '../../../src/lib/server/outbox/sender';
 
 const at = new Date(Date.UTC(2026, 0, 5, 3, 0, 0));
@@ -29,15 +31,20 @@ const ctx = {
 	setup: { id: 'setup-1', name: 'Bramble fridge · tripler with a rather long name for a phone' }
 } as unknown as IncidentContext;
 
+configureAckLinks('unit-test-secret');
+
 describe('pushMessage', () => {
 	it('gives an alert a short title, one line, the link and an Acknowledge action', () => {
-		const m = pushMessage(row('alert'), ctx, 'https://pw.lab.example/');
+		const m = pushMessage(row('alert', { userId: 'user-7' }), ctx, 'https://pw.lab.example/');
 		expect(m.title.startsWith('Critical: Lock lost · Bramble')).toBe(true);
 		expect(m.title.length).toBeLessThanOrEqual(60);
 		expect(m.body).not.toMatch(/\n/);
 		expect(m.body.length).toBeLessThanOrEqual(140);
 		expect(m.url).toBe('https://pw.lab.example/incidents/inc-1');
-		expect(m.actions).toEqual([{ action: 'acknowledge', title: 'Acknowledge', url: 'https://pw.lab.example/incidents/inc-1' }]);
+		expect(m.actions).toEqual([{ action: 'acknowledge', title: 'Acknowledge', url: expect.stringMatching(/^https:\/\/pw\.lab\.example\/ack\/[\w-]+\.[\w-]+$/) }]);
+		// The action is a one-tap link for the device's owner and this delivery, 24 h from its creation.
+		const verdict = verifyAckToken('unit-test-secret', m.actions[0].url.split('/ack/')[1], at.getTime());
+		expect(verdict).toEqual({ ok: true, claims: { deliveryId: row('alert').id, incidentId: 'inc-1', userId: 'user-7', expiresAt_s: at.getTime() / 1000 + 24 * 3600 } });
 		// Under the roughly 4 kB push services accept once encrypted.
 		expect(JSON.stringify(m).length).toBeLessThan(1000);
 	});

@@ -20,6 +20,7 @@ import { user } from './auth-schema';
 
 export * from './auth-schema';
 export * from './delivery-schema';
+export * from './alerting-schema';
 export * from './people-schema';
 export * from './rota-schema';
 

@@ -20,6 +20,8 @@ export type IncidentEmailInput = {
 	run: { id: string; name: string };
 	setup: { id: string; name: string };
 	appOrigin: string;
+	/** A one-tap acknowledge link; alerts carry one, clear notices do not. */
+	acknowledgeUrl?: string;
 };
 
 export type ClearedEmailInput = IncidentEmailInput & {
@@ -135,6 +137,7 @@ function compose(
 		...descriptionText(said, version),
 		'',
 		`Open the incident: ${link}`,
+		...(input.acknowledgeUrl ? [`Acknowledge: ${input.acknowledgeUrl}`] : []),
 		'',
 		'--',
 		MONITOR_CAUTION,
@@ -150,6 +153,7 @@ function compose(
 				.join('')}</table>`,
 			descriptionHtml(said, version),
 			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
+			input.acknowledgeUrl ? `<p style="margin:0 0 18px"><a href="${escapeHtml(input.acknowledgeUrl)}">Acknowledge</a> <span style="color:#5a6573">(one tap, works once)</span></p>` : '',
 			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`
 		].join('')
 	);

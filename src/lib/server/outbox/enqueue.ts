@@ -5,6 +5,7 @@ import { and, eq, inArray, isNotNull } from 'drizzle-orm';
 import type { Db, Tx } from '../db';
 import { outbox, phoneNumbers, pushSubscriptions, setupWebhooks, type OutboxChannel } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
+import { allowedChannels, noticeSilenced } from '../alerting/notice-filter';
 import { chooseRecipients } from './recipients';
 import { outboxExpiry_ms } from './settings';
 
@@ -40,8 +41,12 @@ type IncidentNoticeSource = Pick<IncidentRow, 'id' | 'setupId' | 'runId' | 'kind
  * the setup. `step` is the escalation step (0 when the incident opens).
  */
 export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNoticeSource, kind: 'alert' | 'clear', step = 0, extra: Record<string, unknown> = {}): Promise<number> {
+	const now = new Date();
+	// Silences and personal preferences (src/lib/server/alerting) decide before any row is written.
+	if (await noticeSilenced(tx, incident, kind, step, now)) return 0;
 	const people = await chooseRecipients(tx, incident, step);
 	const ids = people.map((p) => p.id);
+	const allows = await allowedChannels(tx, ids, incident.severity, kind, now);
 	const [devices, phones, hooks] = await Promise.all([
 		ids.length
 			? tx.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId }).from(pushSubscriptions).where(inArray(pushSubscriptions.userId, ids))
@@ -63,10 +68,10 @@ export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNotice
 	});
 	const deliveries: NewDelivery[] = [];
 	for (const person of people) {
-		deliveries.push(row('email', person.id, { address: person.email }));
-		for (const d of devices) if (d.userId === person.id) deliveries.push(row('push', d.id, { userId: person.id }));
-		if (phones.some((p) => p.userId === person.id)) deliveries.push(row('sms', person.id));
+		if (allows(person.id, 'email')) deliveries.push(row('email', person.id, { address: person.email }));
+		for (const d of devices) if (d.userId === person.id && allows(person.id, 'push')) deliveries.push(row('push', d.id, { userId: person.id }));
+		if (phones.some((p) => p.userId === person.id) && allows(person.id, 'sms')) deliveries.push(row('sms', person.id));
 	}
 	for (const hook of hooks) deliveries.push(row('webhook', hook.id));
-	return enqueue(tx, deliveries);
+	return enqueue(tx, deliveries, now);
 }

@@ -3,6 +3,8 @@
 import { eq } from 'drizzle-orm';
 import type { Db } from '../db';
 import { incidents, runs, setups } from '../db/schema';
+import { oneTapLink } from '../alerting/ack-links';
+import type { OutboxRow } from './sender';
 
 export async function loadIncidentContext(db: Db, incidentId: string) {
 	const [row] = await db
@@ -21,9 +23,10 @@ export function incidentLink(appOrigin: string, incidentId: string) {
 }
 
 /**
- * Where a notification's Acknowledge action leads. For now the incident page (acknowledging
- * there needs a sign-in); a signed one-tap link replaces this in one place when it exists.
+ * Where a notification's Acknowledge action leads: a signed one-tap link for the person the
+ * delivery goes to (an e-mail's recipient is a user id; a push's is a device, its owner in the payload).
  */
-export function acknowledgeLink(appOrigin: string, incidentId: string, _deliveryId: string) {
-	return incidentLink(appOrigin, incidentId);
+export function acknowledgeLink(appOrigin: string, incidentId: string, row: Pick<OutboxRow, 'id' | 'createdAt' | 'channel' | 'recipient' | 'payload'>) {
+	const userId = row.channel === 'push' ? String(row.payload.userId ?? '') : row.recipient;
+	return oneTapLink(appOrigin, row, incidentId, userId);
 }

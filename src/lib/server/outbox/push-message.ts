@@ -50,6 +50,6 @@ export function pushMessage(row: OutboxRow, ctx: IncidentContext | null, appOrig
 		url,
 		tag: incident.id,
 		deliveryId: row.id,
-		actions: [{ action: 'acknowledge', title: 'Acknowledge', url: acknowledgeLink(appOrigin, incident.id, row.id) }]
+		actions: [{ action: 'acknowledge', title: 'Acknowledge', url: acknowledgeLink(appOrigin, incident.id, row) }]
 	};
 }

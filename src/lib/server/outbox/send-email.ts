@@ -4,7 +4,7 @@ import type { Db } from '../db';
 import { user } from '../db/schema';
 import { renderIncidentClearedEmail, renderIncidentEmail, type RenderedEmail } from '../notify/alert-email';
 import type { Mailer } from '../notify/mailer';
-import { loadIncidentContext } from './incident-context';
+import { acknowledgeLink, loadIncidentContext } from './incident-context';
 import { failForGood, retryLater, type ChannelSender, type OutboxRow } from './sender';
 
 export function emailSender(db: Db, mailer: Mailer, appOrigin: string): ChannelSender {
@@ -48,5 +48,5 @@ async function render(db: Db, row: OutboxRow, appOrigin: string): Promise<Render
 			cleared: { at: ctx.incident.resolvedAt ?? row.createdAt, summary: String(p.clearedSummary ?? 'The condition has cleared.') }
 		});
 	}
-	return renderIncidentEmail(input);
+	return renderIncidentEmail({ ...input, acknowledgeUrl: acknowledgeLink(appOrigin, ctx.incident.id, row) });
 }

@@ -3,6 +3,7 @@
 import { and, asc, desc, eq, gt, lt } from 'drizzle-orm';
 import { agentTimeOf, type GapMark, type IncidentMark, type TimelineMarks } from '../../timeline/marks';
 import { listAnnotations } from '../annotations/service';
+import { silencesOfRun } from '../alerting/silences';
 import type { Db } from '../db';
 import { frameGaps, frames, incidents } from '../db/schema';
 import type { RunRow } from '../runs/service';
@@ -45,6 +46,17 @@ export async function incidentMarks(db: Db, run: RunRow): Promise<IncidentMark[]
 }
 
 export async function timelineMarks(db: Db, run: RunRow): Promise<TimelineMarks> {
-	const [gaps, incidentList, annotations] = await Promise.all([gapMarks(db, run.id), incidentMarks(db, run), listAnnotations(db, run.id)]);
-	return { gaps, incidents: incidentList, annotations, silences: [] };
+	const [gaps, incidentList, annotations, silenceRows] = await Promise.all([gapMarks(db, run.id), incidentMarks(db, run), listAnnotations(db, run.id), silencesOfRun(db, run.id)]);
+	const lastAt = run.lastFrameAt?.getTime() ?? null;
+	// Silences are set on the server's clock; placed on the agent's like the incidents.
+	const onAgentClock = (d: Date) => agentTimeOf(d.getTime(), run.lastFrameT, lastAt);
+	const silenceMarks = silenceRows.map((s) => ({
+		id: s.id,
+		// A silence set before the run began is drawn from the run's start, where the axis begins.
+		from_ms: onAgentClock(s.startsAt > run.startedAt ? s.startsAt : run.startedAt),
+		to_ms: onAgentClock(s.endedAt && s.endedAt < s.until ? s.endedAt : s.until),
+		reason: s.kind ? `${s.reason} (${s.kind} only)` : s.reason,
+		by: s.createdByName ?? ''
+	}));
+	return { gaps, incidents: incidentList, annotations, silences: silenceMarks };
 }
