@@ -4,6 +4,8 @@
 # Usage: url=$(.ci/postgres-cluster.sh [PORT]); stop with: pg_ctl -D "$dir/data" stop (see stderr).
 set -euo pipefail
 port="${1:-55432}"
+# The next free port from there (a cluster left from an earlier run may hold the first).
+while (exec 3<>"/dev/tcp/127.0.0.1/$port") 2>/dev/null; do port=$((port + 1)); done
 bin="$(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -1)"
 if [ -z "$bin" ]; then
 	echo "postgresql is not installed (apt-get install postgresql)" >&2
