@@ -5,8 +5,9 @@ import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent, type TestAgent } from '../integration/support/agent-socket';
-import { PASSWORD, people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from '../integration/support/server';
+import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from '../integration/support/server';
 import { launchChromium } from './chromium';
+import { signInOnPage } from './sign-in';
 
 const shots = path.resolve(import.meta.dirname, '../../test-results');
 let seeded: Seeded;
@@ -33,11 +34,7 @@ afterAll(async () => {
 async function signedIn(who: keyof typeof people, width: number): Promise<Page> {
 	const context = await browser.newContext({ viewport: { width, height: 900 } });
 	const page = await context.newPage();
-	await page.goto(`${server.url}/signin`);
-	await page.getByLabel(/e-?mail/i).fill(people[who].email);
-	await page.getByLabel(/password/i).fill(PASSWORD);
-	await page.getByRole('button', { name: /sign in/i }).click();
-	await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+	await signInOnPage(page, server.url, who);
 	return page;
 }
 

@@ -6,8 +6,9 @@ import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from '../integration/support/agent-socket';
-import { PASSWORD, people, seedDataDir, startServer, type RunningServer } from '../integration/support/server';
+import { people, seedDataDir, startServer, type RunningServer } from '../integration/support/server';
 import { launchChromium } from './chromium';
+import { signInOnPage } from './sign-in';
 
 const shots = path.resolve(import.meta.dirname, '../../test-results');
 let server: RunningServer;
@@ -34,11 +35,7 @@ afterAll(async () => {
 });
 
 async function signInAs(page: Page, who: keyof typeof people) {
-	await page.goto(`${server.url}/signin`);
-	await page.getByLabel(/e-?mail/i).fill(people[who].email);
-	await page.getByLabel(/password/i).fill(PASSWORD);
-	await page.getByRole('button', { name: /sign in/i }).click();
-	await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
+	await signInOnPage(page, server.url, who);
 }
 
 async function withEvidence(page: Page, name: string, body: () => Promise<void>) {

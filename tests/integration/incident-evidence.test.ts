@@ -5,6 +5,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
+import { poll } from './support/poll';
 
 let seeded: Seeded;
 let server: RunningServer;
@@ -17,15 +18,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-async function poll<T>(what: string, fn: () => Promise<T | undefined | null | false>, timeoutMs = 10_000): Promise<T> {
-	const until = Date.now() + timeoutMs;
-	for (;;) {
-		const value = await fn();
-		if (value) return value;
-		if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
-		await new Promise((r) => setTimeout(r, 100));
-	}
-}
 
 // A 4×4 histogram per frame: the count in bin b is seq + b, so the sum over frames is known by hand.
 const BINS = 4;

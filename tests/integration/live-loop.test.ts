@@ -3,6 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RUN, connect, frame, startAgent } from './support/agent-socket';
 import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
+import { poll } from './support/poll';
 
 let seeded: Seeded;
 let server: RunningServer;
@@ -15,15 +16,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-async function poll<T>(what: string, fn: () => Promise<T | undefined | null | false>, timeoutMs = 10_000): Promise<T> {
-	const until = Date.now() + timeoutMs;
-	for (;;) {
-		const value = await fn();
-		if (value) return value;
-		if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
-		await new Promise((r) => setTimeout(r, 100));
-	}
-}
 
 describe('agent stream authentication', () => {
 	it('refuses a missing or unknown token with HTTP 401 before the upgrade', async () => {

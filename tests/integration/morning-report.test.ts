@@ -5,6 +5,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
+import { poll } from './support/poll';
 
 const ENV = { PHASEWARDEN_TEST_HOOKS: '1', PHASEWARDEN_TIME_ZONE: 'Europe/Berlin' };
 const iso = (s: string) => Date.parse(s);
@@ -26,15 +27,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-async function poll<T>(what: string, fn: () => Promise<T | undefined | null | false>, timeoutMs = 15_000): Promise<T> {
-	const until = Date.now() + timeoutMs;
-	for (;;) {
-		const value = await fn();
-		if (value) return value;
-		if (Date.now() > until) throw new Error(`timed out waiting for ${what}`);
-		await new Promise((r) => setTimeout(r, 100));
-	}
-}
 
 type Mail = { to: string[]; subject: string; text: string; html?: string };
 
