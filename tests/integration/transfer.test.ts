@@ -1,6 +1,8 @@
 // Export and import over the real server: row counts against what was stored, a round trip
 // export → import that keeps every wire field, refusals that name their lines and store nothing,
 // gap filling, and who may import.
+import { readdirSync } from 'node:fs';
+import path from 'node:path';
 import { csvParse } from 'd3-dsv';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { RUN, frame, startAgent, type TestAgent } from './support/agent-socket';
@@ -187,5 +189,20 @@ describe('import', () => {
 		const anonymous = await fetch(`${server.url}/api/setups/${seeded.setupId}/import`, { method: 'POST', headers: { origin: server.url } });
 		expect(anonymous.status).toBe(401);
 		expect((await postImport(operator, '')).status).toBe(400);
+	});
+
+	it('names a missing file field, and leaves no spooled upload in the data folder', async () => {
+		const form = new FormData();
+		form.set('runKey', 'no-file');
+		const encoded = new Request('http://encode.invalid/', { method: 'POST', body: form });
+		const res = await operator(`/api/setups/${seeded.setupId}/import`, {
+			method: 'POST',
+			body: await encoded.arrayBuffer(),
+			headers: { 'content-type': encoded.headers.get('content-type')! }
+		});
+		expect(res.status).toBe(400);
+		expect((await res.json()).message).toMatch(/field "file" is missing/);
+		// Every import above (stored, refused or failed) spooled its file here and must have removed it.
+		expect(readdirSync(path.join(seeded.dataDir, 'uploads'))).toEqual([]);
 	});
 });

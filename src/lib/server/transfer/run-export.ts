@@ -3,11 +3,11 @@
 // a pull stream, and the next page is read only when the client has taken the previous one.
 import { and, count, eq, gt, gte, isNotNull, lt, lte, max, min, sql, type SQL } from 'drizzle-orm';
 import { bucketStart, ROLLUP_RESOLUTIONS_S } from '../../rollup/rollup';
-import { csvLines, frameCsvCells, frameCsvHeader, type FrameCsvLayout } from '../../transfer/frame-csv';
+import { csvLines, frameCsvHeader, type FrameCsvLayout } from '../../transfer/frame-csv';
 import type { Db } from '../db';
 import { frameRollups, frames } from '../db/schema';
 import type { RunRow } from '../runs/service';
-import { framePages } from '../runs/frame-pages';
+import { csvLineSql, frameTextPages, ndjsonLineSql } from './frame-text-pages';
 
 /** Agent-time span [from_ms, to_ms): either end open when left out. */
 export interface ExportSpan {
@@ -15,11 +15,10 @@ export interface ExportSpan {
 	to_ms?: number;
 }
 
-// Short pages keep each page's objects short-lived (garbage the scavenger frees young). CSV rows
-// leave out IQ, NDJSON lines carry it (up to 64×64 counts each), hence the shorter NDJSON page.
-// tests/bench/export-memory measures the server's peak RSS over idle; its readings vary by run.
-const CSV_PAGE_ROWS = 500;
-const NDJSON_PAGE_ROWS = 250;
+// Each page is one text value the database builds (frame-text-pages.ts): a few hundred kB of
+// CSV, or of NDJSON with its IQ histograms (up to 64×64 counts a line), hence the shorter page.
+const CSV_PAGE_ROWS = 2000;
+const NDJSON_PAGE_ROWS = 500;
 const COARSEST_S = Math.max(...ROLLUP_RESOLUTIONS_S);
 const FINEST_S = Math.min(...ROLLUP_RESOLUTIONS_S);
 
@@ -75,18 +74,13 @@ export async function exportFrameCount(db: Db, run: Pick<RunRow, 'id' | 'frameCo
 export async function* runCsv(db: Db, runId: string, range: SeqRange | null, layout: FrameCsvLayout, span: ExportSpan): AsyncGenerator<string> {
 	yield csvLines([frameCsvHeader(layout)]);
 	if (!range) return;
-	const pages = framePages(db, runId, { withoutIq: true, pageSize: CSV_PAGE_ROWS, ...range, fromT: span.from_ms, toT: span.to_ms });
-	for await (const page of pages) {
-		yield csvLines(page.map((stored) => frameCsvCells(layout, stored)));
-	}
+	yield* frameTextPages(db, runId, csvLineSql(layout), { ...range, fromT: span.from_ms, toT: span.to_ms }, CSV_PAGE_ROWS);
 }
 
 /** One wire-format frame per line, exactly as an agent sends it (iq included), ready to replay or import. */
 export async function* runNdjson(db: Db, runId: string, range: SeqRange | null, span: ExportSpan): AsyncGenerator<string> {
 	if (!range) return;
-	for await (const page of framePages(db, runId, { pageSize: NDJSON_PAGE_ROWS, ...range, fromT: span.from_ms, toT: span.to_ms })) {
-		yield page.map((stored) => JSON.stringify(stored.frame) + '\n').join('');
-	}
+	yield* frameTextPages(db, runId, ndjsonLineSql(), { ...range, fromT: span.from_ms, toT: span.to_ms }, NDJSON_PAGE_ROWS);
 }
 
 /** A file name people recognise: the run key, and the span when there is one; ASCII only. */

@@ -1,38 +1,43 @@
 // Import of an NDJSON frame file into a run of the setup. Answers JSON when done; with ?progress=1
 // it answers a stream of NDJSON progress lines instead (for the setup page's progress bar), ending
-// in {"outcome": …} or {"refused": {status, message, lines}}.
+// in {"outcome": …} or {"refused": {status, message, lines}}. The upload is spooled to the data folder
+// as it arrives (upload-spool.ts), never held in memory whole.
 import { error } from '@sveltejs/kit';
 import { describeZodError } from '$lib/protocol/messages';
 import { json, requireRole } from '$lib/server/http/guard';
 import { getRuntime } from '$lib/server/runtime';
 import { ImportRefused, importFrameFile, runKeySchema, type ImportPhase } from '$lib/server/transfer/import-frames';
+import { spoolUpload, UploadRefused, type SpooledUpload } from '$lib/server/transfer/upload-spool';
 import type { RequestHandler } from './$types';
 
-async function readForm(request: Request) {
-	let form: FormData;
+async function readUpload(request: Request, dataDir: string) {
+	let upload: SpooledUpload;
 	try {
-		form = await request.formData();
-	} catch {
-		error(400, 'send the file as multipart/form-data with a field "file"');
+		upload = await spoolUpload(request, dataDir);
+	} catch (err) {
+		if (err instanceof UploadRefused) error(400, err.message);
+		throw err;
 	}
-	const file = form.get('file');
-	if (!(file instanceof Blob)) error(400, 'field "file" is missing: choose an NDJSON file of frames');
-	const rawKey = form.get('runKey');
+	const rawKey = upload.fields.runKey;
 	let runKey: string | undefined;
 	if (typeof rawKey === 'string' && rawKey.trim() !== '') {
 		const parsed = runKeySchema.safeParse(rawKey);
-		if (!parsed.success) error(400, describeZodError(parsed.error, 'runKey'));
+		if (!parsed.success) {
+			upload.discard();
+			error(400, describeZodError(parsed.error, 'runKey'));
+		}
 		runKey = parsed.data;
 	}
-	return { file, runKey, fileName: file instanceof File ? file.name : 'upload' };
+	return { upload, runKey };
 }
 
 const refusal = (err: ImportRefused) => ({ status: err.status, message: err.message, lines: err.lines });
 
 export const POST: RequestHandler = async (event) => {
 	requireRole(event, 'operator');
-	const { file, runKey, fileName } = await readForm(event.request);
 	const runtime = await getRuntime();
+	const { upload, runKey } = await readUpload(event.request, runtime.config.dataDir);
+	const { file, fileName } = upload;
 	const setupId = event.params.id;
 	if (!event.url.searchParams.has('progress')) {
 		try {
@@ -40,6 +45,8 @@ export const POST: RequestHandler = async (event) => {
 		} catch (err) {
 			if (err instanceof ImportRefused) return json({ message: err.message, lines: err.lines }, { status: err.status });
 			throw err;
+		} finally {
+			upload.discard();
 		}
 	}
 	const encoder = new TextEncoder();
@@ -55,6 +62,8 @@ export const POST: RequestHandler = async (event) => {
 					console.error('import failed', err);
 					send({ refused: { status: 500, message: 'the import failed on the server; see its log', lines: [] } });
 				}
+			} finally {
+				upload.discard();
 			}
 			controller.close();
 		}
