@@ -21,13 +21,17 @@ export interface NewDelivery {
 	dedupeKey: string;
 }
 
-/** Inserts the deliveries not queued already; returns how many were new. */
-export async function enqueue(tx: Tx | Db, deliveries: NewDelivery[], now: Date = new Date()): Promise<number> {
+/**
+ * Inserts the deliveries not queued already; returns how many were new. `notBefore` holds them
+ * back until then (a group's first page waits for the rest of its group, see oncall/paging.ts).
+ */
+export async function enqueue(tx: Tx | Db, deliveries: NewDelivery[], now: Date = new Date(), notBefore: Date = now): Promise<number> {
 	if (deliveries.length === 0) return 0;
 	const expiresAt = new Date(now.getTime() + outboxExpiry_ms());
+	const nextAttemptAt = notBefore.getTime() > now.getTime() ? notBefore : now;
 	const inserted = await tx
 		.insert(outbox)
-		.values(deliveries.map((d) => ({ id: randomUUID(), ...d, incidentId: d.incidentId ?? null, nextAttemptAt: now, expiresAt, createdAt: now })))
+		.values(deliveries.map((d) => ({ id: randomUUID(), ...d, incidentId: d.incidentId ?? null, nextAttemptAt, expiresAt, createdAt: now })))
 		.onConflictDoNothing({ target: outbox.dedupeKey })
 		.returning({ id: outbox.id });
 	return inserted.length;
@@ -38,9 +42,16 @@ type IncidentNoticeSource = Pick<IncidentRow, 'id' | 'setupId' | 'runId' | 'kind
 /**
  * The notices for an incident that opened (`alert`) or resolved (`clear`): e-mail and every push
  * device of each recipient, a text for critical alerts to a verified number, and each webhook of
- * the setup. `step` is the escalation step (0 when the incident opens).
+ * the setup. `step` is the escalation step (0 when the incident opens); `notBefore` holds them back.
  */
-export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNoticeSource, kind: 'alert' | 'clear', step = 0, extra: Record<string, unknown> = {}): Promise<number> {
+export async function queueIncidentNotices(
+	tx: Tx | Db,
+	incident: IncidentNoticeSource,
+	kind: 'alert' | 'clear',
+	step = 0,
+	extra: Record<string, unknown> = {},
+	{ notBefore }: { notBefore?: Date } = {}
+): Promise<number> {
 	const now = new Date();
 	// Silences and personal preferences (src/lib/server/alerting) decide before any row is written.
 	if (await noticeSilenced(tx, incident, kind, step, now)) return 0;
@@ -73,5 +84,5 @@ export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNotice
 		if (phones.some((p) => p.userId === person.id) && allows(person.id, 'sms')) deliveries.push(row('sms', person.id));
 	}
 	for (const hook of hooks) deliveries.push(row('webhook', hook.id));
-	return enqueue(tx, deliveries, now);
+	return enqueue(tx, deliveries, now, notBefore ?? now);
 }
