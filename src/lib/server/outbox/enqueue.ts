@@ -6,6 +6,7 @@ import type { Db, Tx } from '../db';
 import { outbox, phoneNumbers, pushSubscriptions, setupWebhooks, type OutboxChannel } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
 import { allowedChannels, noticeSilenced } from '../alerting/notice-filter';
+import { pagingNow } from '../oncall/clock';
 import { chooseRecipients } from './recipients';
 import { outboxExpiry_ms } from './settings';
 
@@ -57,7 +58,8 @@ export async function queueIncidentNotices(
 	if (await noticeSilenced(tx, incident, kind, step, now)) return 0;
 	const people = await chooseRecipients(tx, incident, step);
 	const ids = people.map((p) => p.id);
-	const allows = await allowedChannels(tx, ids, incident.severity, kind, now);
+	// Quiet hours are read on the paging clock (the wall clock, unless a test sets it), like the rota.
+	const allows = await allowedChannels(tx, ids, incident.severity, kind, pagingNow());
 	const [devices, phones, hooks] = await Promise.all([
 		ids.length
 			? tx.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId }).from(pushSubscriptions).where(inArray(pushSubscriptions.userId, ids))
