@@ -16,6 +16,7 @@
 // critical, a person whose quiet hours held back the warning), never a second e-mail or push.
 import { and, eq, inArray, ne } from 'drizzle-orm';
 import { moreSevere, nextEscalation, type Severity } from '../../oncall/escalation';
+import { kindLabel } from '../../incidents/kinds';
 import type { Db, Tx } from '../db';
 import { escalations, incidentEvents, incidents } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
@@ -131,6 +132,20 @@ async function pageRaisedGroup(tx: Tx | Db, head: IncidentRow, severity: Severit
 		note: `paged ${names(people)} at ${now.toISOString()} as ${severity} (a ${severity} incident joined the group)`,
 		data: { step: 0, to: people.map((p) => p.id), at: now.toISOString(), raisedTo: severity, notices: added }
 	});
+}
+
+/**
+ * The clear notice of a resolved incident. A group cleared once, like it paged once: nothing while
+ * another member is still unresolved, and when the last one resolves, one notice for the incident
+ * that paged (the head), which says the whole group has cleared. An incident alone clears as itself.
+ */
+export async function queueClearNotice(tx: Tx | Db, row: IncidentRow, clearedSummary: string): Promise<number> {
+	const group = await incidentGroup(tx, row.id);
+	if (group.length < 2) return queueIncidentNotices(tx, row, 'clear', 0, { clearedSummary });
+	if (group.some((m) => m.state !== 'resolved')) return 0;
+	const [head] = await tx.select().from(incidents).where(eq(incidents.id, group.find((m) => m.head)!.id));
+	const summary = `All ${group.length} incidents of this group have cleared; the last: ${kindLabel(row.kind)}: ${clearedSummary}`;
+	return queueIncidentNotices(tx, head, 'clear', 0, { clearedSummary: summary, groupCleared: group.length });
 }
 
 /** Acknowledging any incident of a group stops the group's escalation; resolving stops (or hands on) its own. */

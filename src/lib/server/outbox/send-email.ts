@@ -42,7 +42,8 @@ async function render(db: Db, row: OutboxRow, appOrigin: string): Promise<Render
 			run: ctx.run,
 			setup: ctx.setup,
 			appOrigin,
-			cleared: { at: ctx.incident.resolvedAt ?? row.createdAt, summary: String(p.clearedSummary ?? 'The condition has cleared.') }
+			// A group's notice is queued when its last member resolved: that moment, not the head's.
+			cleared: { at: p.groupCleared ? row.createdAt : (ctx.incident.resolvedAt ?? row.createdAt), summary: String(p.clearedSummary ?? 'The condition has cleared.') }
 		});
 	}
 	// An alert pages for its whole group: it leads with the group's most telling incident and lists
