@@ -145,7 +145,9 @@ export async function queueClearNotice(tx: Tx | Db, row: IncidentRow, clearedSum
 	if (group.some((m) => m.state !== 'resolved')) return 0;
 	const [head] = await tx.select().from(incidents).where(eq(incidents.id, group.find((m) => m.head)!.id));
 	const summary = `All ${group.length} incidents of this group have cleared; the last: ${kindLabel(row.kind)}: ${clearedSummary}`;
-	return queueIncidentNotices(tx, head, 'clear', 0, { clearedSummary: summary, groupCleared: group.length });
+	// At the group's severity, as it paged: whoever the page reached (a critical through quiet hours) hears it cleared.
+	const severity = group.reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
+	return queueIncidentNotices(tx, { ...head, severity }, 'clear', 0, { clearedSummary: summary, groupCleared: group.length });
 }
 
 /** Acknowledging any incident of a group stops the group's escalation; resolving stops (or hands on) its own. */
