@@ -28,3 +28,9 @@ export const demoSetups = [
 		members: ['mei.lindqvist@aldermoor.example']
 	}
 ] as const;
+
+/** The rota of the first setup, in order: the first is on call now, the second backs them up. */
+export const demoOnCall = [
+	{ email: 'tomas.okafor@aldermoor.example', name: 'Tomás Okafor', phone: '+447700900431' },
+	{ email: 'mei.lindqvist@aldermoor.example', name: 'Mei Lindqvist', phone: '+447700900817' }
+] as const;

@@ -8,18 +8,21 @@ import { createAuth } from '../lib/server/auth/options';
 import { loadAuthSecret } from '../lib/server/auth/secret';
 import { dataDirHolder, lockDataDir, unlockDataDir } from '../lib/server/data-lock';
 import { DEMO_DATA_ENV, prepareDemoFolder } from '../lib/server/demo/data-folder';
+import { DEMO_CRITICAL_ACK_MIN, seedDemoOnCall } from '../lib/server/demo/on-call';
 import { openDatabase } from '../lib/server/db';
 import { user } from '../lib/server/db/schema';
 import { saveRateModel } from '../lib/server/models/rate-models';
 import { addMember, createSetup } from '../lib/server/setups/service';
 import { createAgentToken } from '../lib/server/setups/tokens';
-import { DEMO_PASSWORD, demoPeople, demoSetups } from './demo-lab';
+import { DEMO_PASSWORD, demoOnCall, demoPeople, demoSetups } from './demo-lab';
 
 const root = path.resolve(import.meta.dirname, '../..');
 // Never PHASEWARDEN_DATA: someone who exported it for production must not have it cleared by a demo.
 const dataDir = path.resolve(process.env[DEMO_DATA_ENV] || path.join(root, '.data/demo'));
 const port = Number(process.env.PORT ?? 3000);
 const origin = process.env.ORIGIN ?? `http://localhost:${port}`;
+// Simulated seconds per real second (tests run the demo faster; a person watching it wants 1).
+const speed = process.env.PHASEWARDEN_DEMO_SPEED ?? '1';
 
 async function seed(): Promise<string> {
 	lockDataDir(dataDir);
@@ -38,6 +41,9 @@ async function seed(): Promise<string> {
 				// The simulated oscillator switches 0.05 times a second while locked: W0·e^{−A} at base temperature.
 				const model = { process: 'switching' as const, W0_per_s: 0.05 * Math.exp(3), A: 3, W0_sigma: 0.1, A_sigma: 0.1, mode_GHz: 5, nominal_mK: 12, source: 'manual' as const };
 				await saveRateModel(db, setup.id, model, admin.id, 'demo: from an earlier cooldown of this line');
+				// Exactly one person is woken by the lock loss; the next in the rota if they sleep on.
+				const people = demoOnCall.map((p) => ({ id: ids.get(p.email)!, phone: p.phone }));
+				await seedDemoOnCall(db, setup.id, people, admin.id);
 			}
 		}
 		return secret;
@@ -80,6 +86,26 @@ const env = { ...process.env, PHASEWARDEN_DATA: dataDir, PHASEWARDEN_CATCHER: '1
 const server = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });
 await waitForServer(`http://127.0.0.1:${port}/api/health`, server);
 
+/**
+ * Each person on the rota gets a simulated phone on the push catcher, as if they had subscribed
+ * from their settings page: the catcher lives in the server process, so this happens over HTTP.
+ */
+async function subscribeDemoDevices() {
+	const base = `http://127.0.0.1:${port}`;
+	for (const { email } of demoOnCall) {
+		const signIn = await fetch(`${base}/api/auth/sign-in/email`, {
+			method: 'POST',
+			headers: { 'content-type': 'application/json', origin },
+			body: JSON.stringify({ email, password: DEMO_PASSWORD })
+		});
+		if (!signIn.ok) throw new Error(`demo: sign-in as ${email} failed (${signIn.status})`);
+		const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+		const device = await fetch(`${base}/api/dev/push/devices`, { method: 'POST', headers: { origin, cookie } });
+		if (!device.ok) throw new Error(`demo: could not add a push device for ${email} (${device.status} ${await device.text()})`);
+	}
+}
+await subscribeDemoDevices();
+
 const tsx = path.join(root, 'node_modules/.bin/tsx');
 const agent = spawn(
 	tsx,
@@ -95,7 +121,8 @@ const agent = spawn(
 		// IQ histograms so the run page's phase-space picture shows the state lobes.
 		'--iq-bins', '24',
 		'--spool', path.join(dataDir, 'agent-spool.ndjson'),
-		'--seed', '7'
+		'--seed', '7',
+		'--speed', speed
 	],
 	{ env: process.env, stdio: ['ignore', 'inherit', 'inherit'] }
 );
@@ -107,6 +134,7 @@ Phasewarden demo — the Aldermoor low-temperature lab
   password        ${DEMO_PASSWORD}
   caught messages ${origin}/dev/inbox (e-mail, push, texts; signed in as an operator or admin)
   data            ${dataDir}
+  on call         ${demoOnCall[0].name} (push, text ${demoOnCall[0].phone}, e-mail); ${demoOnCall[1].name} after ${DEMO_CRITICAL_ACK_MIN} min without an acknowledgement
 A simulated agent streams run "T6 overnight" on Fridge Bramble; it loses lock after one minute.
 Ctrl-C stops everything.
 `);

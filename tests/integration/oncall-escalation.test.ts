@@ -95,6 +95,12 @@ describe('on call, grouping and escalation', () => {
 			return alerts.length ? alerts : null;
 		});
 		expect(mail.map((m: { to: string[] }) => m.to[0])).toEqual(['operator@lab.test']);
+		// The one page names every incident of the group, including those that opened after the first
+		// (it was held for the gathering window, PHASEWARDEN_GROUP_GATHER_S in support/server.ts).
+		const text = (mail[0].text as string).replace(/\s+/g, ' ');
+		expect(text).toContain('In this alert');
+		for (const label of ['Lock lost, critical', 'Switching burst', 'Aux limit, warning']) expect(text).toContain(label);
+		expect(mail[0].subject).toMatch(new RegExp(`^\\[Phasewarden\\] Critical: Lock lost and ${incidents.length - 1} related on `));
 
 		// Nine minutes on: nothing new. Ten: the secondary is paged.
 		const at9 = await (await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 9 * MINUTE }) })).json();

@@ -112,6 +112,8 @@ export async function startServer(dataDir: string, port?: number, extraEnv: Reco
 			PHASEWARDEN_CATCHER: '1',
 			PHASEWARDEN_CATCHER_PORT: '0',
 			PHASEWARDEN_SILENCE_CHECK_MS: '300',
+			// A group's first page waits this long for the rest of its group (10 s in production).
+			PHASEWARDEN_GROUP_GATHER_S: '2',
 			// No morning report crosses a test by accident; the report test turns them on.
 			PHASEWARDEN_REPORTS: '0',
 			BETTER_AUTH_SECRET: SECRET,

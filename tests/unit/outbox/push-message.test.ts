@@ -57,4 +57,21 @@ describe('pushMessage', () => {
 		expect(clear.body).toBe('Lock is back.');
 		expect(clear.actions).toEqual([]);
 	});
+
+	it('leads a group’s alert with its most severe incident, names the others, and acknowledges the paged one', () => {
+		// The burst opened first and heads the group (the delivery belongs to it); the lost lock came later.
+		const head = { ...ctx, incident: { id: 'inc-1', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s' } } as unknown as IncidentContext;
+		const group = [
+			{ id: 'inc-1', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s', openedAt: at, head: true },
+			{ id: 'inc-2', kind: 'lock_lost', severity: 'critical', summary: 'Lock quality fell below 0.5', openedAt: new Date(at.getTime() + 4000) },
+			{ id: 'inc-3', kind: 'occupancy_imbalance', severity: 'warning', summary: 'state 2 holds 61 %', openedAt: new Date(at.getTime() + 2000) }
+		];
+		const m = pushMessage(row('alert', { userId: 'user-7' }), head, 'https://pw.lab.example', group);
+		expect(m.title.startsWith('Critical: Lock lost · Bramble')).toBe(true);
+		expect(m.body).toBe('Lock quality fell below 0.5 — and 2 related: switching burst, occupancy imbalance');
+		expect(m.url).toBe('https://pw.lab.example/incidents/inc-2');
+		expect(m.tag).toBe('inc-1');
+		const verdict = verifyAckToken('unit-test-secret', m.actions[0].url.split('/ack/')[1], at.getTime());
+		expect(verdict.ok && verdict.claims.incidentId).toBe('inc-1');
+	});
 });

@@ -70,3 +70,23 @@ export const escalations = pgTable(
 	},
 	(t) => [index('escalations_due_idx').on(t.dueAt)]
 );
+
+/**
+ * A group of setups on one rota: this setup is covered by the rota (and escalation policy) of
+ * `rotaSetupId` instead of its own — the fridges of one lab that the same people look after.
+ * One level only: a setup that others follow does not itself follow one.
+ */
+export const rotaShares = pgTable(
+	'rota_shares',
+	{
+		setupId: text('setup_id')
+			.primaryKey()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		rotaSetupId: text('rota_setup_id')
+			.notNull()
+			.references(() => setups.id, { onDelete: 'cascade' }),
+		createdAt: at('created_at').notNull().defaultNow(),
+		createdBy: text('created_by').references(() => user.id, { onDelete: 'set null' })
+	},
+	(t) => [index('rota_shares_rota_setup_idx').on(t.rotaSetupId)]
+);

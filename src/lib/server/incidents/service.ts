@@ -6,8 +6,7 @@ import { z } from 'zod';
 import { safeText } from '../../protocol/safe-text';
 import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
-import { pageOrGroup, stopPaging } from '../oncall/paging';
-import { queueIncidentNotices } from '../outbox/enqueue';
+import { pageOrGroup, queueClearNotice, stopPaging } from '../oncall/paging';
 
 export type IncidentRow = typeof incidents.$inferSelect;
 
@@ -76,7 +75,7 @@ export async function clearCondition(
 		data: { seq: c.seq ?? null, evidence: c.evidence }
 	});
 	await stopPaging(tx, updated, 'resolved');
-	await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: c.summary });
+	await queueClearNotice(tx, updated, c.summary);
 	return updated;
 }
 
@@ -118,7 +117,7 @@ export async function resolveIncident(db: Db, id: string, actorId: string, note?
 			.returning();
 		await tx.insert(incidentEvents).values({ incidentId: id, action: 'resolved', actorId, note: note || null });
 		await stopPaging(tx, updated, 'resolved');
-		await queueIncidentNotices(tx, updated, 'clear', 0, { clearedSummary: note ? `Resolved by hand: ${note}` : 'Resolved by hand.' });
+		await queueClearNotice(tx, updated, note ? `Resolved by hand: ${note}` : 'Resolved by hand.');
 		return updated;
 	});
 }

@@ -2,6 +2,7 @@
 // subject, plain text and HTML out. What happened is told in the same sentences as on the
 // incident page ($lib/incidents/describe), never as the detector's field names.
 import { describeIncident, type Description } from '../../incidents/describe';
+import type { GroupMember } from '../../incidents/group-message';
 import { kindLabel } from '../../incidents/kinds';
 
 export type IncidentForEmail = {
@@ -22,6 +23,11 @@ export type IncidentEmailInput = {
 	appOrigin: string;
 	/** A one-tap acknowledge link; alerts carry one, clear notices do not. */
 	acknowledgeUrl?: string;
+	/**
+	 * Every incident of the group this alert pages for (one cause, one page), `incident` among
+	 * them; absent or of one member when the incident opened alone.
+	 */
+	group?: GroupMember[];
 };
 
 export type ClearedEmailInput = IncidentEmailInput & {
@@ -87,7 +93,26 @@ function descriptionText(d: Description, version: number | undefined): string[] 
 	return lines;
 }
 
+const GROUP_HEADING = 'In this alert (opened together on this run, one page for all)';
+
+function groupLine(m: GroupMember): string {
+	const opened = toDate(m.openedAt, 'group member openedAt').toISOString();
+	return `${kindLabel(m.kind)}, ${m.severity}, opened ${opened}: ${oneLine(m.summary)}`;
+}
+
+function groupText(group: GroupMember[]): string[] {
+	if (group.length < 2) return [];
+	return ['', GROUP_HEADING, ...group.flatMap((m) => wrap(`- ${groupLine(m)}`).map((l, i) => (i === 0 ? l : `  ${l}`)))];
+}
+
 // ---- HTML -------------------------------------------------------------------------------------
+
+function groupHtml(group: GroupMember[]): string {
+	if (group.length < 2) return '';
+	return `<h2 style="font-size:15px;margin:20px 0 6px">${escapeHtml(GROUP_HEADING)}</h2><ul style="margin:0;padding-left:20px">${group
+		.map((m) => `<li style="margin:0 0 4px">${escapeHtml(groupLine(m))}</li>`)
+		.join('')}</ul>`;
+}
 
 const cell = 'padding:3px 10px;border-bottom:1px solid #d8dde3;text-align:left;font-variant-numeric:tabular-nums';
 
@@ -121,7 +146,9 @@ function compose(
 		: describeIncident({ kind: incident.kind, key: incident.key, evidence: opts.evidence, setupName, runName });
 	const version = typeof opts.evidence.version === 'number' ? opts.evidence.version : undefined;
 
-	const subject = `[Phasewarden] ${opts.subjectTag}: ${kind} on ${setupName}, run ${runName}`;
+	const group = input.group ?? [];
+	const more = group.length > 1 ? ` and ${group.length - 1} related` : '';
+	const subject = `[Phasewarden] ${opts.subjectTag}: ${kind}${more} on ${setupName}, run ${runName}`;
 
 	const facts: [string, string][] = [
 		['Setup', setupName],
@@ -135,6 +162,7 @@ function compose(
 		...alignRows(facts, ''),
 		'',
 		...descriptionText(said, version),
+		...groupText(group),
 		'',
 		`Open the incident: ${link}`,
 		...(input.acknowledgeUrl ? [`Acknowledge: ${input.acknowledgeUrl}`] : []),
@@ -152,6 +180,7 @@ function compose(
 				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
 				.join('')}</table>`,
 			descriptionHtml(said, version),
+			groupHtml(group),
 			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
 			input.acknowledgeUrl ? `<p style="margin:0 0 18px"><a href="${escapeHtml(input.acknowledgeUrl)}">Acknowledge</a> <span style="color:#5a6573">(one tap, works once)</span></p>` : '',
 			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`

@@ -1,7 +1,22 @@
 // What happens to alerts when an incident opens, is acknowledged or resolves: grouping, the first
 // page (step 0) and the escalation timer, all in the caller's transaction so they commit with it.
+//
+// One cause, one page. A lock loss opens several incidents within seconds (a burst, the occupancy,
+// the drift, the lock itself), in no fixed order. The first to open heads the group and queues its
+// page, but the page is held for a short gathering window (PHASEWARDEN_GROUP_GATHER_S, 10 s by
+// default) before the worker may send it; incidents that join meanwhile queue nothing of their own,
+// and every channel renders the group as it stands at send time (outbox/incident-context.ts), so
+// each person gets ONE notification per channel that names them all. We hold rather than send at
+// once and follow up, because a second message seconds later is exactly the noise grouping is for,
+// and a sent e-mail or text cannot be amended; ten seconds is small next to the minutes anyone
+// needs to reach a cryostat. A member that joins later than the window is still linked to the
+// group (the window below is 60 s) and shows on the incident pages and in escalations, but does
+// not page again — unless it makes the group more severe: then the head's first page is queued
+// again at the new severity, and the dedupe keys let through only what is new (a text for a
+// critical, a person whose quiet hours held back the warning), never a second e-mail or push.
 import { and, eq, inArray, ne } from 'drizzle-orm';
 import { moreSevere, nextEscalation, type Severity } from '../../oncall/escalation';
+import { kindLabel } from '../../incidents/kinds';
 import type { Db, Tx } from '../db';
 import { escalations, incidentEvents, incidents } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
@@ -29,6 +44,17 @@ async function headOf(tx: Tx | Db, id: string): Promise<typeof incidents.$inferS
 	}
 	return current ?? null;
 }
+
+/** How long a group's first page waits for the rest of its group (PHASEWARDEN_GROUP_GATHER_S). */
+export function gatherWindow_ms(env: NodeJS.ProcessEnv = process.env): number {
+	const raw = env.PHASEWARDEN_GROUP_GATHER_S;
+	const s = raw === undefined || raw === '' ? 10 : Number(raw);
+	if (!Number.isFinite(s) || s < 0) throw new RangeError(`PHASEWARDEN_GROUP_GATHER_S must be a number of seconds ≥ 0, got ${raw}`);
+	return s * 1000;
+}
+
+/** The held page of a group headed by `head` may go out from this instant (the outbox's clock is the wall clock). */
+const gatherUntil = (head: Pick<IncidentRow, 'openedAt'>) => new Date(Math.max(Date.now(), head.openedAt.getTime() + gatherWindow_ms()));
 
 const names = (people: { name: string }[]) => people.map((p) => p.name).join(', ') || 'nobody';
 
@@ -75,15 +101,53 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 		const [linked] = await tx.update(incidents).set({ causeIncidentId: cause.id }).where(eq(incidents.id, row.id)).returning();
 		await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'grouped', note: `grouped with ${cause.kind}; notifies nobody separately`, data: { causeIncidentId: cause.id, reason } });
 		const head = await headOf(tx, cause.id);
-		if (head) await raiseGroupSeverity(tx, head, row.severity, now);
+		if (head) {
+			const before = (await incidentGroup(tx, head.id)).filter((m) => m.id !== row.id).reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
+			await raiseGroupSeverity(tx, head, row.severity, now);
+			if (moreSevere(before, row.severity) !== before) await pageRaisedGroup(tx, head, row.severity, now);
+		}
 		return linked;
 	}
 	const people = await chooseRecipients(tx, row, 0);
-	await queueIncidentNotices(tx, row, 'alert', 0);
+	await queueIncidentNotices(tx, row, 'alert', 0, {}, { notBefore: gatherUntil(row) });
 	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'paged', note: `paged ${names(people)} at ${now.toISOString()}`, data: { step: 0, to: people.map((p) => p.id), at: now.toISOString() } });
 	const next = nextEscalation(await getPolicy(tx, row.setupId), row.severity, 0, now.getTime());
 	if (next) await tx.insert(escalations).values({ incidentId: row.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity: row.severity });
 	return row;
+}
+
+/**
+ * A more severe incident joined the group: the head's first page again at that severity. Only the
+ * channels and people the lower severity left out are new rows (same dedupe keys otherwise); they
+ * go out with the held page, or at once when it has gone already.
+ */
+async function pageRaisedGroup(tx: Tx | Db, head: IncidentRow, severity: Severity, now: Date) {
+	if (head.state === 'resolved') return;
+	const added = await queueIncidentNotices(tx, { ...head, severity }, 'alert', 0, { raisedTo: severity }, { notBefore: gatherUntil(head) });
+	if (added === 0) return;
+	const people = await chooseRecipients(tx, { ...head, severity }, 0);
+	await tx.insert(incidentEvents).values({
+		incidentId: head.id,
+		action: 'paged',
+		note: `paged ${names(people)} at ${now.toISOString()} as ${severity} (a ${severity} incident joined the group)`,
+		data: { step: 0, to: people.map((p) => p.id), at: now.toISOString(), raisedTo: severity, notices: added }
+	});
+}
+
+/**
+ * The clear notice of a resolved incident. A group cleared once, like it paged once: nothing while
+ * another member is still unresolved, and when the last one resolves, one notice for the incident
+ * that paged (the head), which says the whole group has cleared. An incident alone clears as itself.
+ */
+export async function queueClearNotice(tx: Tx | Db, row: IncidentRow, clearedSummary: string): Promise<number> {
+	const group = await incidentGroup(tx, row.id);
+	if (group.length < 2) return queueIncidentNotices(tx, row, 'clear', 0, { clearedSummary });
+	if (group.some((m) => m.state !== 'resolved')) return 0;
+	const [head] = await tx.select().from(incidents).where(eq(incidents.id, group.find((m) => m.head)!.id));
+	const summary = `All ${group.length} incidents of this group have cleared; the last: ${kindLabel(row.kind)}: ${clearedSummary}`;
+	// At the group's severity, as it paged: whoever the page reached (a critical through quiet hours) hears it cleared.
+	const severity = group.reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
+	return queueIncidentNotices(tx, { ...head, severity }, 'clear', 0, { clearedSummary: summary, groupCleared: group.length });
 }
 
 /** Acknowledging any incident of a group stops the group's escalation; resolving stops (or hands on) its own. */

@@ -6,6 +6,7 @@ import type { Db, Tx } from '../db';
 import { outbox, phoneNumbers, pushSubscriptions, setupWebhooks, type OutboxChannel } from '../db/schema';
 import type { IncidentRow } from '../incidents/service';
 import { allowedChannels, noticeSilenced } from '../alerting/notice-filter';
+import { pagingNow } from '../oncall/clock';
 import { chooseRecipients } from './recipients';
 import { outboxExpiry_ms } from './settings';
 
@@ -21,13 +22,17 @@ export interface NewDelivery {
 	dedupeKey: string;
 }
 
-/** Inserts the deliveries not queued already; returns how many were new. */
-export async function enqueue(tx: Tx | Db, deliveries: NewDelivery[], now: Date = new Date()): Promise<number> {
+/**
+ * Inserts the deliveries not queued already; returns how many were new. `notBefore` holds them
+ * back until then (a group's first page waits for the rest of its group, see oncall/paging.ts).
+ */
+export async function enqueue(tx: Tx | Db, deliveries: NewDelivery[], now: Date = new Date(), notBefore: Date = now): Promise<number> {
 	if (deliveries.length === 0) return 0;
 	const expiresAt = new Date(now.getTime() + outboxExpiry_ms());
+	const nextAttemptAt = notBefore.getTime() > now.getTime() ? notBefore : now;
 	const inserted = await tx
 		.insert(outbox)
-		.values(deliveries.map((d) => ({ id: randomUUID(), ...d, incidentId: d.incidentId ?? null, nextAttemptAt: now, expiresAt, createdAt: now })))
+		.values(deliveries.map((d) => ({ id: randomUUID(), ...d, incidentId: d.incidentId ?? null, nextAttemptAt, expiresAt, createdAt: now })))
 		.onConflictDoNothing({ target: outbox.dedupeKey })
 		.returning({ id: outbox.id });
 	return inserted.length;
@@ -38,15 +43,23 @@ type IncidentNoticeSource = Pick<IncidentRow, 'id' | 'setupId' | 'runId' | 'kind
 /**
  * The notices for an incident that opened (`alert`) or resolved (`clear`): e-mail and every push
  * device of each recipient, a text for critical alerts to a verified number, and each webhook of
- * the setup. `step` is the escalation step (0 when the incident opens).
+ * the setup. `step` is the escalation step (0 when the incident opens); `notBefore` holds them back.
  */
-export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNoticeSource, kind: 'alert' | 'clear', step = 0, extra: Record<string, unknown> = {}): Promise<number> {
+export async function queueIncidentNotices(
+	tx: Tx | Db,
+	incident: IncidentNoticeSource,
+	kind: 'alert' | 'clear',
+	step = 0,
+	extra: Record<string, unknown> = {},
+	{ notBefore }: { notBefore?: Date } = {}
+): Promise<number> {
 	const now = new Date();
 	// Silences and personal preferences (src/lib/server/alerting) decide before any row is written.
 	if (await noticeSilenced(tx, incident, kind, step, now)) return 0;
 	const people = await chooseRecipients(tx, incident, step);
 	const ids = people.map((p) => p.id);
-	const allows = await allowedChannels(tx, ids, incident.severity, kind, now);
+	// Quiet hours are read on the paging clock (the wall clock, unless a test sets it), like the rota.
+	const allows = await allowedChannels(tx, ids, incident.severity, kind, pagingNow());
 	const [devices, phones, hooks] = await Promise.all([
 		ids.length
 			? tx.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId }).from(pushSubscriptions).where(inArray(pushSubscriptions.userId, ids))
@@ -73,5 +86,5 @@ export async function queueIncidentNotices(tx: Tx | Db, incident: IncidentNotice
 		if (phones.some((p) => p.userId === person.id) && allows(person.id, 'sms')) deliveries.push(row('sms', person.id));
 	}
 	for (const hook of hooks) deliveries.push(row('webhook', hook.id));
-	return enqueue(tx, deliveries, now);
+	return enqueue(tx, deliveries, now, notBefore ?? now);
 }

@@ -3,7 +3,9 @@
 import { eq } from 'drizzle-orm';
 import type { Db } from '../db';
 import { incidents, runs, setups } from '../db/schema';
+import { groupLead, type GroupMember } from '../../incidents/group-message';
 import { oneTapLink } from '../alerting/ack-links';
+import { incidentGroup } from '../oncall/paging';
 import type { OutboxRow } from './sender';
 
 export async function loadIncidentContext(db: Db, incidentId: string) {
@@ -29,4 +31,21 @@ export function incidentLink(appOrigin: string, incidentId: string) {
 export function acknowledgeLink(appOrigin: string, incidentId: string, row: Pick<OutboxRow, 'id' | 'createdAt' | 'channel' | 'recipient' | 'payload'>) {
 	const userId = row.channel === 'push' ? String(row.payload.userId ?? '') : row.recipient;
 	return oneTapLink(appOrigin, row, incidentId, userId);
+}
+
+/**
+ * An alert's story at send time: the incident its page belongs to (the group's head, which the
+ * acknowledge link acknowledges), the group's members as they stand now, and the member the message
+ * leads with ($lib/incidents/group-message). Read when sending, so incidents that joined the group
+ * while the page was held for gathering (oncall/paging.ts) are named in it.
+ */
+export async function loadAlertContext(db: Db, incidentId: string) {
+	const head = await loadIncidentContext(db, incidentId);
+	if (!head) return null;
+	const members = await incidentGroup(db, incidentId);
+	const group: GroupMember[] = members.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, summary: m.summary, openedAt: m.openedAt, head: m.head }));
+	if (group.length < 2) return { head, lead: head, group: [] as GroupMember[] };
+	const leadId = groupLead(group).id;
+	const lead = leadId === head.incident.id ? head : ((await loadIncidentContext(db, leadId)) ?? head);
+	return { head, lead, group };
 }

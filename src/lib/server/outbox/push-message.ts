@@ -1,5 +1,6 @@
 // The words of a push notification: a short title, one line, the link and an Acknowledge action.
 // Kept small: push services cap the encrypted payload at about 4 kB.
+import { groupLead, relatedPhrase, type GroupMember } from '../../incidents/group-message';
 import { kindLabel } from '../notify/alert-email';
 import { acknowledgeLink, incidentLink, type IncidentContext } from './incident-context';
 import type { OutboxRow } from './sender';
@@ -19,7 +20,12 @@ const oneLine = (s: string, max = 140) => {
 	return line.length > max ? `${line.slice(0, max - 1)}…` : line;
 };
 
-export function pushMessage(row: OutboxRow, ctx: IncidentContext | null, appOrigin: string): PushMessage {
+/**
+ * `ctx` is the incident the delivery belongs to (its page, what Acknowledge acknowledges); for an
+ * alert, `group` is every incident paged together, and the message leads with the group's most
+ * telling one and names how many others came with it.
+ */
+export function pushMessage(row: OutboxRow, ctx: IncidentContext | null, appOrigin: string, group: GroupMember[] = []): PushMessage {
 	const p = row.payload;
 	if (!ctx) {
 		return {
@@ -43,11 +49,13 @@ export function pushMessage(row: OutboxRow, ctx: IncidentContext | null, appOrig
 			actions: []
 		};
 	}
-	const severity = incident.severity.charAt(0).toUpperCase() + incident.severity.slice(1);
+	const lead = group.length > 1 ? groupLead(group) : { id: incident.id, kind: incident.kind, severity: incident.severity, summary: incident.summary, openedAt: incident.openedAt };
+	const related = group.length > 1 ? relatedPhrase(group, lead) : '';
+	const severity = lead.severity.charAt(0).toUpperCase() + lead.severity.slice(1);
 	return {
-		title: oneLine(`${severity}: ${kindLabel(incident.kind)} · ${setup.name}`, 60),
-		body: oneLine(incident.summary),
-		url,
+		title: oneLine(`${severity}: ${kindLabel(lead.kind)} · ${setup.name}`, 60),
+		body: oneLine(related ? `${lead.summary} — ${related}` : lead.summary),
+		url: incidentLink(appOrigin, lead.id),
 		tag: incident.id,
 		deliveryId: row.id,
 		actions: [{ action: 'acknowledge', title: 'Acknowledge', url: acknowledgeLink(appOrigin, incident.id, row) }]

@@ -4,7 +4,7 @@ import type { Db } from '../db';
 import { user } from '../db/schema';
 import { renderIncidentClearedEmail, renderIncidentEmail, type RenderedEmail } from '../notify/alert-email';
 import type { Mailer } from '../notify/mailer';
-import { acknowledgeLink, loadIncidentContext } from './incident-context';
+import { acknowledgeLink, loadAlertContext, loadIncidentContext } from './incident-context';
 import { failForGood, retryLater, type ChannelSender, type OutboxRow } from './sender';
 
 export function emailSender(db: Db, mailer: Mailer, appOrigin: string): ChannelSender {
@@ -34,19 +34,29 @@ async function render(db: Db, row: OutboxRow, appOrigin: string): Promise<Render
 		return { subject: String(p.title ?? 'Phasewarden test message'), text, html: `<p>${text.replace(/</g, '&lt;')}</p>` };
 	}
 	if (!row.incidentId) return { error: `a ${row.kind} e-mail needs an incident` };
-	const ctx = await loadIncidentContext(db, row.incidentId);
-	if (!ctx) return { error: 'the incident no longer exists' };
-	const input = {
-		incident: { ...ctx.incident, evidence: ctx.incident.evidence as Record<string, unknown> },
-		run: ctx.run,
-		setup: ctx.setup,
-		appOrigin
-	};
 	if (row.kind === 'clear') {
+		const ctx = await loadIncidentContext(db, row.incidentId);
+		if (!ctx) return { error: 'the incident no longer exists' };
 		return renderIncidentClearedEmail({
-			...input,
-			cleared: { at: ctx.incident.resolvedAt ?? row.createdAt, summary: String(p.clearedSummary ?? 'The condition has cleared.') }
+			incident: { ...ctx.incident, evidence: ctx.incident.evidence as Record<string, unknown> },
+			run: ctx.run,
+			setup: ctx.setup,
+			appOrigin,
+			// A group's notice is queued when its last member resolved: that moment, not the head's.
+			cleared: { at: p.groupCleared ? row.createdAt : (ctx.incident.resolvedAt ?? row.createdAt), summary: String(p.clearedSummary ?? 'The condition has cleared.') }
 		});
 	}
-	return renderIncidentEmail({ ...input, acknowledgeUrl: acknowledgeLink(appOrigin, ctx.incident.id, row) });
+	// An alert pages for its whole group: it leads with the group's most telling incident and lists
+	// them all; the acknowledge link stays with the incident the page belongs to.
+	const alert = await loadAlertContext(db, row.incidentId);
+	if (!alert) return { error: 'the incident no longer exists' };
+	const { lead } = alert;
+	return renderIncidentEmail({
+		incident: { ...lead.incident, evidence: lead.incident.evidence as Record<string, unknown> },
+		run: lead.run,
+		setup: lead.setup,
+		appOrigin,
+		group: alert.group,
+		acknowledgeUrl: acknowledgeLink(appOrigin, alert.head.incident.id, row)
+	});
 }

@@ -6,7 +6,7 @@ import webpush from 'web-push';
 import type { Db } from '../db';
 import { pushSubscriptions } from '../db/schema';
 import type { VapidKeys } from '../push/vapid';
-import { loadIncidentContext } from './incident-context';
+import { loadAlertContext, loadIncidentContext } from './incident-context';
 import { pushMessage } from './push-message';
 import { failForGood, retryLater, type ChannelSender } from './sender';
 
@@ -17,9 +17,10 @@ export function pushSender(db: Db, vapid: VapidKeys, appOrigin: string): Channel
 		async send(row) {
 			const [sub] = await db.select().from(pushSubscriptions).where(eq(pushSubscriptions.id, row.recipient));
 			if (!sub) return failForGood('the device has been removed');
-			const ctx = row.incidentId ? await loadIncidentContext(db, row.incidentId) : null;
+			const alert = row.incidentId && row.kind === 'alert' ? await loadAlertContext(db, row.incidentId) : null;
+			const ctx = alert ? alert.head : row.incidentId ? await loadIncidentContext(db, row.incidentId) : null;
 			if (row.incidentId && !ctx) return failForGood('the incident no longer exists');
-			const message = pushMessage(row, ctx, appOrigin);
+			const message = pushMessage(row, ctx, appOrigin, alert?.group ?? []);
 			const details = webpush.generateRequestDetails({ endpoint: sub.endpoint, keys: { p256dh: sub.p256dh, auth: sub.auth } }, JSON.stringify(message), {
 				vapidDetails: vapid,
 				contentEncoding: 'aes128gcm',

@@ -3,7 +3,7 @@ import { eq } from 'drizzle-orm';
 import type { Db } from '../db';
 import { setupWebhooks } from '../db/schema';
 import { signWebhook, WEBHOOK_DELIVERY_HEADER, WEBHOOK_SIGNATURE_HEADER, WEBHOOK_TIMESTAMP_HEADER } from '../webhooks/signature';
-import { incidentLink, loadIncidentContext } from './incident-context';
+import { incidentLink, loadAlertContext, loadIncidentContext } from './incident-context';
 import { failForGood, retryLater, type ChannelSender } from './sender';
 
 const TIMEOUT_MS = 15_000;
@@ -15,6 +15,8 @@ export function webhookSender(db: Db, appOrigin: string, now: () => Date = () =>
 			if (!hook) return failForGood('the webhook has been removed');
 			const ctx = row.incidentId ? await loadIncidentContext(db, row.incidentId) : null;
 			if (row.incidentId && !ctx) return failForGood('the incident no longer exists');
+			// An alert posts once for its group (one cause, one page) and lists the group's incidents.
+			const group = row.incidentId && row.kind === 'alert' ? ((await loadAlertContext(db, row.incidentId))?.group ?? []) : [];
 			const body = JSON.stringify({
 				event: row.kind === 'alert' ? 'incident.opened' : row.kind === 'clear' ? 'incident.resolved' : row.kind,
 				delivery: row.id,
@@ -32,7 +34,10 @@ export function webhookSender(db: Db, appOrigin: string, now: () => Date = () =>
 								url: incidentLink(appOrigin, ctx.incident.id)
 							},
 							run: ctx.run,
-							setup: ctx.setup
+							setup: ctx.setup,
+							...(group.length > 1
+								? { group: group.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, summary: m.summary, openedAt: new Date(m.openedAt).toISOString(), url: incidentLink(appOrigin, m.id) })) }
+								: {})
 						}
 					: { message: row.payload })
 			});

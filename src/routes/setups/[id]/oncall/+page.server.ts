@@ -9,6 +9,7 @@ import { overrideFormSchema, rotaSchema } from '$lib/oncall/forms';
 import { requireRole } from '$lib/server/http/guard';
 import { pagingNow } from '$lib/server/oncall/clock';
 import { addOverride, deleteOverride, RotaError, rotaView, saveRota } from '$lib/server/oncall/rota-service';
+import { followRota, RotaShareError, stopFollowing } from '$lib/server/oncall/rota-sharing';
 import { labTimeZone } from '$lib/server/reports/time-zone';
 import { getRuntime } from '$lib/server/runtime';
 import { getSetup } from '$lib/server/setups/service';
@@ -38,7 +39,7 @@ export const load: PageServerLoad = async (event) => {
 	return {
 		setup: { id: setup.id, name: setup.name },
 		mayEdit: hasRole(user.role, 'operator'),
-		...JSON.parse(JSON.stringify(view)) as { timeZone: string; now: { primary: string | null; secondary: string | null }; members: { id: string; name: string }[]; overrides: { id: string; name: string; from: string; until: string; note: string }[]; spans: { from: string; until: string; primary: string | null; secondary: string | null }[] },
+		...JSON.parse(JSON.stringify(view)) as { timeZone: string; sharedFrom: { id: string; name: string } | null; followers: { id: string; name: string }[]; followable: { id: string; name: string }[]; now: { primary: string | null; secondary: string | null }; members: { id: string; name: string }[]; overrides: { id: string; name: string; from: string; until: string; note: string }[]; spans: { from: string; until: string; primary: string | null; secondary: string | null }[] },
 		rotaForm,
 		overrideForm
 	};
@@ -71,6 +72,26 @@ export const actions: Actions = {
 			throw err;
 		}
 		return message(form, 'Override added.');
+	},
+	followRota: async (event) => {
+		const user = requireRole(event, 'operator');
+		const ownerId = String((await event.request.formData()).get('rotaSetupId') ?? '');
+		if (!ownerId) return fail(400, { shareError: 'rotaSetupId: choose the setup whose rota to follow' });
+		const { db } = await getRuntime();
+		if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
+		try {
+			const owner = await followRota(db, event.params.id, ownerId, user.id);
+			return { followed: owner.name };
+		} catch (err) {
+			if (err instanceof RotaShareError) return fail(400, { shareError: err.message });
+			throw err;
+		}
+	},
+	stopFollowing: async (event) => {
+		requireRole(event, 'operator');
+		const { db } = await getRuntime();
+		if (!(await stopFollowing(db, event.params.id))) return fail(404, { shareError: 'this setup follows no other rota' });
+		return { stopped: true };
 	},
 	deleteOverride: async (event) => {
 		requireRole(event, 'operator');
