@@ -42,7 +42,8 @@ export async function startDelivery({ db, config, mailer, bus }: { db: Db; confi
 	const unsubscribe = bus.subscribe((e) => {
 		if (e.type === 'incident') void worker.wake();
 	});
-	await worker.start();
+	// On a PostgreSQL server other instances may be sending right now: their rows wait for their leases.
+	await worker.start(!config.databaseUrl);
 	return {
 		worker,
 		vapid,
