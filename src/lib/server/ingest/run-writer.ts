@@ -188,6 +188,7 @@ export class RunWriter {
 	importBatch(batch: Frame[]): Promise<ImportBatchOutcome> {
 		const done = this.chain.then(() => {
 			if (this.broken) throw new Error(`run ${this.run.id}: its writer failed; try the import again`);
+			if (this.retired) throw new Error(`run ${this.run.id}: an agent took the run up on another instance; try the import again`);
 			return this.commit(batch, true);
 		});
 		this.chain = done.then(
