@@ -165,4 +165,50 @@ describe.skipIf(!testPgUrl)(`two instances on one PostgreSQL server${testPgUrl ?
 		await poll('the follower to lead', () => leaderOf(follower), 20_000);
 		expect(follower.output()).toMatch(/is the leader/);
 	}, 60_000);
+
+	it('fires an escalation step once, from the instance that took over leadership', async () => {
+		const seeded = await seedDataDir();
+		const T0 = Date.parse('2026-03-18T12:00:00Z');
+		const MINUTE = 60_000;
+		// Both instances check every half second, so a step checked by both would be seen twice.
+		const [a, b] = await startPair(seeded, { PHASEWARDEN_TEST_HOOKS: '1', PHASEWARDEN_ESCALATION_POLL_S: '0.5' });
+		const leaderOf = async (s: RunningServer) => ((await (await fetch(`${s.url}/api/health`)).json()) as { leader: boolean }).leader;
+		const [leader, follower] = (await leaderOf(a)) ? [a, b] : [b, a];
+		const adminOn = async (s: RunningServer) => {
+			const cookie = await sessionCookie(s, 'admin');
+			return (p: string, init: RequestInit = {}) =>
+				fetch(`${s.url}${p}`, { ...init, headers: { origin: s.url, 'content-type': 'application/json', cookie } });
+		};
+		const setClock = async (s: RunningServer, now_ms: number) => {
+			const res = await (await adminOn(s))('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms, tick: false }) });
+			expect(res.status).toBe(200);
+		};
+		await setClock(leader, T0);
+		await setClock(follower, T0);
+
+		// A lock loss on the follower: with no rota, every operator and admin is paged at step 0.
+		const agent = await startAgent(follower.wsUrl, seeded.token, { ...RUN, key: 'escalate-once' });
+		agent.send({ type: 'frames', frames: range(1, 22).map((q) => frame(q, q > 10 ? 0.15 : 0.93)) });
+		await agent.waitFor((m) => m.type === 'ack' && m.seq === 22);
+		await agent.close();
+		const admin = await adminOn(follower);
+		const alerts = async () =>
+			((await (await admin('/api/deliveries?limit=200&channel=email')).json()).deliveries as { kind: string; incidentId: string }[]).filter(
+				(d) => d.kind === 'alert'
+			);
+		const first = await poll('the step-0 pages', async () => ((await alerts()).length >= 2 ? await alerts() : null));
+		expect(first).toHaveLength(2);
+
+		// The leader dies; ten minutes on (on the survivor's clock) the survivor's own timer pages step 1.
+		await leader.kill9();
+		await poll('the follower to lead', () => leaderOf(follower), 20_000);
+		await setClock(follower, T0 + 10 * MINUTE);
+		await poll('the step-1 pages', async () => ((await alerts()).length >= 4 ? true : null));
+		// Many more checks pass: the step is not paged again.
+		await new Promise((r) => setTimeout(r, 3000));
+		expect(await alerts()).toHaveLength(4);
+		const head = first[0].incidentId;
+		const events = (await (await admin(`/api/incidents/${head}`)).json()).events as { action: string }[];
+		expect(events.filter((e) => e.action === 'escalated')).toHaveLength(1);
+	}, 120_000);
 });

@@ -84,7 +84,7 @@ async function start(): Promise<Runtime> {
 	}
 	// Notices are queued in the outbox by the transactions that open and resolve incidents; the
 	// worker wakes on the bus's incident events, so these hooks have nothing left to do.
-	const delivery = await startDelivery({ db, config, mailer, bus });
+	const delivery = await startDelivery({ db, config, mailer, bus, cluster });
 	const isLeader = () => cluster.isLeader();
 	const escalation = startEscalation({ db, every_ms: config.escalationPollMs, onPaged: () => void delivery.worker.wake(), isLeader });
 	const ingest = new Ingest(

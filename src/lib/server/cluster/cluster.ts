@@ -19,6 +19,8 @@ export interface Cluster {
 	releaseRun(runId: string): Promise<void>;
 	/** Whether this instance runs the background work now. */
 	isLeader(): boolean;
+	/** Whether no other instance is connected to the database right now. */
+	alone(): Promise<boolean>;
 	/** Sends to every other instance (never back to this one). */
 	send(kind: 'live', body: unknown): void;
 	send(kind: 'control', body: ControlMessage): void;
@@ -35,6 +37,7 @@ export function singleInstance(): Cluster {
 		tryLeaseRun: async () => true,
 		releaseRun: async () => {},
 		isLeader: () => true,
+		alone: async () => true,
 		send: () => {},
 		onMessage: () => {},
 		onLeasesLost: () => {},

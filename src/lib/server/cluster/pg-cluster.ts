@@ -16,6 +16,8 @@ import type { Cluster, ControlMessage } from './cluster';
 import { PartAssembler, splitMessage } from './notify-chunks';
 
 const CHANNEL = 'phasewarden_cluster';
+/** Each instance's dedicated connection says who it is, so instances can see each other (`alone`). */
+const APPLICATION_NAME = 'phasewarden instance';
 /** First key of the two-key advisory locks: one space for run leases, one for the leader. */
 const RUN_LOCKS = 0x5057_0001;
 const LEADER_LOCK = 0x5057_0002;
@@ -60,7 +62,7 @@ export async function startPgCluster(url: string, options: PgClusterOptions = {}
 	};
 
 	const connect = async (retryOnFailure = true) => {
-		const c = new pg.Client({ connectionString: url, keepAlive: true, application_name: `phasewarden ${instanceId.slice(0, 8)}` });
+		const c = new pg.Client({ connectionString: url, keepAlive: true, application_name: `${APPLICATION_NAME} ${instanceId.slice(0, 8)}` });
 		c.on('error', (err) => dropped(c, err.message));
 		c.on('end', () => dropped(c, 'connection ended'));
 		try {
@@ -136,6 +138,15 @@ export async function startPgCluster(url: string, options: PgClusterOptions = {}
 			await c.query('SELECT pg_advisory_unlock($1::int, hashtext($2))', [RUN_LOCKS, runId]).catch(() => {});
 		},
 		isLeader: () => leader,
+		async alone() {
+			const c = client;
+			if (!c) return false;
+			const { rows } = await c.query<{ n: number }>(
+				'SELECT count(*)::int AS n FROM pg_stat_activity WHERE datname = current_database() AND pid <> pg_backend_pid() AND application_name LIKE $1',
+				[`${APPLICATION_NAME} %`]
+			);
+			return rows[0].n === 0;
+		},
 		send: send as Cluster['send'],
 		onMessage: (h) => void messageHandlers.push(h),
 		onLeasesLost: (h) => void lostHandlers.push(h),

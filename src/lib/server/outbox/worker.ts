@@ -8,7 +8,8 @@
 // Because the data folder is locked to one process (data-lock.ts), a row found `sending` at start
 // belonged to a process that is gone, and is retried at once instead of waiting for its lease.
 // Not so with several instances on one PostgreSQL server: there such a row may be another
-// instance's send under way, so it waits for its lease (`start(false)`). Claims are safe across
+// instance's send under way, so unless no other instance is connected it waits for its lease
+// (`start(false)`). Claims are safe across
 // instances: the claiming UPDATE re-checks that a row is still due once it holds the row's lock.
 import { and, eq, inArray, lte, or, sql } from 'drizzle-orm';
 import { DEFAULT_BACKOFF, retryDelay_ms, type BackoffPolicy } from '../../outbox/backoff';
