@@ -32,6 +32,10 @@ const HEARTBEAT_MS = 15_000;
 export const CLOSE_RUN_MOVED = 4002;
 /** How long a hello waits for another instance to hand its run over before the agent is told to retry. */
 const TAKE_OVER_WAIT_MS = 10_000;
+/** How often the waiting instance asks again (the holder may have taken the run up again to tick it). */
+const TAKE_OVER_ASK_MS = 1000;
+/** After handing a run over, the leader leaves it this long to the instance that asked, before ticking it itself. */
+const HANDED_OVER_QUIET_MS = 30_000;
 
 /** Another instance holds the run and did not let go in time. */
 class RunHeldElsewhere extends Error {}
@@ -49,6 +53,8 @@ export class Ingest {
 	private opening = new Map<string, Promise<RunWriter>>();
 	private connections = new Set<AgentConnection>();
 	private timers: NodeJS.Timeout[] = [];
+	/** Runs this instance handed to another, and when. */
+	private handedOver = new Map<string, number>();
 	private committer: GroupCommitter;
 
 	constructor(
@@ -190,9 +196,13 @@ export class Ingest {
 
 	/** Asks the instance holding the run to let go, and waits for its lease. */
 	private async takeOver(runId: string) {
-		this.cluster.send('control', { type: 'release-run', runId });
 		const deadline = Date.now() + TAKE_OVER_WAIT_MS;
+		let askedAt = 0;
 		while (Date.now() < deadline) {
+			if (Date.now() - askedAt >= TAKE_OVER_ASK_MS) {
+				this.cluster.send('control', { type: 'release-run', runId });
+				askedAt = Date.now();
+			}
 			await new Promise((r) => setTimeout(r, 50));
 			if (await this.cluster.tryLeaseRun(runId)) return;
 		}
@@ -212,6 +222,7 @@ export class Ingest {
 			if (this.writers.get(runId) === writer) this.writers.delete(runId);
 			writer.release();
 		}
+		this.handedOver.set(runId, Date.now());
 		await this.cluster.releaseRun(runId);
 	}
 
@@ -331,8 +342,9 @@ export class Ingest {
 	async tickClock(now_ms: number) {
 		const open = await this.db.select({ id: runs.id }).from(runs).where(eq(runs.status, 'open'));
 		const leader = this.cluster.isLeader();
+		for (const [id, at] of this.handedOver) if (now_ms - at > HANDED_OVER_QUIET_MS) this.handedOver.delete(id);
 		for (const { id } of open) {
-			if (!leader && !this.writers.has(id)) continue;
+			if (!this.writers.has(id) && (!leader || this.handedOver.has(id))) continue;
 			const writer = await this.writerFor(id, 'if-free');
 			if (!writer) continue;
 			await writer.applyEngine((engine) => engine.onClock(now_ms), { snapshot: 'on-event' });
