@@ -4,7 +4,9 @@
 // (LISTEN/NOTIFY), and background work has exactly one leader, which the survivor becomes when the
 // leader is killed. Runs only in the suite's server mode (PHASEWARDEN_TEST_PG_URL, see .ci/run):
 // the embedded database is one process by design.
+import { spawn } from 'node:child_process';
 import { mkdtempSync, writeFileSync } from 'node:fs';
+import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
@@ -14,6 +16,7 @@ import { RUN, frame, startAgent, type TestAgent } from './support/agent-socket';
 import { poll } from './support/poll';
 import { PASSWORD, people, seedDataDir, startServer, testPgUrl, type RunningServer, type Seeded } from './support/server';
 
+const root = path.resolve(import.meta.dirname, '../..');
 const cleanup: (() => Promise<unknown>)[] = [];
 afterEach(async () => {
 	while (cleanup.length) await cleanup.pop()!().catch(() => {});
@@ -92,6 +95,44 @@ async function storedSeqs(databaseUrl: string, runId: string): Promise<Map<numbe
 	}
 }
 
+/**
+ * A TCP stand-in for the reverse proxy: sends new connections to one instance, and on `moveTo`
+ * to another, cutting the agent's side of every open connection while leaving the instance's side
+ * open, as a dropped link does (the old instance sees nothing until its heartbeat).
+ */
+async function switchingProxy(firstPort: number) {
+	let target = firstPort;
+	const clientSides = new Set<net.Socket>();
+	const upstreams = new Set<net.Socket>();
+	const server = net.createServer((client) => {
+		const upstream = net.connect(target, '127.0.0.1');
+		clientSides.add(client);
+		upstreams.add(upstream);
+		client.pipe(upstream);
+		upstream.pipe(client);
+		client.on('error', () => {});
+		upstream.on('error', () => client.destroy());
+		client.on('close', () => clientSides.delete(client));
+	});
+	await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+	const port = (server.address() as net.AddressInfo).port;
+	const close = async () => {
+		for (const s of [...clientSides, ...upstreams]) s.destroy();
+		await new Promise((r) => server.close(r));
+	};
+	cleanup.push(close);
+	return {
+		wsUrl: `ws://127.0.0.1:${port}/api/agent/stream`,
+		moveTo(port: number) {
+			target = port;
+			for (const c of clientSides) {
+				c.unpipe();
+				c.destroy();
+			}
+		}
+	};
+}
+
 const range = (from: number, to: number) => Array.from({ length: to - from + 1 }, (_, i) => from + i);
 
 function closeCode(ws: WebSocket): Promise<number> {
@@ -151,6 +192,48 @@ describe.skipIf(!testPgUrl)(`two instances on one PostgreSQL server${testPgUrl ?
 		const detail = await (await fetch(`${b.url}/api/runs/${runId}`, { headers: { cookie } })).json();
 		expect(detail.run.frameCount).toBe(200);
 		expect(detail.run.lastSeq).toBe(200);
+	}, 120_000);
+
+	it('lets the real agent, cut from one instance and reconnected through the proxy to the other, store every frame once', async () => {
+		const seeded = await seedDataDir();
+		const [a, b] = await startPair(seeded);
+		const proxy = await switchingProxy(a.port);
+		const spool = path.join(mkdtempSync(path.join(os.tmpdir(), 'phasewarden-spool-')), 'run.ndjson');
+		const agent = spawn(
+			path.join(root, 'node_modules/.bin/tsx'),
+			['agent/cli.ts', '--url', proxy.wsUrl, '--token', seeded.token, '--run-key', 'proxy-run', '--order', '3', '--states', '6', '--input', '-', '--spool', spool],
+			{ cwd: root, stdio: ['pipe', 'pipe', 'pipe'] }
+		);
+		cleanup.push(async () => agent.kill('SIGKILL'));
+		let agentLog = '';
+		agent.stdout!.on('data', (d) => (agentLog += d));
+		agent.stderr!.on('data', (d) => (agentLog += d));
+		const agentExit = new Promise<number | null>((resolve) => agent.once('exit', (code) => resolve(code)));
+		const write = (from: number, to: number) => {
+			for (let seq = from; seq <= to; seq++) agent.stdin!.write(JSON.stringify(frame(seq)) + '\n');
+		};
+		const client = new pg.Client({ connectionString: seeded.databaseUrl });
+		await client.connect();
+		cleanup.push(() => client.end());
+		const storedCount = async () =>
+			Number((await client.query("SELECT count(*) AS n FROM frames f JOIN runs r ON r.id = f.run_id WHERE r.key = 'proxy-run'")).rows[0].n);
+
+		write(1, 150);
+		await poll('the first frames on A', async () => (await storedCount()) >= 150);
+		write(151, 200);
+		proxy.moveTo(b.port);
+		write(201, 300);
+		agent.stdin!.end();
+		expect(await agentExit, agentLog).toBe(0);
+
+		const { rows } = await client.query("SELECT id, status FROM runs WHERE key = 'proxy-run'");
+		expect(rows[0].status).toBe('ended');
+		const stored = await storedSeqs(seeded.databaseUrl!, rows[0].id);
+		expect([...stored.keys()].sort((x, y) => x - y)).toEqual(range(1, 300));
+		expect([...stored.values()].every((n) => n === 1)).toBe(true);
+		// The link really was cut, and no writer ever found its frames stored by another.
+		expect(agentLog).toMatch(/reconnecting/);
+		expect(b.output() + a.output()).not.toMatch(/believed missing were already stored/);
 	}, 120_000);
 
 	it('has exactly one leader for background work, and the other takes over when it is killed', async () => {
