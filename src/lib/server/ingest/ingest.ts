@@ -159,6 +159,8 @@ export class Ingest {
 			// An ended run gets no more frames from an agent: its writer need not stay.
 			if (writer.run.status === 'ended' && !this.isStreaming(runId) && this.writers.get(runId) === writer) {
 				await writer.idle();
+				// The run row is current before the writer's copy of it is forgotten.
+				await writer.saveSnapshotIfStale(Date.now(), 0);
 				this.dropWriter(writer);
 			}
 			this.bus.publish({ type: 'run', runId, setupId: writer.run.setupId, run: publicRun(writer.run) });
