@@ -1,16 +1,19 @@
 // The server's long-lived parts, started once per process and shared by pages, API routes and the
 // agent socket (through globalThis, so dev's module reloading and the production bundle see one).
+// On a PostgreSQL server several such processes may share the database (cluster/): live events
+// reach them all, each run has one writer among them, and background work runs on the leader.
 import { getRequestEvent } from '$app/server';
 import { sveltekitCookies } from 'better-auth/svelte-kit';
 import { createAuth, type Auth } from './auth/options';
 import { configureAckLinks } from './alerting/ack-links';
 import { loadAuthSecret } from './auth/secret';
+import { singleInstance, type Cluster } from './cluster/cluster';
 import { readConfig, type Config } from './config';
 import { lockDataDir, unlockDataDir } from './data-lock';
 import { openConfiguredDatabase, type Db } from './db';
 import { Ingest } from './ingest/ingest';
 import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
-import { LiveBus } from './live/bus';
+import { LiveBus, type LiveEvent } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
 import { startMailCatcher } from './notify/catcher';
 import { createMailer, type Mailer } from './notify/mailer';
@@ -34,6 +37,8 @@ export interface Runtime {
 	/** Pages the next step of unacknowledged incidents when their timers fall due. */
 	escalation: Escalation;
 	mailer: Mailer | null;
+	/** The other instances on the same database (alone with the embedded one). */
+	cluster: Cluster;
 	close(): Promise<void>;
 }
 
@@ -48,8 +53,13 @@ export function getRuntime(): Promise<Runtime> {
 
 async function start(): Promise<Runtime> {
 	const config = readConfig();
-	lockDataDir(config.dataDir);
+	// The folder lock keeps a second process off the embedded database; on a server, instances may
+	// share a folder (it then holds only generated keys).
+	const embedded = !config.databaseUrl;
+	if (embedded) lockDataDir(config.dataDir);
+	else requireSharedSecrets(config);
 	const { db, kind: databaseKind, close: closeDb } = await openConfiguredDatabase(config);
+	const cluster = config.databaseUrl ? await (await import('./cluster/pg-cluster')).startPgCluster(config.databaseUrl) : singleInstance();
 	const authSecret = loadAuthSecret(config.dataDir, config.authSecret);
 	configureAckLinks(authSecret);
 	const auth = createAuth({
@@ -66,19 +76,27 @@ async function start(): Promise<Runtime> {
 	const mailer = smtpUrl ? createMailer({ smtpUrl, from: config.mailFrom }) : null;
 	if (catcher) console.log(`mail catcher listening on 127.0.0.1:${catcher.port}`);
 	const bus = new LiveBus();
+	if (cluster.shared) {
+		bus.relayTo((event) => cluster.send('live', event));
+		cluster.onMessage((kind, body) => {
+			if (kind === 'live') bus.deliverFromElsewhere(body as LiveEvent);
+		});
+	}
 	// Notices are queued in the outbox by the transactions that open and resolve incidents; the
 	// worker wakes on the bus's incident events, so these hooks have nothing left to do.
-	const delivery = await startDelivery({ db, config, mailer, bus });
-	const escalation = startEscalation({ db, every_ms: config.escalationPollMs, onPaged: () => void delivery.worker.wake() });
+	const delivery = await startDelivery({ db, config, mailer, bus, cluster });
+	const isLeader = () => cluster.isLeader();
+	const escalation = startEscalation({ db, every_ms: config.escalationPollMs, onPaged: () => void delivery.worker.wake(), isLeader });
 	const ingest = new Ingest(
 		db,
 		bus,
 		{ incidentOpened: () => {}, incidentResolved: () => {} },
 		config.silenceCheckMs,
-		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs }
+		{ ...DEFAULT_SNAPSHOT_POLICY, everyMs: config.snapshotEveryMs },
+		cluster
 	);
-	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs, databaseKind);
-	const reports = startReportScheduler({ db, mailer, origin: () => config.origin ?? 'http://localhost:5173', now: reportNow });
+	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs, databaseKind, console.log, isLeader);
+	const reports = startReportScheduler({ db, mailer, origin: () => config.origin ?? 'http://localhost:5173', now: reportNow }, undefined, isLeader);
 	if (process.env.PHASEWARDEN_REPORTS === '0') reports.stop();
 	return {
 		config,
@@ -91,6 +109,7 @@ async function start(): Promise<Runtime> {
 		delivery,
 		escalation,
 		mailer,
+		cluster,
 		async close() {
 			await escalation.stop();
 			stopMaintenance();
@@ -98,10 +117,30 @@ async function start(): Promise<Runtime> {
 			ingest.close();
 			await ingest.flush();
 			await delivery.close();
+			// Ends the leases only once everything this instance wrote is committed.
+			await cluster.close();
 			mailer?.close();
 			await catcher?.close();
 			await closeDb();
-			unlockDataDir(config.dataDir);
+			if (embedded) unlockDataDir(config.dataDir);
 		}
 	};
+}
+
+/**
+ * Instances behind one address must sign sessions and push messages alike: a session made on one
+ * is checked on another, and a device subscribed through one is sent to by whichever delivers.
+ */
+function requireSharedSecrets(config: Config) {
+	if (!config.authSecret) {
+		throw new Error(
+			'BETTER_AUTH_SECRET: required with DATABASE_URL, and the same for every instance (a generated one would differ per data folder)'
+		);
+	}
+	if (!process.env.PHASEWARDEN_VAPID_PUBLIC || !process.env.PHASEWARDEN_VAPID_PRIVATE) {
+		console.warn(
+			'push: PHASEWARDEN_VAPID_PUBLIC/PRIVATE are not set, so this instance uses the keys in its data folder; ' +
+				'with more than one instance set both to the same pair everywhere (copy them from one vapid.json)'
+		);
+	}
 }

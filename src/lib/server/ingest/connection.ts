@@ -95,6 +95,8 @@ export class AgentConnection {
 		}
 		const result = await this.ingest.attach(this, msg);
 		if ('error' in result) {
+			// Another instance still writes the run: no protocol error (the run is fine), just "try again".
+			if (result.error === 'busy') return this.close(1013, 'run busy on another instance; reconnect');
 			this.error(result.error, result.message);
 			return this.close(1008, result.error);
 		}

@@ -68,6 +68,8 @@ export class RunWriter {
 	private scheduled = false;
 	/** Set when a commit failed: the engine may be ahead of the database, so this writer stops. */
 	private broken = false;
+	/** Handing the run to another instance: frames that still arrive are left unacked, to be resent there. */
+	private retired = false;
 	private fedSinceSnapshot = 0;
 	private lastSnapshotAt = Date.now();
 	private rollups = new RollupCache();
@@ -121,6 +123,11 @@ export class RunWriter {
 		forgetProgress(this.run.id);
 	}
 
+	/** Takes no more frames; what is queued is still committed (wait with `idle`). */
+	retire() {
+		this.retired = true;
+	}
+
 	get lastSeq() {
 		return this.run.lastSeq;
 	}
@@ -131,7 +138,7 @@ export class RunWriter {
 
 	/** Queues frames (already validated); they are committed together with whatever else arrives this tick. */
 	enqueue(batch: Frame[]) {
-		if (this.broken) return;
+		if (this.broken || this.retired) return;
 		this.pending.push(...batch);
 		if (this.scheduled) return;
 		this.scheduled = true;
@@ -181,6 +188,7 @@ export class RunWriter {
 	importBatch(batch: Frame[]): Promise<ImportBatchOutcome> {
 		const done = this.chain.then(() => {
 			if (this.broken) throw new Error(`run ${this.run.id}: its writer failed; try the import again`);
+			if (this.retired) throw new Error(`run ${this.run.id}: an agent took the run up on another instance; try the import again`);
 			return this.commit(batch, true);
 		});
 		this.chain = done.then(

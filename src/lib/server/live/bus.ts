@@ -1,4 +1,7 @@
-// In-process publish/subscribe for live updates (server-sent events to open pages).
+// Publish/subscribe for live updates (server-sent events to open pages). Within a process it is an
+// EventEmitter; with several app instances on one PostgreSQL server, `relayTo` also hands every
+// event published here to the other instances (cluster/pg-cluster.ts, LISTEN/NOTIFY), and
+// `deliverFromElsewhere` brings theirs to this process's subscribers.
 import { EventEmitter } from 'node:events';
 
 export type LiveEvent =
@@ -11,7 +14,17 @@ export class LiveBus {
 	constructor() {
 		this.emitter.setMaxListeners(0);
 	}
+	private relay: ((event: LiveEvent) => void) | null = null;
 	publish(event: LiveEvent) {
+		this.emitter.emit('event', event);
+		this.relay?.(event);
+	}
+	/** Sends every event published in this process on to other instances too. */
+	relayTo(relay: (event: LiveEvent) => void) {
+		this.relay = relay;
+	}
+	/** An event another instance published: for this process's subscribers only. */
+	deliverFromElsewhere(event: LiveEvent) {
 		this.emitter.emit('event', event);
 	}
 	subscribe(listener: (event: LiveEvent) => void): () => void {

@@ -37,10 +37,17 @@ export async function runMaintenance(db: Db, now = new Date(), kind: DatabaseKin
 const ANALYZE_CHECK_MS = 20_000;
 
 /** Runs maintenance every `everyMs`, one pass at a time; returns a stop function. */
-export function scheduleMaintenance(db: Db, everyMs: number, kind: DatabaseKind = 'embedded', log: (message: string) => void = console.log): () => void {
+export function scheduleMaintenance(
+	db: Db,
+	everyMs: number,
+	kind: DatabaseKind = 'embedded',
+	log: (message: string) => void = console.log,
+	isLeader: () => boolean = () => true
+): () => void {
 	let running = false;
 	const timer = setInterval(async () => {
-		if (running) return;
+		// With several instances, retention runs on the leader only.
+		if (running || !isLeader()) return;
 		running = true;
 		try {
 			const report = await runMaintenance(db, new Date(), kind);

@@ -42,7 +42,18 @@ export async function escalateDue(db: Db, now: Date = pagingNow(), batch = 50): 
 }
 
 /** Checks for due steps every `every_ms`; `tick` runs one check now (tests, and after a clock jump). */
-export function startEscalation({ db, every_ms, onPaged }: { db: Db; every_ms: number; onPaged: () => void }) {
+export function startEscalation({
+	db,
+	every_ms,
+	onPaged,
+	isLeader = () => true
+}: {
+	db: Db;
+	every_ms: number;
+	onPaged: () => void;
+	/** With several instances, only the leader's timer pages, so a step is paged once. */
+	isLeader?: () => boolean;
+}) {
 	let running: Promise<unknown> = Promise.resolve();
 	const tick = () => {
 		const run = running.then(async () => {
@@ -53,7 +64,9 @@ export function startEscalation({ db, every_ms, onPaged }: { db: Db; every_ms: n
 		running = run.catch((err) => console.error('escalation check failed:', err));
 		return run;
 	};
-	const timer = setInterval(() => void tick().catch(() => {}), every_ms);
+	const timer = setInterval(() => {
+		if (isLeader()) void tick().catch(() => {});
+	}, every_ms);
 	timer.unref?.();
 	return {
 		tick,

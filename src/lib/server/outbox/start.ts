@@ -15,8 +15,21 @@ import { pushSender } from './send-push';
 import { smsSender } from './send-sms';
 import { webhookSender } from './send-webhook';
 import { DeliveryWorker } from './worker';
+import { singleInstance, type Cluster } from '../cluster/cluster';
 
-export async function startDelivery({ db, config, mailer, bus }: { db: Db; config: Config; mailer: Mailer | null; bus: LiveBus }) {
+export async function startDelivery({
+	db,
+	config,
+	mailer,
+	bus,
+	cluster = singleInstance()
+}: {
+	db: Db;
+	config: Config;
+	mailer: Mailer | null;
+	bus: LiveBus;
+	cluster?: Cluster;
+}) {
 	const origin = config.origin ?? 'http://localhost:5173';
 	const vapid = loadVapidKeys(config.dataDir);
 	const pushCatcher = config.catcher ? await startPushCatcher() : null;
@@ -42,7 +55,8 @@ export async function startDelivery({ db, config, mailer, bus }: { db: Db; confi
 	const unsubscribe = bus.subscribe((e) => {
 		if (e.type === 'incident') void worker.wake();
 	});
-	await worker.start();
+	// With another instance connected, a row left `sending` may be its send under way: it waits for its lease.
+	await worker.start(await cluster.alone());
 	return {
 		worker,
 		vapid,

@@ -7,6 +7,10 @@
 // webhook's X-Phasewarden-Delivery header, the push tag) so such a duplicate can be recognised.
 // Because the data folder is locked to one process (data-lock.ts), a row found `sending` at start
 // belonged to a process that is gone, and is retried at once instead of waiting for its lease.
+// Not so with several instances on one PostgreSQL server: there such a row may be another
+// instance's send under way, so unless no other instance is connected it waits for its lease
+// (`start(false)`). Claims are safe across
+// instances: the claiming UPDATE re-checks that a row is still due once it holds the row's lock.
 import { and, eq, inArray, lte, or, sql } from 'drizzle-orm';
 import { DEFAULT_BACKOFF, retryDelay_ms, type BackoffPolicy } from '../../outbox/backoff';
 import type { Db } from '../db';
@@ -52,12 +56,13 @@ export class DeliveryWorker {
 		this.batch = options.batch ?? 20;
 	}
 
-	/** Takes back rows a dead process left `sending`, then starts the timer and a first round. */
-	async start() {
-		await this.db
-			.update(outbox)
-			.set({ status: 'pending', leaseUntil: null, nextAttemptAt: this.now() })
-			.where(eq(outbox.status, 'sending'));
+	/** Takes back rows a dead process left `sending` (unless other instances may be sending them), then starts the timer and a first round. */
+	async start(reclaimSending = true) {
+		if (reclaimSending)
+			await this.db
+				.update(outbox)
+				.set({ status: 'pending', leaseUntil: null, nextAttemptAt: this.now() })
+				.where(eq(outbox.status, 'sending'));
 		this.timer = setInterval(() => this.wake(), this.poll_ms);
 		this.timer.unref();
 		this.wake();

@@ -73,13 +73,16 @@ export async function runDueReports(opts: SchedulerOptions): Promise<SentReport[
  * Checks for due reports every `every_ms` (one check at a time). Returns `tick` (run a check now,
  * after any one under way) and `stop`.
  */
-export function startReportScheduler(opts: SchedulerOptions, every_ms = 60_000) {
+export function startReportScheduler(opts: SchedulerOptions, every_ms = 60_000, isLeader: () => boolean = () => true) {
 	let running: Promise<SentReport[]> = Promise.resolve([]);
 	const tick = () => {
 		running = running.catch(() => []).then(() => runDueReports(opts));
 		return running;
 	};
-	const timer = setInterval(() => void tick().catch((err) => console.error('morning reports failed', err)), every_ms);
+	// With several instances, only the leader's timer checks, so each report is sent once.
+	const timer = setInterval(() => {
+		if (isLeader()) void tick().catch((err) => console.error('morning reports failed', err));
+	}, every_ms);
 	timer.unref?.();
 	return { tick, stop: () => clearInterval(timer) };
 }
