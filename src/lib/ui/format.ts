@@ -90,13 +90,18 @@ export function formatRate(x: number | null | undefined, significant = 3): strin
 	if (x === 0) return '0';
 	const a = Math.abs(x);
 	if (a >= 0.01 && a < 10_000) return Number(x.toPrecision(significant)).toString();
-	const exp = Math.floor(Math.log10(a));
-	const mant = x / 10 ** exp;
+	let exp = Math.floor(Math.log10(a));
+	let mant = Number((x / 10 ** exp).toPrecision(significant));
+	// Rounding can carry into the next decade (9.996 → 10.0): then the exponent takes it.
+	if (Math.abs(mant) >= 10) {
+		exp += 1;
+		mant = Number((x / 10 ** exp).toPrecision(significant));
+	}
 	const sup = String(exp)
 		.split('')
 		.map((c) => SUPERSCRIPT[c] ?? c)
 		.join('');
-	return `${Number(mant.toPrecision(significant))} × 10${sup}`;
+	return `${mant} × 10${sup}`;
 }
 
 /** Incident kinds as words people read: the one list lives in $lib/incidents/kinds. */
