@@ -7,8 +7,7 @@ let displayZone = 'UTC';
 
 /** Sets the zone every page formats times in (the root layout does, from the lab's setting). */
 export function setDisplayTimeZone(timeZone: string): void {
-	// Throws a RangeError naming the zone when it is not one Intl knows.
-	new Intl.DateTimeFormat('en-GB', { timeZone });
+	if (!isTimeZone(timeZone)) throw new RangeError(`unknown time zone ${JSON.stringify(timeZone)} (use an IANA name such as Europe/Vienna)`);
 	displayZone = timeZone;
 }
 
@@ -18,10 +17,22 @@ export function displayTimeZone(): string {
 
 export type ZonedParts = { year: number; month: number; day: number; hour: number; minute: number; second: number };
 
+export function isTimeZone(tz: string): boolean {
+	try {
+		new Intl.DateTimeFormat('en-GB', { timeZone: tz });
+		return true;
+	} catch {
+		return false;
+	}
+}
+
 const formatters = new Map<string, Intl.DateTimeFormat>();
-function formatterFor(timeZone: string): Intl.DateTimeFormat {
+
+/** Year, month (1–12), day, hour (0–23), minute and second of `ms` on the wall clock of `timeZone`. */
+export function zonedParts(ms: number, timeZone: string = displayZone): ZonedParts {
 	let f = formatters.get(timeZone);
 	if (!f) {
+		if (!isTimeZone(timeZone)) throw new RangeError(`unknown time zone ${JSON.stringify(timeZone)} (use an IANA name such as Europe/Vienna)`);
 		f = new Intl.DateTimeFormat('en-GB', {
 			timeZone,
 			year: 'numeric',
@@ -34,23 +45,19 @@ function formatterFor(timeZone: string): Intl.DateTimeFormat {
 		});
 		formatters.set(timeZone, f);
 	}
-	return f;
+	const parts = Object.fromEntries(f.formatToParts(new Date(ms)).map((p) => [p.type, p.value]));
+	return { year: +parts.year, month: +parts.month, day: +parts.day, hour: +parts.hour, minute: +parts.minute, second: +parts.second };
 }
 
-/** Year, month (1–12), day, hour (0–23), minute and second of `ms` on the wall clock of `timeZone`. */
-export function zonedParts(ms: number, timeZone: string = displayZone): ZonedParts {
-	const out: ZonedParts = { year: 0, month: 0, day: 0, hour: 0, minute: 0, second: 0 };
-	for (const p of formatterFor(timeZone).formatToParts(new Date(ms))) {
-		if (p.type in out) out[p.type as keyof ZonedParts] = Number(p.value);
-	}
-	return out;
+/** Offset of the zone from UTC at instant ms (local − UTC, in ms). */
+export function zoneOffsetMs(ms: number, timeZone: string = displayZone): number {
+	const c = zonedParts(ms, timeZone);
+	return Date.UTC(c.year, c.month - 1, c.day, c.hour, c.minute, c.second) - (ms - (((ms % 1000) + 1000) % 1000));
 }
 
 /** Minutes the zone's wall clock is behind UTC at `ms`, as Date#getTimezoneOffset counts them (UTC+1 → −60). */
 export function zoneOffsetMinutes(ms: number, timeZone: string = displayZone): number {
-	const p = zonedParts(ms, timeZone);
-	const wall = Date.UTC(p.year, p.month - 1, p.day, p.hour, p.minute, p.second);
-	return -Math.round((wall - Math.floor(ms / 1000) * 1000) / 60_000);
+	return -Math.round(zoneOffsetMs(ms, timeZone) / 60_000);
 }
 
 const MONTHS = ['Jan', 'Feb', 'Mar', 'Apr', 'May', 'Jun', 'Jul', 'Aug', 'Sep', 'Oct', 'Nov', 'Dec'];
