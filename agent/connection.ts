@@ -9,69 +9,19 @@ import {
 	serverMessageSchema,
 	type ErrorCode,
 	type Frame,
-	type Hello,
-	type RunDescription
+	type Hello
 } from '../src/lib/protocol/index.ts';
 import { createBackoff, type Backoff } from './backoff.ts';
+import { AgentFatalError, AgentStoppedError, type ConnectionOptions, type Welcome } from './connection-types.ts';
+import { packFrames } from './frame-batch.ts';
+import { closeOf, stripUndefined, withTimeout } from './socket-helpers.ts';
 import type { Spool } from './spool.ts';
+import { Waiters } from './waiters.ts';
 
-/** A condition retrying cannot cure: the agent should stop and say why. */
-export class AgentFatalError extends Error {
-	constructor(
-		readonly code: 'token_refused' | 'replaced' | ErrorCode,
-		message: string
-	) {
-		super(message);
-		this.name = 'AgentFatalError';
-	}
-}
-
-/** Waiting was cut short because the agent is shutting down. */
-export class AgentStoppedError extends Error {
-	constructor() {
-		super('the agent is stopping');
-		this.name = 'AgentStoppedError';
-	}
-}
-
-export interface ConnectionOptions {
-	url: string;
-	token: string;
-	run: RunDescription;
-	/** "name/version", sent in hello. */
-	agent: string;
-	spool: Spool;
-	log?: (line: string) => void;
-	/** Frames that trickle in are sent at most this often (a full batch goes at once). */
-	batchIntervalMs?: number;
-	/** WebSocket ping period. */
-	heartbeatMs?: number;
-	/** No pong (or other traffic) for this long: the link is dead, reconnect. */
-	pongTimeoutMs?: number;
-	/** Connected but no welcome after this long: reconnect. */
-	welcomeTimeoutMs?: number;
-	/** Frames sent and not yet acknowledged, at most (keeps a long resend from flooding memory). */
-	maxInFlight?: number;
-	/** Largest message the agent builds; kept below the server's limit for the envelope's sake. */
-	maxBatchBytes?: number;
-	backoff?: Backoff;
-}
-
-export interface Welcome {
-	run: string;
-	lastSeq: number;
-}
-
-interface Waiter {
-	check: () => boolean;
-	resolve: () => void;
-	reject: (err: Error) => void;
-}
+export { AgentFatalError, AgentStoppedError, type ConnectionOptions, type Welcome } from './connection-types.ts';
 
 /** Close code the server uses when a newer connection for the same run replaces this one. */
 export const CLOSE_REPLACED = 4000;
-const ENVELOPE_HEAD = '{"type":"frames","frames":[';
-const ENVELOPE_TAIL = ']}';
 
 export class AgentConnection {
 	private readonly opts: Required<Omit<ConnectionOptions, 'backoff' | 'log'>>;
@@ -88,7 +38,7 @@ export class AgentConnection {
 	private endSentOn: WebSocket | null = null;
 	private fatal: AgentFatalError | null = null;
 	private rejectFailed: (err: AgentFatalError) => void = () => {};
-	private waiters: Waiter[] = [];
+	private readonly waiters = new Waiters();
 	private reconnectTimer: NodeJS.Timeout | null = null;
 	private flushTimer: NodeJS.Timeout | null = null;
 	private heartbeatTimer: NodeJS.Timeout | null = null;
@@ -413,42 +363,26 @@ export class AgentConnection {
 			if (!ignoreWindow && inFlight >= this.opts.maxInFlight) return;
 			if (!partial && this.outbox.length < MAX_FRAMES_PER_MESSAGE) return;
 			const room = ignoreWindow ? Infinity : this.opts.maxInFlight - inFlight;
-			const parts: string[] = [];
-			let bytes = ENVELOPE_HEAD.length + ENVELOPE_TAIL.length;
-			while (parts.length < MAX_FRAMES_PER_MESSAGE && parts.length < room && parts.length < this.outbox.length) {
-				const json = JSON.stringify(this.outbox[parts.length]);
-				const size = Buffer.byteLength(json) + 1;
-				if (parts.length > 0 && bytes + size > this.maxBatchBytes) break;
-				parts.push(json);
-				bytes += size;
-			}
-			this.outbox.splice(0, parts.length);
-			ws.send(ENVELOPE_HEAD + parts.join(',') + ENVELOPE_TAIL, (err) => {
+			const { message, count } = packFrames(this.outbox, room, this.maxBatchBytes);
+			this.outbox.splice(0, count);
+			ws.send(message, (err) => {
 				if (err) this.log(`send failed: ${err.message}`);
 			});
-			this.framesSent += parts.length;
+			this.framesSent += count;
 			this.lastSendAt = Date.now();
 		}
 	}
 
 	private waitFor(check: () => boolean): Promise<void> {
-		if (this.fatal) return Promise.reject(this.fatal);
-		if (check()) return Promise.resolve();
-		return new Promise((resolve, reject) => this.waiters.push({ check, resolve, reject }));
+		return this.fatal ? Promise.reject(this.fatal) : this.waiters.wait(check);
 	}
 
 	private checkWaiters() {
-		this.waiters = this.waiters.filter((w) => {
-			if (!w.check()) return true;
-			w.resolve();
-			return false;
-		});
+		this.waiters.settle();
 	}
 
 	private rejectWaiters(err: Error) {
-		const waiters = this.waiters;
-		this.waiters = [];
-		for (const w of waiters) w.reject(err);
+		this.waiters.rejectAll(err);
 	}
 
 	private fail(err: AgentFatalError) {
@@ -473,38 +407,4 @@ export class AgentConnection {
 		if (t) clearTimeout(t);
 		this[name] = null;
 	}
-}
-
-function closeOf(ws: WebSocket, timeoutMs: number): Promise<number | null> {
-	if (ws.readyState === WebSocket.CLOSED) return Promise.resolve(null);
-	return new Promise((resolve) => {
-		const timer = setTimeout(() => {
-			ws.terminate();
-			resolve(null);
-		}, timeoutMs);
-		ws.once('close', (code: number) => {
-			clearTimeout(timer);
-			resolve(code);
-		});
-	});
-}
-
-function withTimeout<T>(promise: Promise<T>, ms: number): Promise<T> {
-	return new Promise((resolve, reject) => {
-		const timer = setTimeout(() => reject(new Error('timeout')), ms);
-		promise.then(
-			(v) => {
-				clearTimeout(timer);
-				resolve(v);
-			},
-			(e) => {
-				clearTimeout(timer);
-				reject(e);
-			}
-		);
-	});
-}
-
-function stripUndefined<T extends object>(o: T): Partial<T> {
-	return Object.fromEntries(Object.entries(o).filter(([, v]) => v !== undefined)) as Partial<T>;
 }

@@ -9,7 +9,7 @@
 // While the lock is lost the phase diffuses: fast switching spreads the counts over all states, the
 // phase noise grows (lock ≈ 0.2), the vacuum fraction rises and a bias jump shows in aux.
 import type { Frame } from '../src/lib/protocol/index.ts';
-import { createRng } from './random.ts';
+import { createRng } from '../src/lib/physics/random.ts';
 
 export interface SimulatorOptions {
 	seed: number;
@@ -110,17 +110,17 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 	};
 
 	const rng = createRng(options.seed);
-	let state = rng.int(states);
+	let state = rng.nextInt(states);
 	let elapsed_s = 0;
-	let mxc_mK = MXC_BASE_mK + MXC_SD_mK * rng.normal();
+	let mxc_mK = MXC_BASE_mK + MXC_SD_mK * rng.nextGaussian();
 
 	const isLockLost = (t_s: number) => t_s >= lossStart_s && t_s < lossEnd_s;
 
 	function otherState(from: number): number {
-		const neighbour = rng.uniform() < 0.5 ? 1 : states - 1;
-		if (states <= 3 || rng.uniform() < NEIGHBOUR_FRACTION) return (from + neighbour) % states;
+		const neighbour = rng.nextFloat() < 0.5 ? 1 : states - 1;
+		if (states <= 3 || rng.nextFloat() < NEIGHBOUR_FRACTION) return (from + neighbour) % states;
 		// A longer jump: any state that is neither itself nor a neighbour.
-		return (from + 2 + rng.int(states - 3)) % states;
+		return (from + 2 + rng.nextInt(states - 3)) % states;
 	}
 
 	function next(): Frame {
@@ -135,12 +135,12 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 		for (;;) {
 			const outRate = state === VACUUM ? regime.escape_per_s : regime.switch_per_s + regime.decay_per_s;
 			if (outRate <= 0) break;
-			t += rng.exponential(outRate);
+			t += rng.nextExponential(outRate);
 			if (t >= window_s) break;
 			if (state === VACUUM) {
-				state = rng.int(states);
+				state = rng.nextInt(states);
 				escapes += 1;
-			} else if (rng.uniform() * outRate < regime.switch_per_s) {
+			} else if (rng.nextFloat() * outRate < regime.switch_per_s) {
 				const to = otherState(state);
 				transitions[state * states + to] += 1;
 				switches += 1;
@@ -160,7 +160,7 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 		const counts = new Array<number>(states).fill(0);
 		const iq = iqBins > 0 ? new Array<number>(iqBins * iqBins).fill(0) : null;
 		const extent = regime === lost ? locked.amp * 1.5 : regime.amp * 1.5;
-		const sigma = Math.max(0, regime.sigma_rad * (1 + regime.sigmaSpread * rng.normal()));
+		const sigma = Math.max(0, regime.sigma_rad * (1 + regime.sigmaSpread * rng.nextGaussian()));
 		let vacuum = 0;
 		let re = 0;
 		let im = 0;
@@ -173,16 +173,16 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 			let y: number;
 			if (s === VACUUM) {
 				vacuum += 1;
-				x = 0.5 * rng.normal();
-				y = 0.5 * rng.normal();
+				x = 0.5 * rng.nextGaussian();
+				y = 0.5 * rng.nextGaussian();
 			} else {
 				counts[s] += 1;
-				const delta = sigma * rng.normal();
+				const delta = sigma * rng.nextGaussian();
 				re += Math.cos(states * delta);
 				im += Math.sin(states * delta);
 				const phi = (2 * Math.PI * s) / states + delta;
-				x = regime.amp * Math.cos(phi) + 0.5 * rng.normal();
-				y = regime.amp * Math.sin(phi) + 0.5 * rng.normal();
+				x = regime.amp * Math.cos(phi) + 0.5 * rng.nextGaussian();
+				y = regime.amp * Math.sin(phi) + 0.5 * rng.nextGaussian();
 			}
 			if (iq) {
 				const col = Math.floor(((x + extent) / (2 * extent)) * iqBins);
@@ -195,7 +195,7 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 
 		// Slow mixing-chamber drift: an Ornstein–Uhlenbeck walk around the base temperature.
 		const decay = Math.exp(-window_s / MXC_TAU_s);
-		mxc_mK = MXC_BASE_mK + (mxc_mK - MXC_BASE_mK) * decay + MXC_SD_mK * Math.sqrt(1 - decay * decay) * rng.normal();
+		mxc_mK = MXC_BASE_mK + (mxc_mK - MXC_BASE_mK) * decay + MXC_SD_mK * Math.sqrt(1 - decay * decay) * rng.nextGaussian();
 
 		elapsed_s += window_s;
 		const frame: Frame = {
@@ -211,11 +211,11 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 			escapes,
 			vacuum_s: round(window_s - dwell_s, 6),
 			transitions,
-			amp: round(Math.max(0, (regime.amp * inStates) / shots + 0.02 * rng.normal()), 4),
+			amp: round(Math.max(0, (regime.amp * inStates) / shots + 0.02 * rng.nextGaussian()), 4),
 			aux: {
 				mxc_mK: round(mxc_mK, 4),
-				pump_dBm: round(-23 + 0.01 * rng.normal(), 3),
-				bias_uV: round(regime.bias_uV + 0.01 * rng.normal(), 3)
+				pump_dBm: round(-23 + 0.01 * rng.nextGaussian(), 3),
+				bias_uV: round(regime.bias_uV + 0.01 * rng.nextGaussian(), 3)
 			}
 		};
 		if (iq) frame.iq = { bins: iqBins, extent: round(extent, 4), counts: iq };

@@ -1,3 +1,4 @@
 import type { LayoutServerLoad } from './$types';
+import { labTimeZone } from '$lib/server/reports/time-zone';
 
-export const load: LayoutServerLoad = ({ locals }) => ({ user: locals.user });
+export const load: LayoutServerLoad = ({ locals }) => ({ user: locals.user, timeZone: labTimeZone() });

@@ -8,7 +8,7 @@ import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from '../integration/support/agent-socket';
 import { PASSWORD, people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from '../integration/support/server';
-import { mulberry32, poissonKnuth } from '../support/random';
+import { uniformStream, poissonKnuth } from '../support/random';
 import { launchChromium } from './chromium';
 import { createSimulator } from '../../agent/simulate';
 
@@ -30,7 +30,7 @@ beforeAll(async () => {
 	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
 	const changed = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, enabled: false }, rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 } };
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(changed) })).status).toBe(200);
-	const u = mulberry32(99);
+	const u = uniformStream(99);
 	const frames = Array.from({ length: 400 }, (_, i) => ({ ...frame(i + 1), dwell_s: 1, switches: poissonKnuth(i >= 200 ? 2 : 1, u) }));
 	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'drift-run', name: 'Drift run' });
 	for (let i = 0; i < frames.length; i += 100) agent.send({ type: 'frames', frames: frames.slice(i, i + 100) });

@@ -4,7 +4,7 @@
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
-import { mulberry32, poissonKnuth } from '../support/random';
+import { uniformStream, poissonKnuth } from '../support/random';
 
 let seeded: Seeded;
 let server: RunningServer;
@@ -32,7 +32,7 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 }, rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 } };
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(onlyWindows) })).status).toBe(200);
 
-	const u = mulberry32(2026);
+	const u = uniformStream(2026);
 	const frames = Array.from({ length: 600 }, (_, i) => {
 		const seq = i + 1;
 		const rateFactor = seq > 200 ? 2 : 1; // the drift: twice the predicted rate from seq 201 on

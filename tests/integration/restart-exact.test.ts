@@ -3,7 +3,7 @@
 // killed while lock_lost's hysteresis and rate_drift's CUSUM are part-way through counting, so a
 // restart that lost or double-counted frames would open those incidents at other seqs.
 import { afterAll, expect, it } from 'vitest';
-import { mulberry32, poissonKnuth } from '../support/random';
+import { uniformStream, poissonKnuth } from '../support/random';
 import { RUN, frame, startAgent, type TestAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer } from './support/server';
 
@@ -16,7 +16,7 @@ afterAll(async () => {
 const RARE_SNAPSHOTS = { PHASEWARDEN_SNAPSHOT_S: '3600' };
 
 function script() {
-	const u = mulberry32(77);
+	const u = uniformStream(77);
 	return Array.from({ length: 900 }, (_, i) => {
 		const seq = i + 1;
 		// Lock is lost for windows 298–309: three of the five windows lock_lost needs come before the kill.

@@ -1,7 +1,7 @@
 // Seeded Monte Carlo of the one-sided Poisson CUSUM's run length, straight from the recursion
 // S ← max(0, S + K·ln ρ − μ(ρ − 1)) (Lucas 1985) with a signal at S ≥ h: the check on the run
 // lengths of stats/cusum.ts that assumes nothing about how they are computed.
-import { mulberry32 } from './random';
+import { uniformStream } from './random';
 
 /**
  * Poisson deviates by inversion of the distribution function with a guide table (Devroye 1986,
@@ -36,7 +36,7 @@ export function poissonInversionSampler(mu: number, random: () => number): () =>
 
 /** Mean run length and its standard error over `runs` seeded runs from S = 0. */
 export function simulatePoissonCusumArl(o: { h: number; rho: number; mu: number; trueRatio?: number; runs: number; seed: number }): { mean: number; se: number } {
-	const sample = poissonInversionSampler((o.trueRatio ?? 1) * o.mu, mulberry32(o.seed));
+	const sample = poissonInversionSampler((o.trueRatio ?? 1) * o.mu, uniformStream(o.seed));
 	const a = Math.log(o.rho);
 	const b = o.mu * (o.rho - 1);
 	let s1 = 0;

@@ -1,17 +1,6 @@
-// Seeded randomness shared by the statistical tests, so every Monte Carlo check draws from one
-// generator and one Poisson sampler.
-
-/** mulberry32: a small 32-bit PRNG, uniform on [0, 1) (common practice). */
-export function mulberry32(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
+// Seeded randomness shared by the statistical tests: uniforms from the project's one generator
+// (src/lib/physics/random.ts) and the one Poisson sampler.
+export { uniformStream } from '../../src/lib/physics/random';
 
 /**
  * Poisson deviate: Knuth's product-of-uniforms method (Knuth, TAOCP vol. 2, from memory) on pieces

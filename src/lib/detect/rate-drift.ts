@@ -37,198 +37,29 @@
 // While open the signalling statistic is held at most at h, so that it returns to zero a bounded
 // time after the rate does. The condition clears when that statistic is back at zero and the
 // ratio's interval over the horizon contains 1 again. Windows with zero exposure are skipped.
-import { z } from 'zod';
-import type { Detector, DetectorContext } from './detector';
-import type { Evidence, JsonValue, Signal } from './events';
-import type { ProcessExpectation, RateProcess } from './expected';
+//
+// Here the detector and its chart steps; beside it rate-drift-state.ts (the saved state),
+// rate-drift-span.ts (summed windows, ratio intervals), rate-drift-baseline.ts (the learned
+// reference) and rate-drift-evidence.ts (what a finding carries and says).
 import type { Frame } from '../protocol/frame';
 import { poissonCusumStep } from '../stats/cusum';
 import { poissonInterval } from '../stats/poisson';
-import { cusumDesignSchema, designAt, designFor, designKey, MAX_WINDOWS_PER_STEP, type CusumDesign } from './cusum-design';
-import { createSliding, oldest, pushRow, slidingSchema, valueAt, type Sliding } from './sliding';
-import { finiteOrNull, fmt, rateModelEvidence } from './rate-evidence';
+import { type CusumDesign, designAt, designFor, designKey, MAX_WINDOWS_PER_STEP } from './cusum-design';
+import type { Detector, DetectorContext } from './detector';
+import type { JsonValue, Signal } from './events';
+import type { ProcessExpectation, RateProcess } from './expected';
+import { activationX, BAND_SIGMAS, type ModelUncertainty, modelUncertainty } from './model-band';
+import { baselineEvidence, budgetShare, learn, referenceInterval, uncertaintyEvidence } from './rate-drift-baseline';
+import { driftEvidence, horizonEvidence, range, ruleEvidence, summaryOf } from './rate-drift-evidence';
+import { chartExpected, extend, join, lowerExpected, ratioEstimate, upperExpected } from './rate-drift-span';
+import { type Baseline, freshBaseline, freshProcess, freshSide, H_COUNT, H_DOWN, H_EXPECTED, H_NOMINAL, H_SUMMED, H_UP, H_WIDTH, mismatchKey, type ProcessState, type RateDriftState, rateDriftStateSchema, type Side, type Span } from './rate-drift-state';
+import { fmt, rateModelEvidence } from './rate-evidence';
 import type { RateDriftRule } from './rules';
-import { compileRates } from './expected';
-import { noiseFactor } from '../physics/occupation';
-import { attributeToTemperature, type TemperatureAttribution } from './temperature-attribution';
-import { activationX, BAND_SIGMAS, clampLnReference, lnBandHalfWidth, modelUncertainty, type ModelUncertainty } from './model-band';
+import { createSliding, pushRow } from './sliding';
 
-// Horizon columns; the first six are summed.
-const H_COUNT = 0;
-const H_EXPECTED = 1;
-const H_NOMINAL = 2;
-const H_T_SUM = 3;
-const H_MEASURED = 4;
-const H_EXPOSURE = 5;
-/** Chart prediction at the upper and lower edge of the reference band. */
-const H_UP = 6;
-const H_DOWN = 7;
-const H_SEQ = 8;
-const H_T_MS = 9;
-const H_WIDTH = 10;
-const H_SUMMED = 8;
-/** Two-sided confidence of the baseline's interval: ±2σ of a normal. */
-const BASELINE_CONFIDENCE = 0.9544997361036416;
-
-const spanSchema = z.object({
-	count: z.number().int().min(0),
-	/** Predicted at each window's temperature. */
-	expected: z.number(),
-	/** Predicted at the nominal temperature. */
-	expectedNominal: z.number(),
-	/** Sum of measured temperatures, and the windows that had one. */
-	T_sum: z.number(),
-	measured: z.number().int().min(0),
-	windows: z.number().int().min(0),
-	/** Chart prediction at the band's upper and lower edge (absent in snapshots from before the band: the prediction itself). */
-	expectedUp: z.number().optional(),
-	expectedDown: z.number().optional(),
-	fromSeq: z.number().int(),
-	from_ms: z.number(),
-	toSeq: z.number().int(),
-	to_ms: z.number()
-});
-type Span = z.infer<typeof spanSchema>;
-
-const sideSchema = z.object({
-	/** The CUSUM statistic, ≥ 0. */
-	S: z.number().min(0),
-	/** Windows since the statistic last was zero; null while it is zero. */
-	since: spanSchema.nullable()
-});
-type Side = z.infer<typeof sideSchema>;
-
-const baselineSchema = z.object({
-	/** 'learning': the chart compares with the model's band; 'set': with the run's own baseline. */
-	phase: z.enum(['learning', 'set']),
-	/** Seconds of windows with exposure learned from. */
-	learned_s: z.number().min(0),
-	count: z.number().int().min(0),
-	/** Chart prediction summed over the learning windows, and Σ prediction·x for their mean x. */
-	expected: z.number().min(0),
-	xWeighted: z.number(),
-	fromSeq: z.number().int().nullable(),
-	toSeq: z.number().int().nullable(),
-	/** Once set: mean x, ln of the observed/predicted estimate, and the reference interval of ln(true/predicted) at x. */
-	x: z.number().nullable(),
-	lnEstimate: z.number().nullable(),
-	lnLo: z.number().nullable(),
-	lnHi: z.number().nullable(),
-	/** The baseline's interval lies wholly outside the model's band. */
-	mismatch: z.boolean()
-});
-type Baseline = z.infer<typeof baselineSchema>;
-
-const processStateSchema = z.object({
-	/** Absent in snapshots from before the baseline: they start learning. */
-	baseline: baselineSchema.optional(),
-	up: sideSchema,
-	down: sideSchema,
-	/** Windows pooled into the step being built. */
-	block: spanSchema.nullable(),
-	horizon: slidingSchema.nullable(),
-	/** The side that opened the condition, while open. */
-	openSide: z.enum(['up', 'down']).nullable(),
-	steps: z.number().int().min(0)
-});
-type ProcessState = z.infer<typeof processStateSchema>;
-
-const rateDriftStateSchema = z.object({
-	/** Grid designs used so far, by band, windows per step and window length, so that a restored engine never recomputes them differently. */
-	designs: z.record(z.string(), cusumDesignSchema),
-	switching: processStateSchema,
-	escape: processStateSchema
-});
-export type RateDriftState = z.infer<typeof rateDriftStateSchema>;
-
-const freshSide = (): Side => ({ S: 0, since: null });
-const freshBaseline = (): Baseline => ({
-	phase: 'learning',
-	learned_s: 0,
-	count: 0,
-	expected: 0,
-	xWeighted: 0,
-	fromSeq: null,
-	toSeq: null,
-	x: null,
-	lnEstimate: null,
-	lnLo: null,
-	lnHi: null,
-	mismatch: false
-});
-const freshProcess = (): ProcessState => ({ baseline: freshBaseline(), up: freshSide(), down: freshSide(), block: null, horizon: null, openSide: null, steps: 0 });
-
-/** The key of the "operating point does not match its rate model" finding. */
-export const mismatchKey = (p: RateProcess) => `${p}:model`;
-
-function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null, up: number, down: number): Span {
-	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, expectedUp: 0, expectedDown: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
-	// A block restored from a snapshot from before the band has its windows at the prediction.
-	s.expectedUp = (s.expectedUp ?? s.expected) + up;
-	s.expectedDown = (s.expectedDown ?? s.expected) + down;
-	s.count += e.count;
-	s.expected += e.expected;
-	s.expectedNominal += e.expectedNominal;
-	if (T !== null) {
-		s.T_sum += T;
-		s.measured += 1;
-	}
-	s.windows += 1;
-	s.toSeq = frame.seq;
-	s.to_ms = frame.t;
-	return s;
-}
-
-/** What the chart compares with: the temperature-following or the nominal prediction. */
-const chartExpected = (rule: RateDriftRule, span: Span) => (rule.prediction === 'temperature' ? span.expected : span.expectedNominal);
-const upperExpected = (rule: RateDriftRule, span: Span) => span.expectedUp ?? chartExpected(rule, span);
-const lowerExpected = (rule: RateDriftRule, span: Span) => span.expectedDown ?? chartExpected(rule, span);
-
-// A span from an old snapshot lacks the band sums; the nominal-or-temperature choice is not known
-// here, so the temperature prediction stands in (the pre-band chart's default).
-const upOrChart = (s: Span) => s.expectedUp ?? s.expected;
-const downOrChart = (s: Span) => s.expectedDown ?? s.expected;
-
-function join(a: Span | null, b: Span): Span {
-	if (!a) return { ...b };
-	return {
-		count: a.count + b.count,
-		expected: a.expected + b.expected,
-		expectedNominal: a.expectedNominal + b.expectedNominal,
-		T_sum: a.T_sum + b.T_sum,
-		measured: a.measured + b.measured,
-		windows: a.windows + b.windows,
-		expectedUp: upOrChart(a) + upOrChart(b),
-		expectedDown: downOrChart(a) + downOrChart(b),
-		fromSeq: a.fromSeq,
-		from_ms: a.from_ms,
-		toSeq: b.toSeq,
-		to_ms: b.to_ms
-	};
-}
-
-export type RatioEstimate = { estimate: number | null; lower: number | null; upper: number | null; confidence: number; significant: boolean };
-
-/**
- * Observed/predicted ratio with the exact (Garwood) interval of the observed Poisson count divided
- * by the prediction, which is treated as known. No prediction: nothing can be said.
- */
-export function ratioEstimate(observed: number, expected: number, confidence: number): RatioEstimate {
-	if (!(expected > 0)) return { estimate: null, lower: null, upper: null, confidence, significant: false };
-	const { lower, upper } = poissonInterval(observed, confidence);
-	return {
-		estimate: observed / expected,
-		lower: lower / expected,
-		upper: finiteOrNull(upper / expected),
-		confidence,
-		significant: lower > expected || upper < expected
-	};
-}
-
-/** Processes that share the rule's budget: those it watches that have a rate model (at least 1). */
-export function budgetShare(rule: RateDriftRule, run: DetectorContext<'rate_drift'>['run']): number {
-	return Math.max(1, rule.processes.filter((p) => run.rateModels?.[p]).length);
-}
+export { mismatchKey, type RateDriftState } from './rate-drift-state';
+export { budgetShare } from './rate-drift-baseline';
+export { ratioEstimate, type RatioEstimate } from './rate-drift-span';
 
 function designInputs(rule: RateDriftRule, window_s: number, share: number) {
 	return {
@@ -238,20 +69,6 @@ function designInputs(rule: RateDriftRule, window_s: number, share: number) {
 		// Bonferroni across the processes: each chart gets share × the rule's run length.
 		falseAlarmEvery_days: rule.falseAlarmEvery_days * share,
 		window_s
-	};
-}
-
-function ruleEvidence(rule: RateDriftRule): Evidence {
-	return {
-		rule: 'rate_drift',
-		version: rule.version,
-		falseAlarmEvery_days: rule.falseAlarmEvery_days,
-		ratioUp: rule.ratioUp,
-		ratioDown: rule.ratioDown,
-		minExpectedPerStep: rule.minExpectedPerStep,
-		horizonWindows: rule.horizonWindows,
-		prediction: rule.prediction,
-		baseline_h: rule.baseline_h
 	};
 }
 
@@ -385,83 +202,6 @@ function onWindow(
 	return signals;
 }
 
-/** [lo, hi] bounding ln(true/predicted) at x: the model's band while learning, then the baseline's (file comment). */
-function referenceInterval(b: Baseline, u: ModelUncertainty, x: number): [number, number] {
-	const band = lnBandHalfWidth(u, x);
-	if (b.phase === 'learning') return [clampLnReference(-band), clampLnReference(band)];
-	const spread = BAND_SIGMAS * u.A_sigma * Math.abs(x - b.x!);
-	let lo = b.lnLo! - spread;
-	let hi = b.lnHi! + spread;
-	if (!b.mismatch) {
-		lo = Math.max(lo, -band);
-		hi = Math.min(hi, band);
-	}
-	if (lo > hi) lo = hi = (lo + hi) / 2;
-	return [clampLnReference(lo), clampLnReference(hi)];
-}
-
-/** Adds one window to the baseline; once baseline_h hours are in, sets it. Returns whether it was set outside the model's band. */
-function learn(b: Baseline, u: ModelUncertainty, frame: Frame, count: number, chart: number, x: number, baseline_h: number): boolean {
-	b.learned_s += frame.window_s;
-	b.count += count;
-	b.expected += chart;
-	b.xWeighted += chart * x;
-	b.fromSeq ??= frame.seq;
-	b.toSeq = frame.seq;
-	if (b.learned_s < baseline_h * 3600 || !(b.expected > 0)) return false;
-	const { lower, upper } = poissonInterval(b.count, BASELINE_CONFIDENCE);
-	const lnLo = lower > 0 ? Math.log(lower / b.expected) : -Infinity;
-	const lnHi = Math.log(upper / b.expected);
-	b.x = b.xWeighted / b.expected;
-	const band = lnBandHalfWidth(u, b.x);
-	const wasMismatch = b.mismatch;
-	b.mismatch = wasMismatch || lnLo > band || lnHi < -band;
-	b.lnEstimate = clampLnReference(Math.log(Math.max(b.count, 0.5) / b.expected));
-	b.lnLo = clampLnReference(b.mismatch ? lnLo : Math.max(lnLo, -band));
-	b.lnHi = clampLnReference(b.mismatch ? lnHi : Math.min(lnHi, band));
-	b.phase = 'set';
-	return b.mismatch && !wasMismatch;
-}
-
-/** What the chart compared with over the span: the model's band or the run's baseline. */
-function referenceEvidence(ps: ProcessState, p: RateProcess, since: Span, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): { [key: string]: JsonValue } {
-	const chart = chartExpected(rule, since);
-	const b = ps.baseline ?? freshBaseline();
-	const u = modelUncertainty(ctx.run, p);
-	return {
-		basis: b.phase === 'set' ? 'baseline' : 'model band',
-		expectedUpper: upperExpected(rule, since),
-		expectedLower: lowerExpected(rule, since),
-		ratioUpper: chart > 0 ? upperExpected(rule, since) / chart : null,
-		ratioLower: chart > 0 ? lowerExpected(rule, since) / chart : null,
-		budgetShare: budgetShare(rule, ctx.run),
-		baseline: u ? baselineEvidence(b, u) : null,
-		uncertainty: u ? uncertaintyEvidence(u) : null
-	};
-}
-
-function baselineEvidence(b: Baseline, u: ModelUncertainty): { [key: string]: JsonValue } {
-	const band = b.x === null ? null : lnBandHalfWidth(u, b.x);
-	return {
-		phase: b.phase,
-		learned_s: b.learned_s,
-		fromSeq: b.fromSeq,
-		toSeq: b.toSeq,
-		observed: b.count,
-		expected: b.expected,
-		ratio: b.lnEstimate === null ? null : Math.exp(b.lnEstimate),
-		/** Reference interval of observed/predicted at the baseline's temperature. */
-		ratioLower: b.lnLo === null ? null : Math.exp(b.lnLo),
-		ratioUpper: b.lnHi === null ? null : Math.exp(b.lnHi),
-		modelBandLower: band === null ? null : Math.exp(-band),
-		modelBandUpper: band === null ? null : Math.exp(band),
-		mismatch: b.mismatch
-	};
-}
-
-function uncertaintyEvidence(u: ModelUncertainty): { [key: string]: JsonValue } {
-	return { W0_sigma: u.W0_sigma, A_sigma: u.A_sigma, covariance: u.covariance, stated: u.stated, bandSigmas: BAND_SIGMAS };
-}
 
 function mismatchSignal(
 	p: RateProcess,
@@ -587,184 +327,6 @@ function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Sp
 function hold(ps: ProcessState, d: CusumDesign): void {
 	if (ps.openSide === 'up') ps.up.S = Math.min(ps.up.S, d.hUp);
 	if (ps.openSide === 'down') ps.down.S = Math.min(ps.down.S, d.hDown);
-}
-
-function horizonSpan(h: Sliding): { [key: string]: JsonValue } {
-	return { fromSeq: oldest(h, H_SEQ), toSeq: valueAt(h, h.len - 1, H_SEQ), from_ms: oldest(h, H_T_MS), to_ms: valueAt(h, h.len - 1, H_T_MS), windows: h.len };
-}
-
-function horizonEvidence(h: Sliding, confidence: number): { [key: string]: JsonValue } {
-	let min = Infinity;
-	let max = -Infinity;
-	for (let i = 0; i < h.len; i++) {
-		if (valueAt(h, i, H_MEASURED) === 0) continue;
-		const T = valueAt(h, i, H_T_SUM);
-		min = Math.min(min, T);
-		max = Math.max(max, T);
-	}
-	const measured = h.sums[H_MEASURED];
-	return {
-		...horizonSpan(h),
-		observed: h.sums[H_COUNT],
-		expected: h.sums[H_EXPECTED],
-		expectedAtNominal: h.sums[H_NOMINAL],
-		/** The chart's prediction at the reference band's upper and lower edge. */
-		referenceUpper: h.sums[H_UP],
-		referenceLower: h.sums[H_DOWN],
-		exposure_s: h.sums[H_EXPOSURE],
-		ratio: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_EXPECTED], confidence) },
-		ratioAtNominal: { ...ratioEstimate(h.sums[H_COUNT], h.sums[H_NOMINAL], confidence) },
-		windowsMeasured: measured,
-		meanT_mK: measured > 0 ? h.sums[H_T_SUM] / measured : null,
-		minT_mK: finiteOrNull(min),
-		maxT_mK: finiteOrNull(max)
-	};
-}
-
-/**
- * Whether the measured temperature accounts for the excess: a Poisson fit of the horizon's
- * windows (temperature-attribution.ts). The horizon holds the span since the signalling
- * statistic left zero and, when the span is shorter, the windows before it; those anchor the
- * constant at the temperatures where the rate still agreed, which the span alone would leave to
- * extrapolation. Windows without a measured temperature are left out of the fit.
- */
-function temperatureFit(h: Sliding, since: Span, p: RateProcess, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): TemperatureAttribution {
-	const model = compileRates(ctx.run)[p];
-	const windows = [];
-	for (let i = 0; i < h.len; i++) {
-		const measured = valueAt(h, i, H_MEASURED) === 1;
-		windows.push({
-			count: valueAt(h, i, H_COUNT),
-			expectedNominal: valueAt(h, i, H_NOMINAL),
-			x: measured && model ? 1 / noiseFactor(model.mode_GHz, valueAt(h, i, H_T_SUM)) : NaN,
-			inSpan: valueAt(h, i, H_SEQ) >= since.fromSeq
-		});
-	}
-	return attributeToTemperature({
-		windows,
-		x_nominal: model ? 1 / noiseFactor(model.mode_GHz, model.nominal_mK) : 0,
-		modelSlope: model?.A_scaled ?? 0,
-		chartLogExcess: Math.log(since.count / chartExpected(rule, since)),
-		chartFollowsTemperature: rule.prediction === 'temperature',
-		confidence: rule.confidence
-	});
-}
-
-/**
- * The evidence of an opening (or a reversal), with the temperature fit over the span since the
- * signalling statistic last left zero (the windows the chart's evidence comes from).
- */
-function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d: CusumDesign, ctx: DetectorContext<'rate_drift'>): Evidence {
-	const { rule, run } = ctx;
-	const h = ps.horizon!;
-	const since = (side === 'up' ? ps.up : ps.down).since!;
-	const vsT = ratioEstimate(since.count, since.expected, rule.confidence);
-	const vsN = ratioEstimate(since.count, since.expectedNominal, rule.confidence);
-	const measured = since.measured > 0;
-	const nominal_mK = run.nominal_mK ?? run.rateModels?.[p]?.nominal_mK ?? 0;
-	const meanT_mK = measured ? since.T_sum / since.measured : null;
-	const fit = temperatureFit(h, since, p, rule, ctx);
-	const explainedByTemperature = fit.explainedByTemperature;
-	return {
-		...ruleEvidence(rule),
-		process: p,
-		direction: side,
-		designRatio: side === 'up' ? rule.ratioUp : rule.ratioDown,
-		statistic: side === 'up' ? ps.up.S : ps.down.S,
-		decisionInterval: side === 'up' ? d.hUp : d.hDown,
-		design: { ...d },
-		steps: ps.steps,
-		reference: referenceEvidence(ps, p, since, rule, ctx),
-		sinceChange: {
-			fromSeq: since.fromSeq,
-			toSeq: since.toSeq,
-			from_ms: since.from_ms,
-			to_ms: since.to_ms,
-			windows: since.windows,
-			observed: since.count,
-			expected: since.expected,
-			expectedAtNominal: since.expectedNominal,
-			windowsMeasured: since.measured,
-			meanT_mK
-		},
-		ratio: { ...vsT },
-		ratioAtNominal: { ...vsN },
-		horizon: horizonEvidence(h, rule.confidence),
-		nominal_mK,
-		temperatureMeasured: measured,
-		explainedByTemperature,
-		temperatureFit: { ...fit },
-		temperatureShare: fit.temperatureShare,
-		temperatureShareInterval: fit.temperatureShareInterval,
-		residualRatio: fit.residualRatio,
-		residualInterval: fit.residualInterval,
-		explanation: explain(p, vsT, vsN, meanT_mK, nominal_mK, fit, rule, since.windows),
-		rateModel: rateModelEvidence(run, p)
-	};
-}
-
-const range = (r: RatioEstimate) => `${fmt(r.estimate ?? NaN)} (${fmt(r.lower ?? 0)}–${r.upper === null ? '∞' : fmt(r.upper)})`;
-
-const interval = (i: [number, number] | null) => (i ? `${fmt(i[0])}–${fmt(i[1])}` : 'unbounded');
-
-function explain(
-	p: RateProcess,
-	vsT: RatioEstimate,
-	vsN: RatioEstimate,
-	meanT_mK: number | null,
-	nominal_mK: number,
-	fit: TemperatureAttribution,
-	rule: RateDriftRule,
-	windows: number
-): string {
-	const what = p === 'switching' ? 'switching rate' : 'escape rate';
-	const nominal = `${fmt(nominal_mK)} mK`;
-	const over = `over the ${windows} windows since the change began`;
-	const r = rule.prediction === 'temperature' ? vsT : vsN;
-	if (meanT_mK === null || fit.reason === 'no_temperature') {
-		return `No mixing-chamber temperature in these windows: the prediction used the nominal ${nominal}, so a temperature change cannot be ruled out. The ${what} is ${range(vsT)} × that prediction ${over}.`;
-	}
-	const meanT = `${fmt(meanT_mK)} mK`;
-	const seen = `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}, nominal ${nominal}).`;
-	const share = fit.temperatureShare === null ? '' : `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the chart's prediction`;
-	const residual = fit.residualRatio === null ? '' : `a constant factor of ${fmt(fit.residualRatio)} (${interval(fit.residualInterval)}) remains at the nominal temperature`;
-	const fitted = `a Poisson fit of the ${fit.windowsFitted} windows with a measured temperature on 1/(2n̄+1)`;
-	switch (fit.reason) {
-		case 'temperature_carries_it':
-			return `Explained by temperature: ${seen} In ${fitted}, ${share}, and ${residual}, consistent with 1.`;
-		case 'residual_constant':
-			return `Unexplained by temperature: ${seen} In ${fitted}, ${residual}, which the temperature does not account for — detuning or bias drift, or a changed operating point${share ? `; ${share}` : ''}.`;
-		case 'temperature_share_small':
-			return `Unexplained by temperature: ${seen} In ${fitted}, ${share} — too little to account for it.`;
-		case 'temperature_at_nominal':
-			return fit.explainedByTemperature === false
-				? `Unexplained by temperature: ${seen} The temperature stayed at the nominal point, so it cannot account for the rate factor of ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) — detuning or bias drift, or a changed operating point.`
-				: `Cannot tell whether the temperature explains it: ${seen} The temperature stayed at the nominal point and the rate there is not significantly off (${fmt(fit.residualRatio!)}, ${interval(fit.residualInterval)}): the chart accumulated several smaller excesses.`;
-		case 'changed_at_steady_temperature':
-			return `Unexplained by temperature: ${seen} The temperature did not move, yet the rate stepped by ${fmt(fit.residualRatio!)} (${interval(fit.residualInterval)}) against the windows before, where it agreed with the prediction — detuning or bias drift, or a changed operating point.`;
-		case 'no_counts':
-		case 'no_fit':
-			return `Cannot tell whether the temperature explains it: ${seen} Too few switches in the windows with a measured temperature for a fit on 1/(2n̄+1).`;
-		case 'temperature_steady':
-			return `Cannot tell whether the temperature explains it: ${seen} The temperature barely varied away from the nominal point, so a temperature law the model has wrong and a constant factor (detuning or bias drift) fit equally well.`;
-		default:
-			return `Cannot tell whether the temperature explains it: ${seen} In ${fitted}${share ? `, ${share}` : ''}${residual ? `, and ${residual}` : ''}: the intervals are too wide to decide.`;
-	}
-}
-
-function summaryOf(p: RateProcess, side: 'up' | 'down', ev: Evidence): string {
-	const what = p === 'switching' ? 'Switching rate' : 'Escape rate';
-	const r = ev.ratio as unknown as RatioEstimate;
-	const windows = (ev.sinceChange as { windows: number }).windows;
-	const dir = side === 'up' ? 'above' : 'below';
-	const why = !ev.temperatureMeasured
-		? 'fridge temperature not measured'
-		: ev.explainedByTemperature === true
-			? 'explained by the fridge temperature'
-			: ev.explainedByTemperature === false
-				? 'not explained by the fridge temperature'
-				: 'cannot tell whether the fridge temperature explains it';
-	return `${what} drifted ${dir} the prediction: ${range(r)} × over the last ${windows} windows (CUSUM ${fmt(Number(ev.statistic))} ≥ h = ${fmt(Number(ev.decisionInterval))}; ${why})`;
 }
 
 function maybeClear(ps: ProcessState, p: RateProcess, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {

@@ -1,8 +1,7 @@
 // Reads an operator's calibration table (CSV with a header row) into calibration points, or
 // lists every bad line by number and reason so nothing half-valid is ever stored.
-//
-// No CSV package is installed, and these tables are plain numbers, so a small splitter on commas
-// does: quoted fields are not supported and are refused with a clear message.
+// Rows come from d3-dsv (RFC 4180: quoted fields, commas and line breaks inside quotes).
+import { csvParseRows } from 'd3-dsv';
 import type { CalibrationPoint } from './activation';
 
 export type CsvError = { line: number; message: string };
@@ -32,17 +31,21 @@ export function parseCalibrationCsv(text: string): CalibrationCsvResult {
 	if (typeof text !== 'string') {
 		return { ok: false, errors: [{ line: 1, message: 'the calibration table must be text' }] };
 	}
-	const lines = text.replace(/^\uFEFF/, '').split(/\r\n|\n|\r/);
-	const header = parseHeader(lines[0] ?? '');
+	const rows = csvParseRows(text.replace(/^\uFEFF/, ''));
+	const header = parseHeader(rows[0] ?? ['']);
 	if (!header.ok) return { ok: false, errors: header.errors };
 	const { columns } = header;
 
 	const errors: CsvError[] = [];
 	const points: CalibrationPoint[] = [];
-	for (let i = 1; i < lines.length; i++) {
-		// Blank lines (including the one a trailing newline leaves) carry no data.
-		if (lines[i].trim() === '') continue;
-		const parsed = parseRow(lines[i], i + 1, columns);
+	// A quoted field may hold line breaks, so a row's line number counts them in the rows before it.
+	let line = 1 + lineBreaks(rows[0]) + 1;
+	for (const cells of rows.slice(1)) {
+		const lineNumber = line;
+		line += 1 + lineBreaks(cells);
+		// Blank lines carry no data.
+		if (cells.every((cell) => cell.trim() === '')) continue;
+		const parsed = parseRow(cells, lineNumber, columns);
 		if (parsed.ok) points.push(parsed.point);
 		else errors.push(...parsed.errors);
 	}
@@ -53,14 +56,15 @@ export function parseCalibrationCsv(text: string): CalibrationCsvResult {
 	return { ok: true, points };
 }
 
+const lineBreaks = (cells: string[]) => cells.reduce((n, cell) => n + (cell.match(/\r\n|\n|\r/g)?.length ?? 0), 0);
+
 function parseHeader(
-	line: string
+	cells: string[]
 ): { ok: true; columns: Field[] } | { ok: false; errors: CsvError[] } {
 	const fail = (message: string) => ({ ok: false as const, errors: [{ line: 1, message }] });
-	if (line.trim() === '') return fail('the first line must be a header row naming the columns');
-	if (line.includes('"')) return fail('quoted fields are not supported: use plain comma-separated names');
+	if (cells.every((cell) => cell.trim() === '')) return fail('the first line must be a header row naming the columns');
 
-	const names = line.split(',').map((name) => name.trim());
+	const names = cells.map((name) => name.trim());
 	const columns: Field[] = [];
 	const problems: string[] = [];
 	for (const [index, name] of names.entries()) {
@@ -89,17 +93,13 @@ function parseHeader(
 }
 
 function parseRow(
-	line: string,
+	row: string[],
 	lineNumber: number,
 	columns: Field[]
 ): { ok: true; point: CalibrationPoint } | { ok: false; errors: CsvError[] } {
 	const errors: CsvError[] = [];
 	const fail = (message: string) => errors.push({ line: lineNumber, message });
-	if (line.includes('"')) {
-		fail('quoted fields are not supported');
-		return { ok: false, errors };
-	}
-	const cells = line.split(',').map((cell) => cell.trim());
+	const cells = row.map((cell) => cell.trim());
 	if (cells.length !== columns.length) {
 		fail(`expected ${columns.length} fields, found ${cells.length}`);
 		return { ok: false, errors };

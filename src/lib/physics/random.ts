@@ -1,4 +1,5 @@
-// Seeded pseudo-random numbers for the simulators: xoshiro128** uniforms and ziggurat Gaussians.
+// The one seeded generator of the project: the Langevin simulator, the agent's simulated runs and
+// the tests' Monte Carlo all draw from it. xoshiro128** uniforms and ziggurat Gaussians.
 //
 // xoshiro128** (Blackman & Vigna 2018, "Scrambled linear pseudorandom number generators") is
 // small, fast in 32-bit integer arithmetic and passes the usual statistical batteries; its
@@ -175,6 +176,16 @@ export class Rng {
 		}
 	}
 
+	/** Exponential waiting time of a process with `rate` events per unit time. */
+	nextExponential(rate: number): number {
+		return -Math.log(this.nextOpenFloat()) / rate;
+	}
+
+	/** Integer in [0, n). */
+	nextInt(n: number): number {
+		return Math.floor(this.nextFloat() * n);
+	}
+
 	/** Two independent N(0, 1) draws into out[0], out[1]. */
 	gaussianPair(out: Float64Array | number[]): void {
 		out[0] = this.nextGaussian();
@@ -185,4 +196,10 @@ export class Rng {
 /** A generator for `seed`: same seed → same sequence. */
 export function createRng(seed: Seed): Rng {
 	return new Rng(seed);
+}
+
+/** Uniforms on [0, 1) from a generator for `seed`, as a plain function (for code that takes `() => number`). */
+export function uniformStream(seed: Seed): () => number {
+	const rng = new Rng(seed);
+	return () => rng.nextFloat();
 }

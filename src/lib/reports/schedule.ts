@@ -1,55 +1,20 @@
 // When a person's morning report is due: their wall-clock time (e.g. 08:00) in a time zone, turned
 // into instants with the Intl API (so summer time is the zone database's business, not ours).
 // Written by hand because the offset search is a few lines; a date library would add a dependency
-// for it.
+// for it. The zone arithmetic itself (wall-clock parts, offsets) is ui/zoned-time.ts's.
+import { isTimeZone, zonedParts as civilIn, zoneOffsetMs as offsetAt } from '../ui/zoned-time';
 
 export const REPORT_TIME = /^([01]\d|2[0-3]):([0-5]\d)$/;
 const DAY_MS = 86_400_000;
 /** A report never reaches further back than this, however long the server was down. */
 export const MAX_REPORT_SPAN_MS = 7 * DAY_MS;
 
-export function isTimeZone(tz: string): boolean {
-	try {
-		new Intl.DateTimeFormat('en-GB', { timeZone: tz });
-		return true;
-	} catch {
-		return false;
-	}
-}
+export { isTimeZone };
 
 export function parseReportTime(hhmm: string): { hour: number; minute: number } {
 	const m = REPORT_TIME.exec(hhmm);
 	if (!m) throw new RangeError(`report time must be HH:MM on a 24-hour clock, got ${JSON.stringify(hhmm)}`);
 	return { hour: Number(m[1]), minute: Number(m[2]) };
-}
-
-type Civil = { year: number; month: number; day: number; hour: number; minute: number; second: number };
-
-const formatters = new Map<string, Intl.DateTimeFormat>();
-function civilIn(ms: number, timeZone: string): Civil {
-	let f = formatters.get(timeZone);
-	if (!f) {
-		if (!isTimeZone(timeZone)) throw new RangeError(`unknown time zone ${JSON.stringify(timeZone)} (use an IANA name such as Europe/Vienna)`);
-		f = new Intl.DateTimeFormat('en-GB', {
-			timeZone,
-			year: 'numeric',
-			month: 'numeric',
-			day: 'numeric',
-			hour: 'numeric',
-			minute: 'numeric',
-			second: 'numeric',
-			hourCycle: 'h23'
-		});
-		formatters.set(timeZone, f);
-	}
-	const parts = Object.fromEntries(f.formatToParts(new Date(ms)).map((p) => [p.type, p.value]));
-	return { year: +parts.year, month: +parts.month, day: +parts.day, hour: +parts.hour, minute: +parts.minute, second: +parts.second };
-}
-
-/** Offset of the zone from UTC at instant ms (local − UTC, in ms). */
-function offsetAt(ms: number, timeZone: string): number {
-	const c = civilIn(ms, timeZone);
-	return Date.UTC(c.year, c.month - 1, c.day, c.hour, c.minute, c.second) - (ms - (((ms % 1000) + 1000) % 1000));
 }
 
 /**

@@ -34,31 +34,6 @@ function requireTargetArl(targetArl: number): void {
 	}
 }
 
-/**
- * Finds the smallest x in (0, ∞) with f(x) ≥ target for a nondecreasing f, by doubling from
- * `start` and then bisecting to a relative width `relTol`.
- */
-function bisectUp(f: (x: number) => number, target: number, start: number, relTol: number): number {
-	let lo = 0;
-	let hi = start;
-	for (let i = 0; f(hi) < target; i++) {
-		if (i > 60) throw new RangeError(`no decision interval reaches a run length of ${target}`);
-		lo = hi;
-		hi *= 2;
-	}
-	while (hi - lo > relTol * hi) {
-		if (lo === 0 && hi < 1e-4 * start) {
-			throw new RangeError(
-				`every decision interval h > 0 already gives a run length of at least ${target}: ask for a longer target run length`
-			);
-		}
-		const mid = (lo + hi) / 2;
-		if (f(mid) >= target) hi = mid;
-		else lo = mid;
-	}
-	return hi;
-}
-
 // ───────────────────────────── Poisson CUSUM ─────────────────────────────
 
 /**
@@ -317,7 +292,7 @@ export function poissonCusumDecisionInterval(
 	requireRatio('rho', rho);
 	requirePositive('muPerStep', muPerStep);
 	const start = Math.max(Math.abs(Math.log(rho)), muPerStep * Math.abs(rho - 1));
-	return bisectUp((h) => poissonCusumArl(h, rho, muPerStep, 1), targetArl, start, 1e-4);
+	return solveIncreasing((h) => poissonCusumArl(h, rho, muPerStep, 1), targetArl, start, 1e-4, 'decision interval h', 'bisection');
 }
 
 // ───────────────────────────── Normal CUSUM ─────────────────────────────

@@ -1,17 +1,27 @@
-// Root finding for smooth increasing run-length curves: the parameter that meets a target ARL.
+// The one root finder for run-length curves: the chart parameter that meets a target ARL.
 
 /**
- * The x > 0 with f(x) = target for a continuous increasing f, by bracketing from `start`
- * (doubling or halving) and then the Illinois variant of false position on ln f − ln target,
- * which converges superlinearly on the nearly exponential run-length curves. Stops when the
- * bracket is narrower than relTol·x or ln f is within 1e-12 of ln target.
+ * How to close the bracket: `false-position` for a continuous curve, `bisection` for a step
+ * function (a count chart's ARL jumps with h), where false position would stall on a flat step.
+ */
+export type RootMethod = 'false-position' | 'bisection';
+
+/**
+ * The x > 0 with f(x) = target for an increasing f, by bracketing from `start` (doubling or
+ * halving) and then closing the bracket on ln f − ln target.
+ * - `false-position` (default): the Illinois variant, which converges superlinearly on the nearly
+ *   exponential run-length curves of continuous charts. Stops when the bracket is narrower than
+ *   relTol·x or ln f is within 1e-12 of ln target.
+ * - `bisection`: for a nondecreasing step function, the smallest x with f(x) ≥ target, returned
+ *   as the bracket's upper end (so f(x) ≥ target holds) once the bracket is narrower than relTol·x.
  */
 export function solveIncreasing(
 	f: (x: number) => number,
 	target: number,
 	start: number,
 	relTol: number,
-	what: string
+	what: string,
+	method: RootMethod = 'false-position'
 ): number {
 	const g = (x: number) => Math.log(f(x)) - Math.log(target);
 	let a = start;
@@ -38,6 +48,14 @@ export function solveIncreasing(
 			a /= 2;
 			ga = g(a);
 		}
+	}
+	if (method === 'bisection') {
+		while (b - a > relTol * b) {
+			const mid = (a + b) / 2;
+			if (g(mid) >= 0) b = mid;
+			else a = mid;
+		}
+		return b;
 	}
 	if (gb === 0) return b;
 	let side = 0;

@@ -1,4 +1,6 @@
 // How times, ages, durations and values read on screen: one place so every page says it alike.
+// Times are on the lab's clock (zoned-time.ts), the same on the server and in the browser.
+import { clockText, dateTimeText, dayMonthText, hourMinuteText, sameDay, zonedParts } from './zoned-time';
 
 const pad = (n: number) => String(n).padStart(2, '0');
 
@@ -6,15 +8,14 @@ function toDate(value: string | number | Date): Date {
 	return value instanceof Date ? value : new Date(value);
 }
 
-/** Clock time of day, with the date in front when it is not today: "03:41:07" or "12 Mar 03:41". */
+/** Clock time of day on the lab's clock, with the date in front when it is not today: "03:41:07" or "12 Mar 03:41". */
 export function formatTime(value: string | number | Date | null | undefined, now: Date = new Date()): string {
 	if (value == null) return '—';
 	const d = toDate(value);
 	if (Number.isNaN(d.getTime())) return '—';
-	const clock = `${pad(d.getHours())}:${pad(d.getMinutes())}:${pad(d.getSeconds())}`;
-	if (d.toDateString() === now.toDateString()) return clock;
-	const day = d.toLocaleDateString('en-GB', { day: 'numeric', month: 'short' });
-	return `${day} ${pad(d.getHours())}:${pad(d.getMinutes())}`;
+	const p = zonedParts(d.getTime());
+	if (sameDay(p, zonedParts(now.getTime()))) return clockText(p);
+	return `${dayMonthText(p)} ${hourMinuteText(p)}`;
 }
 
 /** Full date and time for tables and history: "2025-03-12 03:41:07". */
@@ -22,7 +23,7 @@ export function formatDateTime(value: string | number | Date | null | undefined)
 	if (value == null) return '—';
 	const d = toDate(value);
 	if (Number.isNaN(d.getTime())) return '—';
-	return `${d.getFullYear()}-${pad(d.getMonth() + 1)}-${pad(d.getDate())} ${pad(d.getHours())}:${pad(d.getMinutes())}:${pad(d.getSeconds())}`;
+	return dateTimeText(zonedParts(d.getTime()));
 }
 
 /** A span of seconds in the two largest units that matter: "42 s", "3 min 05 s", "2 h 14 min", "3 d 4 h". */
@@ -90,13 +91,18 @@ export function formatRate(x: number | null | undefined, significant = 3): strin
 	if (x === 0) return '0';
 	const a = Math.abs(x);
 	if (a >= 0.01 && a < 10_000) return Number(x.toPrecision(significant)).toString();
-	const exp = Math.floor(Math.log10(a));
-	const mant = x / 10 ** exp;
+	let exp = Math.floor(Math.log10(a));
+	let mant = Number((x / 10 ** exp).toPrecision(significant));
+	// Rounding can carry into the next decade (9.996 → 10.0): then the exponent takes it.
+	if (Math.abs(mant) >= 10) {
+		exp += 1;
+		mant = Number((x / 10 ** exp).toPrecision(significant));
+	}
 	const sup = String(exp)
 		.split('')
 		.map((c) => SUPERSCRIPT[c] ?? c)
 		.join('');
-	return `${Number(mant.toPrecision(significant))} × 10${sup}`;
+	return `${mant} × 10${sup}`;
 }
 
 /** Incident kinds as words people read: the one list lives in $lib/incidents/kinds. */

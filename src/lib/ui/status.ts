@@ -64,4 +64,3 @@ export function feedLook(status: 'connecting' | 'live' | 'retrying' | 'closed'):
 	}
 }
 
-export const SEVERITY_RANK: Record<Severity, number> = { critical: 0, warning: 1, info: 2 };

@@ -42,22 +42,8 @@ export interface Setup {
 	openCritical: number;
 }
 
-export interface Frame {
-	seq: number;
-	t: number;
-	window_s: number;
-	shots: number;
-	vacuum: number;
-	counts: number[];
-	lock: number;
-	switches: number;
-	dwell_s: number;
-	escapes: number;
-	vacuum_s: number;
-	transitions?: number[];
-	amp?: number;
-	aux?: Record<string, number>;
-}
+/** A stored frame as the API returns it: the wire protocol's own type, inferred from its schema. */
+export type { Frame } from '$lib/protocol/frame';
 
 export interface Incident {
 	id: string;

@@ -2,25 +2,10 @@
 // oscillator that switches as a continuous-time Markov jump process, sampled by evenly spaced shots.
 import type { Frame } from '../../../src/lib/protocol/frame';
 
-import { mulberry32 as rng } from '../../support/random';
+import { poissonKnuth, uniformStream as rng } from '../../support/random';
 
-/** mulberry32 (the shared test generator), under the name these tests use. */
+/** The shared test generator's uniforms, under the name these tests use. */
 export { rng };
-
-/** Poisson(mu) by inversion (sequential search of the CDF); fine for mu below a few hundred. */
-export function poisson(u: () => number, mu: number): number {
-	if (mu <= 0) return 0;
-	let k = 0;
-	let p = Math.exp(-mu);
-	let cdf = p;
-	const x = u();
-	while (x > cdf && p > 0) {
-		k += 1;
-		p *= mu / k;
-		cdf += p;
-	}
-	return k;
-}
 
 export const exponential = (u: () => number, rate: number) => -Math.log(1 - u()) / rate;
 
@@ -120,7 +105,7 @@ export function countFrames(o: { seed: number; windows: number; mean: (i: number
 			vacuum: 0,
 			counts: new Array(K).fill(60 / K),
 			lock: 0.95,
-			switches: poisson(u, o.mean(i)),
+			switches: poissonKnuth(o.mean(i), u),
 			dwell_s: o.dwell_s ?? 1,
 			escapes: 0,
 			vacuum_s: 0,
@@ -159,9 +144,9 @@ export function rateFrames(o: {
 			vacuum: Math.round(60 * vacuum_s),
 			counts: new Array(6).fill((60 - Math.round(60 * vacuum_s)) / 6),
 			lock: 0.95,
-			switches: poisson(u, o.switchRate(i) * dwell_s),
+			switches: poissonKnuth(o.switchRate(i) * dwell_s, u),
 			dwell_s,
-			escapes: o.escapeRate ? poisson(u, o.escapeRate(i) * vacuum_s) : 0,
+			escapes: o.escapeRate ? poissonKnuth(o.escapeRate(i) * vacuum_s, u) : 0,
 			vacuum_s,
 			...(T === null ? {} : { aux: { mxc_mK: T } })
 		});

@@ -2,7 +2,7 @@
 // (seeded), interval coverage, and agreement with independent fits computed in the test.
 import { describe, expect, it } from 'vitest';
 import { linearRegression } from 'simple-statistics';
-import { mulberry32, poissonKnuth } from '../../support/random';
+import { uniformStream, poissonKnuth } from '../../support/random';
 import {
 	fitActivation,
 	fitFromSimulation,
@@ -23,7 +23,7 @@ const TRUTH = { W0_per_s: 2e5, A: 10, mode_GHz: 5 };
 const TEMPS_mK = [10, 30, 50, 70, 90, 120];
 
 function drawTable(seed: number, exposure_s: number): CalibrationPoint[] {
-	const random = mulberry32(seed);
+	const random = uniformStream(seed);
 	return TEMPS_mK.map((T_mK) => {
 		const rate = TRUTH.W0_per_s * Math.exp(-TRUTH.A * inverseNoiseFactor(TRUTH.mode_GHz, T_mK));
 		return { T_mK, exposure_s, count: poissonKnuth(rate * exposure_s, random) };
@@ -36,7 +36,7 @@ describe('the test sampler', () => {
 	it('draws Poisson counts with the right mean and variance', () => {
 		// Poisson: mean = variance = μ (any probability text); checked at a small and a large μ.
 		for (const mu of [3.5, 400]) {
-			const random = mulberry32(7);
+			const random = uniformStream(7);
 			const draws = Array.from({ length: 4000 }, () => poissonKnuth(mu, random));
 			const mean = draws.reduce((a, b) => a + b, 0) / draws.length;
 			const variance = draws.reduce((a, b) => a + (b - mean) ** 2, 0) / (draws.length - 1);
@@ -165,7 +165,7 @@ describe('fitActivation', () => {
 		// x = [s(op)/s(ref)]/(2n̄+1) with s = (γ² + δ²)/ε² (DESIGN.md "Predicted rate"); truth within 3σ.
 		const reference = { detuning: 0.2, damping: 0.5, drive: 1 };
 		const drives = [0.9, 1, 1.1, 1.25];
-		const random = mulberry32(5);
+		const random = uniformStream(5);
 		const points = drives.flatMap((drive) =>
 			[15, 80].map((T_mK) => {
 				const op = { detuning: 0.2, damping: 0.5, drive };
@@ -260,7 +260,7 @@ describe('fitFromSimulation', () => {
 
 	it('recovers the exponent within 3σ from noisy simulated counts', () => {
 		// Poisson counts over a fixed exposure (seeded); truth within 3σ (normal approximation).
-		const random = mulberry32(2024);
+		const random = uniformStream(2024);
 		const results = lambdas.map((lambda) => {
 			const exposure = 40 / (W0 * Math.exp(-R / lambda));
 			const count = poissonKnuth(W0 * Math.exp(-R / lambda) * exposure, random);

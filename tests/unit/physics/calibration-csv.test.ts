@@ -1,6 +1,6 @@
 // parseCalibrationCsv: good tables parse; every bad line is listed by number and reason.
 // The expected points below are read off the sample text by hand (RFC 4180 comma-separated rows
-// with a header; this parser takes only its unquoted subset).
+// with a header, quoted fields included).
 import { describe, expect, it } from 'vitest';
 import { parseCalibrationCsv } from '$lib/physics/calibration-csv';
 import { fitActivation } from '$lib/physics/activation';
@@ -62,7 +62,7 @@ describe('parseCalibrationCsv', () => {
 			'40,12', // 8 wrong number of fields
 			'-5,12,100', // 9 negative temperature
 			'50,12,100', // 10 good
-			'"55",12,100', // 11 quoted
+			'"55",12,100', // 11 good: a quoted field is a field (RFC 4180 §2.5)
 			'60,1e999,100', // 12 overflows
 			'x,-1,-1' // 13 three problems at once
 		].join('\r\n');
@@ -70,7 +70,7 @@ describe('parseCalibrationCsv', () => {
 		expect(result.ok).toBe(false);
 		if (result.ok) return;
 		const byLine = (line: number) => result.errors.filter((e) => e.line === line).map((e) => e.message);
-		expect(result.errors.map((e) => e.line)).toEqual([3, 4, 5, 6, 7, 8, 9, 11, 12, 13, 13, 13]);
+		expect(result.errors.map((e) => e.line)).toEqual([3, 4, 5, 6, 7, 8, 9, 12, 13, 13, 13]);
 		expect(byLine(3)).toEqual(['count is not a number: "abc"']);
 		expect(byLine(4)[0]).toMatch(/count must not be negative/);
 		expect(byLine(5)[0]).toMatch(/count must be a whole number, got 3.5/);
@@ -78,9 +78,23 @@ describe('parseCalibrationCsv', () => {
 		expect(byLine(7)[0]).toMatch(/missing value for count/);
 		expect(byLine(8)[0]).toMatch(/expected 3 fields, found 2/);
 		expect(byLine(9)[0]).toMatch(/temperature must not be negative/);
-		expect(byLine(11)[0]).toMatch(/quoted fields are not supported/);
 		expect(byLine(12)[0]).toMatch(/count is out of range/);
 		expect(byLine(13)).toHaveLength(3);
+	});
+
+	it('reads quoted fields as RFC 4180 §2.5–2.7 has them, and counts line breaks inside quotes in line numbers', () => {
+		const good = parseCalibrationCsv('"T_mK","count","exposure_s"\n"10",20,100\n15,"21",100\n');
+		expect(good).toEqual({ ok: true, points: [{ T_mK: 10, count: 20, exposure_s: 100 }, { T_mK: 15, count: 21, exposure_s: 100 }] });
+		const text = ['T_mK,count,exposure_s', '"1,5",2,3', '"a', 'b",2,3', '9,x,3'].join('\n');
+		const result = parseCalibrationCsv(text);
+		expect(result.ok).toBe(false);
+		if (result.ok) return;
+		// line 2: a comma inside quotes stays in the field; lines 3–4: one row whose quoted field spans a line break; line 5 after it.
+		expect(result.errors).toEqual([
+			{ line: 2, message: 'T_mK is not a number: "1,5"' },
+			{ line: 3, message: 'T_mK is not a number: "a\nb"' },
+			{ line: 5, message: 'count is not a number: "x"' }
+		]);
 	});
 
 	it('reports header problems on line 1', () => {

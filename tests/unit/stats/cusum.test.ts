@@ -2,7 +2,7 @@
 // Monte Carlo estimates computed here.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { mulberry32, poissonKnuth } from '../../support/random';
+import { uniformStream, poissonKnuth } from '../../support/random';
 import {
 	TwoSidedPoissonCusum,
 	normalCusumArl,
@@ -92,7 +92,7 @@ describe('Poisson CUSUM step', () => {
 });
 
 describe('Poisson CUSUM run length (Brook & Evans Markov chain)', () => {
-	const random = mulberry32(20250611);
+	const random = uniformStream(20250611);
 	const sample = (mu: number) => poissonKnuth(mu, random);
 
 	// Each case: the chain's ARL against a seeded simulation of the recursion in this file,
@@ -225,7 +225,7 @@ describe('normal (tabular) CUSUM', () => {
 	});
 
 	it('one-sided ARL with a headstart matches a seeded simulation', () => {
-		const random = mulberry32(77);
+		const random = uniformStream(77);
 		const z = normalSampler(random);
 		for (const [shift, headstart] of [
 			[1, 2],

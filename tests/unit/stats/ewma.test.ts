@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
 import { ewmaArl, ewmaLimitForArl, ewmaLimits, ewmaStep } from '$lib/stats';
-import { mulberry32 } from '../../support/random';
+import { uniformStream } from '../../support/random';
 
 describe('EWMA step and limits', () => {
 	it('step is the exponentially weighted average', () => {
@@ -48,7 +48,7 @@ describe('EWMA run length (Markov chain)', () => {
 	});
 
 	it('matches a seeded simulation at a 1σ and a 0.5σ shift', () => {
-		const random = mulberry32(99);
+		const random = uniformStream(99);
 		const normal = () => {
 			let u = 0;
 			while (u === 0) u = random();

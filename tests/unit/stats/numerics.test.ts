@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { gaussLegendre, gaussLegendreOn } from '$lib/stats/gauss-legendre';
 import { solveLinearSystem } from '$lib/stats/linear-system';
-import { mulberry32 } from '../../support/random';
+import { uniformStream } from '../../support/random';
 
 describe('Gauss–Legendre quadrature', () => {
 	it('is exact for polynomials up to degree 2n − 1', () => {
@@ -38,7 +38,7 @@ describe('solveLinearSystem', () => {
 	};
 
 	it('solves I − R for a random substochastic R, and a system that needs pivoting', () => {
-		const random = mulberry32(4);
+		const random = uniformStream(4);
 		const n = 40;
 		const a = new Float64Array(n * n);
 		for (let i = 0; i < n; i++) {

@@ -50,7 +50,7 @@ describe('timelineHref', () => {
 
 describe('ticks', () => {
 	it('fall on round steps inside the view, at most about the target count', () => {
-		const ticks = timeTicks(v, 6, 0);
+		const ticks = timeTicks(v, 6, 'UTC');
 		expect(ticks.length).toBeGreaterThan(2);
 		expect(ticks.length).toBeLessThanOrEqual(7);
 		const step = ticks[1].t_ms - ticks[0].t_ms;

@@ -3,6 +3,7 @@
 // both need the server stopped; the CLI says so when it is not.
 import { existsSync, mkdirSync, readdirSync, rmSync, writeFileSync } from 'node:fs';
 import path from 'node:path';
+import { lockPath } from '../data-lock';
 import { PGlite } from '@electric-sql/pglite';
 import { drizzle } from 'drizzle-orm/pglite';
 import { migrate } from 'drizzle-orm/pglite/migrator';
@@ -42,8 +43,9 @@ export async function restoreEmbedded(dump: Blob, dataDir: string, migrationsFol
 		clearInterval(keepAlive);
 		await client.close();
 	}
-	// The dump holds the folder as it was, pid file included: that process is not this one's.
+	// The dump holds the folder as it was, pid file and lock included: that process is not this one's.
 	rmSync(path.join(dataDir, 'server.pid'), { force: true });
+	rmSync(lockPath(dataDir), { recursive: true, force: true });
 }
 
 /**

@@ -1,9 +1,10 @@
 // Incidents: opened and cleared by the detectors, acknowledged and resolved by operators.
 // Every change writes an incident_events row with who (null for the detector) and when.
 import { randomUUID } from 'node:crypto';
-import { and, asc, count, desc, eq, ne, type SQL } from 'drizzle-orm';
+import { and, asc, count, desc, eq, ne, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { safeText } from '../../protocol/safe-text';
+import { SEVERITY_RANK } from '../../incidents/severity';
 import type { Db, Tx } from '../db';
 import { incidentEvents, incidents, runs, setups, user } from '../db/schema';
 import { pageOrGroup, queueClearNotice, stopPaging } from '../oncall/paging';
@@ -160,6 +161,12 @@ export const incidentQuerySchema = z.object({
 });
 export type IncidentQuery = z.infer<typeof incidentQuerySchema>;
 
+/** Severity as its rank (SEVERITY_RANK), so "descending" means critical, warning, info. */
+const severityRank = sql`case ${incidents.severity} ${sql.join(
+	Object.entries(SEVERITY_RANK).map(([severity, rank]) => sql`when ${severity} then ${sql.raw(String(rank))}`),
+	sql` `
+)} end`;
+
 export async function listIncidents(db: Db, q: IncidentQuery) {
 	const filters: SQL[] = [];
 	if (q.state) filters.push(eq(incidents.state, q.state));
@@ -167,7 +174,7 @@ export async function listIncidents(db: Db, q: IncidentQuery) {
 	if (q.run) filters.push(eq(incidents.runId, q.run));
 	if (q.kind) filters.push(eq(incidents.kind, q.kind));
 	const where = filters.length ? and(...filters) : undefined;
-	const sortColumn = { openedAt: incidents.openedAt, severity: incidents.severity, kind: incidents.kind, state: incidents.state }[q.sort];
+	const sortColumn = { openedAt: incidents.openedAt, severity: severityRank, kind: incidents.kind, state: incidents.state }[q.sort];
 	const direction = q.order === 'asc' ? asc : desc;
 	const [rows, [{ total }]] = await Promise.all([
 		db

@@ -41,6 +41,7 @@ export async function startMailCatcher({ port = 0 }: { port?: number } = {}): Pr
 	const caught: CaughtMail[] = [];
 	const waiters = new Set<(mail: CaughtMail) => void>();
 	let nextId = 1;
+	let parsing: Promise<void> = Promise.resolve();
 
 	const server = new SMTPServer({
 		authOptional: true,
@@ -63,27 +64,32 @@ export async function startMailCatcher({ port = 0 }: { port?: number } = {}): Pr
 					return;
 				}
 				const raw = Buffer.concat(chunks).toString('utf8');
-				const parsed = parseMail(raw);
 				const envelope = {
 					from: session.envelope.mailFrom ? session.envelope.mailFrom.address : null,
 					to: session.envelope.rcptTo.map((r) => r.address)
 				};
-				const mail: CaughtMail = {
-					id: nextId++,
-					from: parsed.from || envelope.from || '',
-					to: envelope.to,
-					subject: parsed.subject,
-					...(parsed.text === undefined ? {} : { text: parsed.text }),
-					...(parsed.html === undefined ? {} : { html: parsed.html }),
-					...(parsed.messageId === undefined ? {} : { messageId: parsed.messageId }),
-					headers: parsed.headers,
-					envelope,
-					receivedAt: new Date(),
-					raw
-				};
-				caught.push(mail);
-				for (const notify of [...waiters]) notify(mail);
-				callback();
+				// Parsing is asynchronous: chained, so messages keep their order of arrival.
+				parsing = parsing
+					.then(() => parseMail(raw))
+					.then((parsed) => {
+						const mail: CaughtMail = {
+							id: nextId++,
+							from: parsed.from || envelope.from || '',
+							to: envelope.to,
+							subject: parsed.subject,
+							...(parsed.text === undefined ? {} : { text: parsed.text }),
+							...(parsed.html === undefined ? {} : { html: parsed.html }),
+							...(parsed.messageId === undefined ? {} : { messageId: parsed.messageId }),
+							headers: parsed.headers,
+							envelope,
+							receivedAt: new Date(),
+							raw
+						};
+						caught.push(mail);
+						callback();
+						for (const notify of [...waiters]) notify(mail);
+					}, (err: Error) => callback(err))
+					.catch((err: Error) => console.warn(`mail catcher: ${err.message}`));
 			});
 		}
 	});

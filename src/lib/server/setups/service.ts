@@ -4,6 +4,7 @@ import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
 import { safeText } from '../../protocol/safe-text';
+import { coercedNumberField } from '../../validation/number-field';
 import type { Db, Tx } from '../db';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
@@ -11,10 +12,10 @@ export const newSetupSchema = z
 	.object({
 		name: safeText(z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters')),
 		description: safeText(z.string().trim().max(500)).default(''),
-		order: z.coerce.number().int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
-		states: z.coerce.number().int().min(2).max(16),
-		mode_GHz: z.coerce.number().positive('mode_GHz must be positive').max(100),
-		nominal_mK: z.coerce.number().min(0, 'nominal_mK must not be negative').max(4000)
+		order: coercedNumberField('order').int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
+		states: coercedNumberField('states').int().min(2).max(16),
+		mode_GHz: coercedNumberField('mode_GHz').positive('mode_GHz must be positive').max(100),
+		nominal_mK: coercedNumberField('nominal_mK').min(0, 'nominal_mK must not be negative').max(4000)
 	})
 	.refine((s) => s.states === s.order || s.states === 2 * s.order, {
 		message: 'states must be M or 2M',

@@ -2,6 +2,7 @@
 // intervals on the agent's clock, and the three outcomes (both, only the replay, only live).
 import type { ReplayIncident } from '$lib/detect/replay';
 import type { Incident, Severity } from '$lib/ui/types';
+import { clockText, dayMonthText, sameDay, zonedParts } from '$lib/ui/zoned-time';
 
 export type { ReplayIncident };
 
@@ -153,17 +154,15 @@ export function shiftWords(shift_ms: number, formatDuration: (s: number) => stri
 	return `${formatDuration(Math.abs(shift_ms) / 1000)} ${shift_ms > 0 ? 'later' : 'earlier'}`;
 }
 
-const pad2 = (n: number) => String(n).padStart(2, '0');
 
 /**
  * A time on the run's clock to the second ("00:53:32"), with the day in front when it is not the
  * day of `ref_ms` (the run's first frame): a replay is read window by window.
  */
 export function clockAt(ms: number, ref_ms: number | null): string {
-	const d = new Date(ms);
-	const clock = `${pad2(d.getHours())}:${pad2(d.getMinutes())}:${pad2(d.getSeconds())}`;
-	if (ref_ms !== null && new Date(ref_ms).toDateString() === d.toDateString()) return clock;
-	return `${d.toLocaleDateString('en-GB', { day: 'numeric', month: 'short' })} ${clock}`;
+	const p = zonedParts(ms);
+	if (ref_ms !== null && sameDay(zonedParts(ref_ms), p)) return clockText(p);
+	return `${dayMonthText(p)} ${clockText(p)}`;
 }
 
 /** " (seq 32)" or nothing. */
