@@ -3,24 +3,12 @@ import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
 import { z } from 'zod';
-import { safeText } from '../../protocol/safe-text';
 import type { Db, Tx } from '../db';
+import type { NewSetup } from '../../setups/forms';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
-export const newSetupSchema = z
-	.object({
-		name: safeText(z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters')),
-		description: safeText(z.string().trim().max(500)).default(''),
-		order: z.coerce.number().int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
-		states: z.coerce.number().int().min(2).max(16),
-		mode_GHz: z.coerce.number().positive('mode_GHz must be positive').max(100),
-		nominal_mK: z.coerce.number().min(0, 'nominal_mK must not be negative').max(4000)
-	})
-	.refine((s) => s.states === s.order || s.states === 2 * s.order, {
-		message: 'states must be M or 2M',
-		path: ['states']
-	});
-export type NewSetup = z.infer<typeof newSetupSchema>;
+// The schema lives beside the forms so the browser checks with it too.
+export { newSetupSchema, type NewSetup } from '../../setups/forms';
 
 export async function createSetup(db: Db, input: NewSetup, createdBy: string | null) {
 	const [row] = await db
@@ -43,6 +31,11 @@ export async function createSetup(db: Db, input: NewSetup, createdBy: string | n
 export async function getSetup(db: Db, id: string) {
 	const [row] = await db.select().from(setups).where(eq(setups.id, id));
 	return row ?? null;
+}
+
+/** Every setup by name, without run or incident counts (pickers and filters). */
+export async function listSetups(db: Db) {
+	return db.select().from(setups).orderBy(setups.name);
 }
 
 export async function setupNameTaken(db: Db, name: string) {
