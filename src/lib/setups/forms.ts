@@ -42,3 +42,14 @@ export const newWebhookSchema = z.object({
 });
 
 export const memberSchema = z.object({ userId: safeText(z.string().min(1, 'userId is required')) });
+
+/** Raw-frame retention of a setup: whole days, or empty (null) for "keep for good". */
+export const retentionSchema = z.object({
+	rawRetentionDays: z
+		.number({ error: 'rawRetentionDays must be a whole number of days' })
+		.int('rawRetentionDays must be a whole number of days')
+		.min(1, 'rawRetentionDays is at least 1 day (leave it empty to keep raw frames for good)')
+		.max(36_500, 'rawRetentionDays is at most 36500 days')
+		.nullable()
+		.default(null)
+});

@@ -91,18 +91,7 @@ export async function alertRecipients(db: Tx | Db, setupId: string) {
 		.where(inArray(user.role, ['operator', 'admin']));
 }
 
-/** Raw-frame retention of a setup: whole days, or empty for "keep for good". Same schema for form and API. */
-export const retentionSchema = z.object({
-	rawRetentionDays: z.preprocess(
-		(v) => (v === '' || v === undefined ? null : v),
-		z.coerce
-			.number()
-			.int('rawRetentionDays must be a whole number of days')
-			.min(1, 'rawRetentionDays is at least 1 day (leave it empty to keep raw frames for good)')
-			.max(36_500, 'rawRetentionDays is at most 36500 days')
-			.nullable()
-	)
-});
+export { retentionSchema } from '../../setups/forms';
 
 export async function setRawRetention(db: Db, setupId: string, rawRetentionDays: number | null) {
 	const [row] = await db.update(setups).set({ rawRetentionDays }).where(eq(setups.id, setupId)).returning();

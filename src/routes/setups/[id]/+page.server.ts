@@ -4,20 +4,20 @@ import { error, fail as kitFail } from '@sveltejs/kit';
 import { fail, message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { hasRole } from '$lib/roles';
-import { describeZodError } from '$lib/protocol/messages';
 import { listUsers, personExists } from '$lib/server/auth/users';
 import { requireRole } from '$lib/server/http/guard';
 import { getRuntime } from '$lib/server/runtime';
 import { listRuns } from '$lib/server/runs/service';
-import { addMember, getSetup, listMembers, removeMember, retentionSchema, setRawRetention } from '$lib/server/setups/service';
+import { addMember, getSetup, listMembers, removeMember, setRawRetention } from '$lib/server/setups/service';
 import { createAgentToken, listAgentTokens, revokeAgentToken } from '$lib/server/setups/tokens';
 import { addWebhook, listWebhooks, removeWebhook } from '$lib/server/webhooks/service';
-import { agentTokenSchema, memberSchema, newWebhookSchema } from '$lib/setups/forms';
+import { agentTokenSchema, memberSchema, newWebhookSchema, retentionSchema } from '$lib/setups/forms';
 import type { Person } from '$lib/ui/types';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 const tokenForm = () => superValidate(zod4(agentTokenSchema), { id: 'createToken' });
 const webhookForm = () => superValidate(zod4(newWebhookSchema), { id: 'addWebhook' });
+const retentionForm = (days: number | null) => superValidate({ rawRetentionDays: days }, zod4(retentionSchema), { id: 'setRetention', errors: false });
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, 'observer');
@@ -25,7 +25,7 @@ export const load: PageServerLoad = async (event) => {
 	const { db } = await getRuntime();
 	const setup = await getSetup(db, event.params.id);
 	if (!setup) error(404, 'no setup with this id');
-	const [runs, tokens, members, people, webhooks, newToken, newWebhook] = await Promise.all([
+	const [runs, tokens, members, people, webhooks, newToken, newWebhook, retention] = await Promise.all([
 		listRuns(db, { setup: setup.id }),
 		operator ? listAgentTokens(db, setup.id) : Promise.resolve([]),
 		listMembers(db, setup.id),
@@ -33,10 +33,11 @@ export const load: PageServerLoad = async (event) => {
 		user.role === 'admin' ? listUsers(db) : Promise.resolve(null),
 		operator ? listWebhooks(db, setup.id) : Promise.resolve([]),
 		tokenForm(),
-		webhookForm()
+		webhookForm(),
+		retentionForm(setup.rawRetentionDays)
 	]);
 	// better-auth keeps role as nullable text; the people shown are the ones the role column names.
-	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook };
+	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook, retentionForm: retention };
 };
 
 function operatorOnly(event: RequestEvent, intent: string) {
@@ -73,14 +74,13 @@ export const actions: Actions = {
 		return { intent: 'removeWebhook', removed: hookId };
 	},
 	setRetention: async (event) => {
-		const denied = operatorOnly(event, 'setRetention');
-		if (denied) return denied;
-		const parsed = retentionSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return kitFail(400, { intent: 'setRetention', message: describeZodError(parsed.error) });
+		const form = await superValidate(event.request, zod4(retentionSchema), { id: 'setRetention' });
+		if (!hasRole(event.locals.user?.role, 'operator')) return message(form, 'This needs the operator role.', { status: 403 });
+		if (!form.valid) return fail(400, { form });
 		const { db } = await getRuntime();
-		const setup = await setRawRetention(db, event.params.id, parsed.data.rawRetentionDays);
-		if (!setup) return kitFail(404, { intent: 'setRetention', message: 'This setup no longer exists.' });
-		return { intent: 'setRetention' };
+		const setup = await setRawRetention(db, event.params.id, form.data.rawRetentionDays);
+		if (!setup) return message(form, 'This setup no longer exists.', { status: 404 });
+		return message(form, 'Saved.');
 	},
 	createToken: async (event) => {
 		const form = await superValidate(event.request, zod4(agentTokenSchema), { id: 'createToken' });
