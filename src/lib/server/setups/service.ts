@@ -2,13 +2,12 @@
 import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
-import { z } from 'zod';
 import type { Db, Tx } from '../db';
 import type { NewSetup } from '../../setups/forms';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
-// The schema lives beside the forms so the browser checks with it too.
-export { newSetupSchema, type NewSetup } from '../../setups/forms';
+// The schemas live beside the forms so the browser checks with them too.
+export { newSetupSchema, retentionSchema, type NewSetup } from '../../setups/forms';
 
 export async function createSetup(db: Db, input: NewSetup, createdBy: string | null) {
 	const [row] = await db
@@ -90,8 +89,6 @@ export async function alertRecipients(db: Tx | Db, setupId: string) {
 		.from(user)
 		.where(inArray(user.role, ['operator', 'admin']));
 }
-
-export { retentionSchema } from '../../setups/forms';
 
 export async function setRawRetention(db: Db, setupId: string, rawRetentionDays: number | null) {
 	const [row] = await db.update(setups).set({ rawRetentionDays }).where(eq(setups.id, setupId)).returning();
