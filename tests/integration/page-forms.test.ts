@@ -38,8 +38,8 @@ describe('the new-setup form', () => {
 		expect(blank.status).toBe(400);
 		expect(await blank.text()).toContain('mode_GHz is required');
 
-		const observer = await postForm(server, '/setups?/createSetup', fields, cookies.observer);
-		expect(observer.status).toBe(403);
+		const refused = await postForm(server, '/setups?/createSetup', fields, cookies.observer);
+		expect(refused.status).toBe(403);
 
 		const made = await postForm(server, '/setups?/createSetup', fields, cookies.operator);
 		expect(made.status).toBe(303);
@@ -57,6 +57,16 @@ describe('the new-setup form', () => {
 		const token = await postForm(server, `${location}?/createToken`, { label: 'rack PC' }, cookies.operator);
 		expect(token.status).toBe(200);
 		expect(await token.text()).toContain('copy it now, it is not shown again');
+
+		// The members form: a person must be chosen, and must exist.
+		const nobody = await postForm(server, `${location}?/addMember`, { userId: '' }, cookies.operator);
+		expect(nobody.status).toBe(400);
+		expect(await nobody.text()).toContain('userId is required');
+		const ghost = await postForm(server, `${location}?/addMember`, { userId: 'no-such-person' }, cookies.operator);
+		expect(ghost.status).toBe(400);
+		expect(await ghost.text()).toContain('no such person');
+		const observer = await postForm(server, `${location}?/addMember`, { userId: 'no-such-person' }, cookies.observer);
+		expect(observer.status).toBe(403);
 	});
 });
 

@@ -41,7 +41,7 @@ export const newWebhookSchema = z.object({
 	label: z.string().trim().max(80, 'label is at most 80 characters').default('')
 });
 
-export const memberSchema = z.object({ userId: safeText(z.string().min(1, 'userId is required')) });
+export const memberSchema = z.object({ userId: safeText(z.string().min(1, 'userId is required: choose a person to add')) });
 
 /** Raw-frame retention of a setup: whole days, or empty (null) for "keep for good". */
 export const retentionSchema = z.object({

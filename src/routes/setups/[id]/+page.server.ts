@@ -1,7 +1,7 @@
 // One setup: details, runs, members and (for operators) its agent tokens and webhooks, created and
 // revoked here through the same services and role checks as the JSON API.
 import { error, fail as kitFail } from '@sveltejs/kit';
-import { fail, message, superValidate } from 'sveltekit-superforms';
+import { fail, message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { hasRole } from '$lib/roles';
 import { listUsers, personExists } from '$lib/server/auth/users';
@@ -17,6 +17,7 @@ import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
 const tokenForm = () => superValidate(zod4(agentTokenSchema), { id: 'createToken' });
 const webhookForm = () => superValidate(zod4(newWebhookSchema), { id: 'addWebhook' });
+const memberForm = () => superValidate(zod4(memberSchema), { id: 'addMember' });
 const retentionForm = (days: number | null) => superValidate({ rawRetentionDays: days }, zod4(retentionSchema), { id: 'setRetention', errors: false });
 
 export const load: PageServerLoad = async (event) => {
@@ -25,7 +26,7 @@ export const load: PageServerLoad = async (event) => {
 	const { db } = await getRuntime();
 	const setup = await getSetup(db, event.params.id);
 	if (!setup) error(404, 'no setup with this id');
-	const [runs, tokens, members, people, webhooks, newToken, newWebhook, retention] = await Promise.all([
+	const [runs, tokens, members, people, webhooks, newToken, newWebhook, retention, newMember] = await Promise.all([
 		listRuns(db, { setup: setup.id }),
 		operator ? listAgentTokens(db, setup.id) : Promise.resolve([]),
 		listMembers(db, setup.id),
@@ -34,10 +35,11 @@ export const load: PageServerLoad = async (event) => {
 		operator ? listWebhooks(db, setup.id) : Promise.resolve([]),
 		tokenForm(),
 		webhookForm(),
-		retentionForm(setup.rawRetentionDays)
+		retentionForm(setup.rawRetentionDays),
+		memberForm()
 	]);
 	// better-auth keeps role as nullable text; the people shown are the ones the role column names.
-	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook, retentionForm: retention };
+	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook, retentionForm: retention, memberForm: newMember };
 };
 
 function operatorOnly(event: RequestEvent, intent: string) {
@@ -103,15 +105,13 @@ export const actions: Actions = {
 		return { intent: 'revokeToken', revoked: tokenId };
 	},
 	addMember: async (event) => {
-		const denied = operatorOnly(event, 'addMember');
-		if (denied) return denied;
-		const parsed = memberSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return kitFail(400, { intent: 'addMember', message: 'Choose a person to add.' });
-		const { db } = await getRuntime();
-		if (!(await getSetup(db, event.params.id))) return kitFail(404, { intent: 'addMember', message: 'This setup no longer exists.' });
-		if (!(await personExists(db, parsed.data.userId))) return kitFail(400, { intent: 'addMember', message: 'no such person' });
-		await addMember(db, event.params.id, parsed.data.userId);
-		return { intent: 'addMember' };
+		const form = await superValidate(event.request, zod4(memberSchema), { id: 'addMember' });
+		const ctx = await operatorAndSetup(event);
+		if (!ctx.ok) return message(form, ctx.text, { status: ctx.status });
+		if (!form.valid) return fail(400, { form });
+		if (!(await personExists(ctx.db, form.data.userId))) return setError(form, 'userId', 'no such person');
+		await addMember(ctx.db, event.params.id, form.data.userId);
+		return { form };
 	},
 	removeMember: async (event) => {
 		const denied = operatorOnly(event, 'removeMember');
