@@ -1,5 +1,6 @@
 // The people forms' rules, shared by the browser (superforms' client checks) and the server.
 import { z } from 'zod';
+import { safeText } from '../protocol/safe-text';
 import { ROLES, hasRole, type Role } from '../roles';
 
 const password = z
@@ -9,6 +10,20 @@ const password = z
 
 const samePassword = { path: ['confirm'], message: 'the two passwords differ' };
 const matches = (v: { password: string; confirm: string }) => v.password === v.confirm;
+
+export const signInSchema = z.object({
+	email: z.email('enter your e-mail address'),
+	password: z.string().min(1, 'enter your password')
+});
+
+/** An account made by an admin (the admin page, POST /api/users and the user:add CLI). */
+export const newUserSchema = z.object({
+	email: z.email('email must be a valid e-mail address'),
+	name: safeText(z.string().trim().min(1, 'name is required').max(100, 'name must have at most 100 characters')),
+	role: z.enum(ROLES, { message: 'role must be admin, operator or observer' }),
+	password: safeText(password)
+});
+export type NewUser = z.infer<typeof newUserSchema>;
 
 export const inviteSchema = z.object({
 	email: z.email('email must be a valid e-mail address').max(254).toLowerCase(),

@@ -11,12 +11,12 @@ export type DeliveryRow = {
 	payload: Record<string, unknown>;
 	status: 'pending' | 'sending' | 'sent' | 'failed' | 'expired';
 	attempts: number;
-	nextAttemptAt: string;
-	expiresAt: string;
+	nextAttemptAt: string | Date;
+	expiresAt: string | Date;
 	lastError: string | null;
-	sentAt: string | null;
-	createdAt: string;
-	attemptLog: { id: number; startedAt: string; durationMs: number; outcome: string; error: string | null }[];
+	sentAt: string | Date | null;
+	createdAt: string | Date;
+	attemptLog: { id: number; startedAt: string | Date; durationMs: number; outcome: string; error: string | null }[];
 };
 
 export const DELIVERY_LOOK: Record<DeliveryRow['status'], StatusLook> = {

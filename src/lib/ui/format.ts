@@ -27,6 +27,11 @@ export function formatDateTime(value: string | number | Date | null | undefined)
 }
 
 /** A span of seconds in the two largest units that matter: "42 s", "3 min 05 s", "2 h 14 min", "3 d 4 h". */
+/** A moment as milliseconds since the epoch, for ordering: loaders give Dates, the JSON API ISO strings. */
+export function instantMs(value: string | number | Date): number {
+	return new Date(value).getTime();
+}
+
 export function formatDuration(seconds: number | null | undefined): string {
 	if (seconds == null || !Number.isFinite(seconds)) return '—';
 	const s = Math.max(0, Math.floor(seconds));

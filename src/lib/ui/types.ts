@@ -1,6 +1,9 @@
 // Shapes of the JSON API as the pages read them (see the API contract); browser-safe, no server imports.
 import type { Role } from '$lib/roles';
 
+/** A moment: a Date from a page's loader (which calls the services), an ISO string from the JSON API. */
+export type Instant = string | Date;
+
 export type RunStatus = 'open' | 'ended';
 export type IncidentState = 'open' | 'acknowledged' | 'resolved';
 export type Severity = 'critical' | 'warning' | 'info';
@@ -17,12 +20,12 @@ export interface Run {
 	operatingPoint: Record<string, number | string | boolean> | null;
 	agent: string;
 	status: RunStatus;
-	startedAt: string;
-	endedAt: string | null;
+	startedAt: Instant;
+	endedAt: Instant | null;
 	endReason: string | null;
 	lastSeq: number;
 	lastFrameT: number | null;
-	lastFrameAt: string | null;
+	lastFrameAt: Instant | null;
 	lastLock: number | null;
 	frameCount: number;
 	gapCount: number;
@@ -36,7 +39,7 @@ export interface Setup {
 	states: number;
 	modeGHz: number;
 	nominalMK: number;
-	createdAt: string;
+	createdAt: Instant;
 	openRuns: Run[];
 	openIncidents: number;
 	openCritical: number;
@@ -57,17 +60,17 @@ export interface Incident {
 	runName?: string;
 	setupId: string;
 	setupName?: string;
-	openedAt: string;
+	openedAt: Instant;
 	openedSeq: number | null;
 	openedT: number | null;
-	acknowledgedAt: string | null;
-	resolvedAt: string | null;
+	acknowledgedAt: Instant | null;
+	resolvedAt: Instant | null;
 	conditionActive: boolean;
 }
 
 export interface IncidentEvent {
 	id: number | string;
-	at: string;
+	at: Instant;
 	action: 'opened' | 'acknowledged' | 'resolved' | 'auto_resolved' | 'condition_cleared' | 'note' | 'paged' | 'escalated' | 'grouped';
 	note: string | null;
 	actorName: string | null;
@@ -76,15 +79,16 @@ export interface IncidentEvent {
 export interface Gap {
 	fromSeq: number;
 	toSeq: number;
-	detectedAt: string;
+	detectedAt: Instant;
 }
 
 export interface Occupancy {
 	counts: number[];
 	vacuum: number;
 	shots: number;
-	fromSeq: number;
-	toSeq: number;
+	/** Null when the run has no frame yet. */
+	fromSeq: number | null;
+	toSeq: number | null;
 }
 
 export interface AgentToken {
@@ -92,9 +96,9 @@ export interface AgentToken {
 	setupId: string;
 	label: string;
 	prefix: string;
-	createdAt: string;
-	revokedAt: string | null;
-	lastUsedAt: string | null;
+	createdAt: Instant;
+	revokedAt: Instant | null;
+	lastUsedAt: Instant | null;
 }
 
 export interface Person {
@@ -113,5 +117,5 @@ export interface Webhook {
 	url: string;
 	label: string;
 	secretPrefix: string;
-	createdAt: string;
+	createdAt: Instant;
 }

@@ -1,58 +1,73 @@
-// Admin: people and their roles. Guarded here for a clear 403 page; the API enforces it as well.
-import { error, fail } from '@sveltejs/kit';
+// Admin: people and their roles. Guarded here for a clear 403 page; the same services and checks as the API.
+import { error, fail as kitFail } from '@sveltejs/kit';
+import { APIError } from 'better-auth/api';
+import { fail, message, setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { newUserSchema } from '$lib/people/forms';
 import { isRole } from '$lib/roles';
+import { addUser, changeRole, listUsers, RoleChangeError } from '$lib/server/auth/users';
 import { ActivationError, setActive } from '$lib/server/people/activation';
 import { getRuntime } from '$lib/server/runtime';
-import { apiGet, apiSend, field } from '$lib/ui/api';
-import { fieldError } from '$lib/ui/fields';
-import type { Person } from '$lib/ui/types';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async ({ fetch, locals }) => {
+export const load: PageServerLoad = async ({ locals }) => {
 	if (locals.user?.role !== 'admin') error(403, 'Managing people needs the admin role.');
-	const { users } = await apiGet<{ users: Person[] }>(fetch, '/api/users');
-	return { users };
+	const { db } = await getRuntime();
+	const [users, form] = await Promise.all([listUsers(db), superValidate({ role: 'observer' as const }, zod4(newUserSchema), { errors: false })]);
+	return { users, form };
 };
 
+/** The userId field of a row's small form, or null when the form did not send it. */
+function userIdOf(form: FormData): string | null {
+	const v = form.get('userId');
+	return typeof v === 'string' && v.trim() !== '' ? v.trim() : null;
+}
+
 export const actions: Actions = {
-	addUser: async ({ request, fetch, locals }) => {
-		const form = await request.formData();
-		const values = { email: field(form, 'email') ?? '', name: field(form, 'name') ?? '', role: field(form, 'role') ?? 'observer' };
-		if (locals.user?.role !== 'admin') return fail(403, { intent: 'addUser', values, field: null, message: 'Only admins add people.' });
-		const password = String(form.get('password') ?? '');
-		if (!values.email) return fail(400, { intent: 'addUser', values, field: 'email', message: 'Enter their e-mail address.' });
-		if (!values.name) return fail(400, { intent: 'addUser', values, field: 'name', message: 'Enter their name.' });
-		if (!isRole(values.role)) return fail(400, { intent: 'addUser', values, field: 'role', message: 'Choose admin, operator or observer.' });
-		if (!password) return fail(400, { intent: 'addUser', values, field: 'password', message: 'Set a first password for them.' });
-		const res = await apiSend<{ user: Person }>(fetch, '/api/users', 'POST', { ...values, password });
-		if (!res.ok || !res.data) {
-			const { field: f, text } = fieldError(res.message);
-			return fail(res.status, { intent: 'addUser', values, field: f, message: text });
+	addUser: async ({ request, locals }) => {
+		const form = await superValidate(request, zod4(newUserSchema));
+		const input = { ...form.data };
+		// The first password never travels back to the page.
+		form.data.password = '';
+		if (locals.user?.role !== 'admin') return message(form, 'Only admins add people.', { status: 403 });
+		if (!form.valid) return fail(400, { form });
+		const { auth } = await getRuntime();
+		try {
+			const user = await addUser(auth, input);
+			return message(form, `Added ${user.name}.`);
+		} catch (err) {
+			if (err instanceof APIError) return setError(form, 'email', err.message);
+			throw err;
 		}
-		return { intent: 'addUser', added: res.data.user.name };
 	},
-	changeRole: async ({ request, fetch, locals }) => {
+	changeRole: async ({ request, locals }) => {
 		const form = await request.formData();
-		const userId = field(form, 'userId');
-		const role = field(form, 'role');
-		if (locals.user?.role !== 'admin') return fail(403, { intent: 'changeRole', userId, message: 'Only admins change roles.' });
-		if (!userId) return fail(400, { intent: 'changeRole', userId, message: 'The form did not say whose role.' });
-		if (!isRole(role)) return fail(400, { intent: 'changeRole', userId, message: 'Choose admin, operator or observer.' });
-		const res = await apiSend<{ user: Person }>(fetch, `/api/users/${encodeURIComponent(userId)}`, 'PATCH', { role });
-		if (!res.ok) return fail(res.status, { intent: 'changeRole', userId, message: fieldError(res.message).text });
+		const userId = userIdOf(form);
+		const role = form.get('role');
+		const me = locals.user;
+		if (me?.role !== 'admin') return kitFail(403, { intent: 'changeRole', userId, message: 'Only admins change roles.' });
+		if (!userId) return kitFail(400, { intent: 'changeRole', userId, message: 'The form did not say whose role.' });
+		if (!isRole(role)) return kitFail(400, { intent: 'changeRole', userId, message: 'Choose admin, operator or observer.' });
+		const { db } = await getRuntime();
+		try {
+			if (!(await changeRole(db, me.id, userId, role))) return kitFail(404, { intent: 'changeRole', userId, message: 'No such person.' });
+		} catch (err) {
+			if (err instanceof RoleChangeError) return kitFail(400, { intent: 'changeRole', userId, message: err.text });
+			throw err;
+		}
 		return { intent: 'changeRole', userId, changed: role };
 	},
 	setActive: async ({ request, locals }) => {
 		const form = await request.formData();
-		const userId = field(form, 'userId');
-		const active = field(form, 'active') === 'true';
-		if (locals.user?.role !== 'admin') return fail(403, { intent: 'setActive', userId, message: 'Only admins deactivate people.' });
-		if (!userId) return fail(400, { intent: 'setActive', userId, message: 'The form did not say who.' });
+		const userId = userIdOf(form);
+		const active = form.get('active') === 'true';
+		if (locals.user?.role !== 'admin') return kitFail(403, { intent: 'setActive', userId, message: 'Only admins deactivate people.' });
+		if (!userId) return kitFail(400, { intent: 'setActive', userId, message: 'The form did not say who.' });
 		const { db } = await getRuntime();
 		try {
-			if (!(await setActive(db, userId, active))) return fail(404, { intent: 'setActive', userId, message: 'No such person.' });
+			if (!(await setActive(db, userId, active))) return kitFail(404, { intent: 'setActive', userId, message: 'No such person.' });
 		} catch (err) {
-			if (err instanceof ActivationError) return fail(409, { intent: 'setActive', userId, message: fieldError(err.message).text });
+			if (err instanceof ActivationError) return kitFail(409, { intent: 'setActive', userId, message: err.text });
 			throw err;
 		}
 		return { intent: 'setActive', userId, active };

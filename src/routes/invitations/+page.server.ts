@@ -8,7 +8,6 @@ import { requireRole } from '$lib/server/http/guard';
 import { findInvitation, InvitationError, listPendingInvitations, revokeInvitation } from '$lib/server/people/invitations';
 import { inviteAndMail } from '$lib/server/people/invite';
 import { getRuntime } from '$lib/server/runtime';
-import { fieldError } from '$lib/ui/fields';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -28,8 +27,7 @@ export const actions: Actions = {
 			return message(form, `Invitation sent to ${invitation.email}.`);
 		} catch (err) {
 			if (!(err instanceof InvitationError)) throw err;
-			const { field, text } = fieldError(err.message);
-			return field === 'email' || field === 'role' ? setError(form, field, text) : message(form, text, { status: 400 });
+			return err.field === 'email' || err.field === 'role' ? setError(form, err.field, err.text) : message(form, err.text, { status: 400 });
 		}
 	},
 	withdraw: async (event) => {

@@ -5,29 +5,40 @@ import { z } from 'zod';
 import { hasRole } from '$lib/roles';
 import { rateModelSchema } from '$lib/physics/rate-model-schema';
 import { describeZodError } from '$lib/protocol/messages';
-import { apiGet, apiGetOptional, field } from '$lib/ui/api';
-import type { Setup } from '$lib/ui/types';
+import { requireRole } from '$lib/server/http/guard';
+import { RateModelRefused, saveAndApplyRateModel } from '$lib/server/models/apply';
+import { currentRateModel } from '$lib/server/models/rate-models';
+import { getRuntime } from '$lib/server/runtime';
+import { getSetup, listSetups } from '$lib/server/setups/service';
 import { fitCalibrationTable, MAX_TABLE_BYTES } from './calibration';
 import type { SavedModel } from './types';
 import type { Actions, PageServerLoad } from './$types';
 
-interface ModelsResponse {
-	rateModel: SavedModel | null;
-	escapeModel: SavedModel | null;
+/** A stored model in the page's shape, its time as ISO text as the rate-model API gives it. */
+function asSaved(model: Awaited<ReturnType<typeof currentRateModel>>): SavedModel | null {
+	return model ? ({ ...model, savedAt: model.savedAt.toISOString() } as SavedModel) : null;
 }
 
-export const load: PageServerLoad = async ({ fetch, url }) => {
-	const { setups } = await apiGet<{ setups: Setup[] }>(fetch, '/api/setups');
-	const wanted = url.searchParams.get('setup');
+/** A trimmed text field from a form, or undefined when empty. */
+function field(form: FormData, name: string): string | undefined {
+	const v = form.get(name);
+	return typeof v === 'string' && v.trim() !== '' ? v.trim() : undefined;
+}
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'observer');
+	const { db } = await getRuntime();
+	const setups = await listSetups(db);
+	const wanted = event.url.searchParams.get('setup');
 	const setup = wanted ? (setups.find((s) => s.id === wanted) ?? null) : null;
-	const models = setup
-		? await apiGetOptional<ModelsResponse>(fetch, `/api/setups/${encodeURIComponent(setup.id)}/rate-model`)
-		: null;
+	const [switching, escape] = setup
+		? await Promise.all([currentRateModel(db, setup.id, 'switching'), currentRateModel(db, setup.id, 'escape')])
+		: [null, null];
 	return {
 		setups: setups.map(({ id, name, order, states, modeGHz, nominalMK }) => ({ id, name, order, states, modeGHz, nominalMK })),
 		setupId: setup?.id ?? null,
 		unknownSetup: wanted !== null && setup === null,
-		models: models ? { switching: models.rateModel, escape: models.escapeModel } : null
+		models: setup ? { switching: asSaved(switching), escape: asSaved(escape) } : null
 	};
 };
 
@@ -40,29 +51,24 @@ function refuse(event: RequestEvent, intent: Intent) {
 	return null;
 }
 
-/** PUT to the rate-model API through event.fetch (the session cookie goes along). */
+/** Saves the model through the same service as the rate-model API; a refusal comes back as words. */
 async function putModel(event: RequestEvent, setupId: string, model: unknown, note: string | undefined) {
-	let res: Response;
+	const { db, ingest } = await getRuntime();
 	try {
-		res = await event.fetch(`/api/setups/${encodeURIComponent(setupId)}/rate-model`, {
-			method: 'PUT',
-			headers: { 'content-type': 'application/json', accept: 'application/json' },
-			body: JSON.stringify(note ? { ...(model as object), note } : model)
-		});
-	} catch (e) {
-		return { ok: false as const, status: 503, message: `The server could not be reached (${(e as Error).message}).` };
+		const saved = await saveAndApplyRateModel(db, ingest, setupId, model, event.locals.user!.id, note);
+		const shown = asSaved(saved);
+		if (!shown) return { ok: false as const, status: 500, message: 'The model was saved but could not be read back.' };
+		return { ok: true as const, saved: shown };
+	} catch (err) {
+		if (err instanceof RateModelRefused) return { ok: false as const, status: err.status, message: err.message };
+		throw err;
 	}
-	const body = (await res.json().catch(() => null)) as { rateModel?: SavedModel; message?: string } | null;
-	if (!res.ok || !body?.rateModel) {
-		return { ok: false as const, status: res.ok ? 500 : res.status, message: body?.message ?? `The server answered ${res.status}.` };
-	}
-	return { ok: true as const, saved: body.rateModel };
 }
 
-async function findSetup(event: RequestEvent, setupId: string | undefined) {
+async function findSetup(setupId: string | undefined) {
 	if (!setupId) return null;
-	const { setups } = await apiGet<{ setups: Setup[] }>(event.fetch, '/api/setups');
-	return setups.find((s) => s.id === setupId) ?? null;
+	const { db } = await getRuntime();
+	return getSetup(db, setupId);
 }
 
 const processSchema = z.enum(['switching', 'escape']);
@@ -80,7 +86,7 @@ function referenceFrom(form: FormData) {
 async function readCalibration(event: RequestEvent, form: FormData, intent: Intent) {
 	const process = processSchema.safeParse(form.get('process'));
 	if (!process.success) return { failure: fail(400, { intent, field: 'process', message: 'Choose switching or escape.' }) };
-	const setup = await findSetup(event, field(form, 'setupId'));
+	const setup = await findSetup(field(form, 'setupId'));
 	if (!setup) return { failure: fail(400, { intent, field: 'setupId', message: 'Choose the setup this calibration belongs to.' }) };
 	let text: string;
 	let fileName: string;
@@ -123,7 +129,7 @@ export const actions: Actions = {
 		const note = field(form, 'note');
 		const put = await putModel(event, setupId, { ...parsed.data, source: 'planner' }, note);
 		if (!put.ok) return fail(put.status, { intent: 'saveModel', message: put.message });
-		const setup = await findSetup(event, setupId);
+		const setup = await findSetup(setupId);
 		return { intent: 'saveModel' as const, saved: put.saved, setupId, setupName: setup?.name ?? setupId };
 	},
 

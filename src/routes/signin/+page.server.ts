@@ -1,51 +1,51 @@
-import { fail, redirect } from '@sveltejs/kit';
+// Sign-in: the form goes through superforms with the schema the page checks with; the brake and the
+// account check answer as the form's message.
+import { redirect } from '@sveltejs/kit';
 import { APIError } from 'better-auth/api';
-import { z } from 'zod';
+import { fail, message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { signInSchema } from '$lib/people/forms';
 import { requestAddress, signInLimiter } from '$lib/server/http/signin-guard';
 import { getRuntime } from '$lib/server/runtime';
 import type { Actions, PageServerLoad } from './$types';
-
-const credentials = z.object({
-	email: z.email('enter your e-mail address'),
-	password: z.string().min(1, 'enter your password')
-});
 
 /** Only same-site paths, so the sign-in page cannot be used to bounce people elsewhere. */
 function safeNext(next: string | null) {
 	return next && next.startsWith('/') && !next.startsWith('//') ? next : '/';
 }
 
-export const load: PageServerLoad = ({ locals, url }) => {
+export const load: PageServerLoad = async ({ locals, url }) => {
 	if (locals.user) redirect(303, safeNext(url.searchParams.get('next')));
-	return {};
+	return { form: await superValidate(zod4(signInSchema)) };
 };
 
 export const actions: Actions = {
 	signIn: async (event) => {
 		const { request, url } = event;
-		const form = Object.fromEntries(await request.formData());
-		const parsed = credentials.safeParse(form);
-		const email = typeof form.email === 'string' ? form.email : '';
-		if (!parsed.success) return fail(400, { email, message: parsed.error.issues[0].message });
+		const form = await superValidate(request, zod4(signInSchema));
+		const credentials = { ...form.data };
+		// The password never travels back to the page.
+		form.data.password = '';
+		if (!form.valid) return fail(400, { form });
 		// The same brake as better-auth's JSON route (src/lib/server/http/signin-guard.ts), keyed alike.
 		const limiter = signInLimiter();
 		const address = await requestAddress(event);
-		const refusal = await limiter.check(parsed.data.email, address);
+		const refusal = await limiter.check(credentials.email, address);
 		if (refusal) {
 			event.setHeaders({ 'retry-after': String(refusal.retryAfter_s) });
-			return fail(429, { email, message: refusal.message });
+			return message(form, refusal.message, { status: 429 });
 		}
 		const { auth } = await getRuntime();
 		try {
-			await auth.api.signInEmail({ body: parsed.data, headers: request.headers });
+			await auth.api.signInEmail({ body: credentials, headers: request.headers });
 		} catch (err) {
 			if (err instanceof APIError) {
-				if (err.statusCode === 401) await limiter.failed(parsed.data.email, address);
-				return fail(400, { email, message: 'that e-mail and password do not match an account' });
+				if (err.statusCode === 401) await limiter.failed(credentials.email, address);
+				return message(form, 'that e-mail and password do not match an account', { status: 400 });
 			}
 			throw err;
 		}
-		await limiter.succeeded(parsed.data.email);
+		await limiter.succeeded(credentials.email);
 		redirect(303, safeNext(url.searchParams.get('next')));
 	}
 };

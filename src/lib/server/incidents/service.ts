@@ -3,6 +3,7 @@
 import { randomUUID } from 'node:crypto';
 import { and, asc, count, desc, eq, ne, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { MAX_NOTE_CHARS } from '../../incidents/note-form';
 import { safeText } from '../../protocol/safe-text';
 import { SEVERITY_RANK } from '../../incidents/severity';
 import type { Db, Tx } from '../db';
@@ -12,7 +13,8 @@ import { pageOrGroup, queueClearNotice, stopPaging } from '../oncall/paging';
 export type IncidentRow = typeof incidents.$inferSelect;
 
 export const INCIDENT_STATES = ['open', 'acknowledged', 'resolved'] as const;
-export const noteSchema = z.object({ note: safeText(z.string().trim().max(2000, 'note is at most 2000 characters')).optional() });
+/** The optional note that goes with an acknowledge or resolve. */
+export const noteSchema = z.object({ note: safeText(z.string().trim().max(MAX_NOTE_CHARS, `note is at most ${MAX_NOTE_CHARS} characters`)).optional() });
 
 export interface OpenCondition {
 	kind: string;

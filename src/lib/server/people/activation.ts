@@ -2,9 +2,10 @@
 // so deactivation is its ban flag, plus revoking their sessions here (API tokens check the flag).
 import { eq } from 'drizzle-orm';
 import type { Db } from '../db';
+import { FieldProblem } from '../http/field-problem';
 import { session, user } from '../db/schema';
 
-export class ActivationError extends Error {}
+export class ActivationError extends FieldProblem {}
 
 export async function setActive(db: Db, userId: string, active: boolean) {
 	return db.transaction(async (tx) => {
@@ -13,7 +14,7 @@ export async function setActive(db: Db, userId: string, active: boolean) {
 		if (!active && target.role === 'admin') {
 			// Lock every admin row so two admins deactivating each other at once cannot both succeed.
 			const admins = await tx.select({ id: user.id, banned: user.banned }).from(user).where(eq(user.role, 'admin')).for('update');
-			if (!admins.some((a) => a.id !== userId && !a.banned)) throw new ActivationError('active: the last active admin cannot be deactivated');
+			if (!admins.some((a) => a.id !== userId && !a.banned)) throw new ActivationError('active', 'the last active admin cannot be deactivated');
 		}
 		const [row] = await tx
 			.update(user)

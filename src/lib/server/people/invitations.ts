@@ -4,17 +4,18 @@ import { randomUUID } from 'node:crypto';
 import { and, desc, eq, gt, isNull, sql } from 'drizzle-orm';
 import { isRole, type Role } from '../../roles';
 import type { Db } from '../db';
+import { FieldProblem } from '../http/field-problem';
 import { invitations, user } from '../db/schema';
 import { hashToken, newSecret } from './secrets';
 
 const INVITE_PREFIX = 'pwi_';
 
-export class InvitationError extends Error {}
+export class InvitationError extends FieldProblem {}
 
 export async function createInvitation(db: Db, input: { email: string; role: Role; invitedBy: string; ttl_s: number }) {
 	const email = input.email.toLowerCase();
 	const [existing] = await db.select({ id: user.id }).from(user).where(sql`lower(${user.email}) = ${email}`);
-	if (existing) throw new InvitationError('email: this address already has an account');
+	if (existing) throw new InvitationError('email', 'this address already has an account');
 	const { secret, hash } = newSecret(INVITE_PREFIX);
 	const [row] = await db
 		.insert(invitations)

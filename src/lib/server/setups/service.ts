@@ -2,26 +2,12 @@
 import { withLiveProgress } from '../runs/live-progress';
 import { randomUUID } from 'node:crypto';
 import { and, eq, inArray, ne, sql } from 'drizzle-orm';
-import { z } from 'zod';
-import { safeText } from '../../protocol/safe-text';
-import { coercedNumberField } from '../../validation/number-field';
 import type { Db, Tx } from '../db';
+import type { NewSetup } from '../../setups/forms';
 import { incidents, runs, setupMembers, setups, user } from '../db/schema';
 
-export const newSetupSchema = z
-	.object({
-		name: safeText(z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters')),
-		description: safeText(z.string().trim().max(500)).default(''),
-		order: coercedNumberField('order').int().min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8'),
-		states: coercedNumberField('states').int().min(2).max(16),
-		mode_GHz: coercedNumberField('mode_GHz').positive('mode_GHz must be positive').max(100),
-		nominal_mK: coercedNumberField('nominal_mK').min(0, 'nominal_mK must not be negative').max(4000)
-	})
-	.refine((s) => s.states === s.order || s.states === 2 * s.order, {
-		message: 'states must be M or 2M',
-		path: ['states']
-	});
-export type NewSetup = z.infer<typeof newSetupSchema>;
+// The schemas live beside the forms so the browser checks with them too.
+export { newSetupSchema, retentionSchema, type NewSetup } from '../../setups/forms';
 
 export async function createSetup(db: Db, input: NewSetup, createdBy: string | null) {
 	const [row] = await db
@@ -44,6 +30,11 @@ export async function createSetup(db: Db, input: NewSetup, createdBy: string | n
 export async function getSetup(db: Db, id: string) {
 	const [row] = await db.select().from(setups).where(eq(setups.id, id));
 	return row ?? null;
+}
+
+/** Every setup by name, without run or incident counts (pickers and filters). */
+export async function listSetups(db: Db) {
+	return db.select().from(setups).orderBy(setups.name);
 }
 
 export async function setupNameTaken(db: Db, name: string) {
@@ -98,19 +89,6 @@ export async function alertRecipients(db: Tx | Db, setupId: string) {
 		.from(user)
 		.where(inArray(user.role, ['operator', 'admin']));
 }
-
-/** Raw-frame retention of a setup: whole days, or empty for "keep for good". Same schema for form and API. */
-export const retentionSchema = z.object({
-	rawRetentionDays: z.preprocess(
-		(v) => (v === '' || v === undefined ? null : v),
-		z.coerce
-			.number()
-			.int('rawRetentionDays must be a whole number of days')
-			.min(1, 'rawRetentionDays is at least 1 day (leave it empty to keep raw frames for good)')
-			.max(36_500, 'rawRetentionDays is at most 36500 days')
-			.nullable()
-	)
-});
 
 export async function setRawRetention(db: Db, setupId: string, rawRetentionDays: number | null) {
 	const [row] = await db.update(setups).set({ rawRetentionDays }).where(eq(setups.id, setupId)).returning();

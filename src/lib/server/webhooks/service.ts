@@ -3,16 +3,12 @@
 import { randomUUID } from 'node:crypto';
 import { and, asc, eq } from 'drizzle-orm';
 import { z } from 'zod';
+import type { newWebhookSchema } from '../../setups/forms';
 import type { Db } from '../db';
 import { setupWebhooks } from '../db/schema';
 import { newWebhookSecret } from './signature';
 
-export const newWebhookSchema = z.object({
-	url: z
-		.url({ message: 'url must be a URL' })
-		.refine((u) => /^https?:\/\//.test(u), 'url must start with http:// or https://'),
-	label: z.string().trim().max(80, 'label is at most 80 characters').default('')
-});
+export { newWebhookSchema } from '../../setups/forms';
 
 export async function addWebhook(db: Db, setupId: string, input: z.infer<typeof newWebhookSchema>, createdBy: string) {
 	const secret = newWebhookSecret();

@@ -20,7 +20,7 @@ export const POST: RequestHandler = async (event) => {
 		const invitation = await inviteAndMail({ db, mailer, origin: config.origin ?? event.url.origin, ttl_s: config.inviteTtl_s }, me, input);
 		return json({ invitation }, { status: 201 });
 	} catch (err) {
-		if (err instanceof InvitationError) error(err.message.startsWith('role:') ? 403 : 400, err.message);
+		if (err instanceof InvitationError) error(err.field === 'role' ? 403 : 400, err.message);
 		throw err;
 	}
 };

@@ -1,22 +1,20 @@
 // The local catchers' inbox (PHASEWARDEN_CATCHER=1): the caught e-mails, pushes and texts as their
 // recipients would see them, for someone running the demo without a JSON viewer.
 import { error } from '@sveltejs/kit';
-import { hasRole } from '$lib/roles';
-import { apiGetOptional } from '$lib/ui/api';
+import { requireRole } from '$lib/server/http/guard';
+import { getRuntime } from '$lib/server/runtime';
 import type { PageServerLoad } from './$types';
 
-type Mail = { id: number; to: string[]; subject: string; text?: string; receivedAt: string };
-type Push = { id: number; endpoint: string; receivedAt: string; payload: { title?: string; body?: string; url?: string; actions?: { title: string; url: string }[] } };
-type Text = { id: number; to: string; body: string; receivedAt: string };
+/** What the service worker would show: the catcher keeps the decrypted JSON as it came. */
+type PushPayload = { title?: string; body?: string; url?: string; actions?: { title: string; url: string }[] };
 
-export const load: PageServerLoad = async ({ fetch, locals }) => {
-	if (!hasRole(locals.user?.role, 'operator')) error(403, 'The catchers’ inbox needs the operator role.');
-	const [mail, push, sms] = await Promise.all([
-		apiGetOptional<{ messages: Mail[] }>(fetch, '/api/dev/mail'),
-		apiGetOptional<{ messages: Push[] }>(fetch, '/api/dev/push'),
-		apiGetOptional<{ messages: Text[] }>(fetch, '/api/dev/sms')
-	]);
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'operator');
+	const { catcher, delivery } = await getRuntime();
+	const mail = catcher?.messages();
+	const push = delivery.pushCatcher?.messages().map((m) => ({ ...m, payload: (m.payload ?? {}) as PushPayload }));
+	const sms = delivery.smsFake?.messages();
 	if (!mail && !push && !sms) error(404, 'The local catchers are not running (start the server with PHASEWARDEN_CATCHER=1).');
 	const newest = <T extends { id: number }>(list: T[] | undefined) => [...(list ?? [])].sort((a, b) => b.id - a.id).slice(0, 50);
-	return { mail: newest(mail?.messages), push: newest(push?.messages), sms: newest(sms?.messages) };
+	return { mail: newest(mail), push: newest(push), sms: newest(sms) };
 };

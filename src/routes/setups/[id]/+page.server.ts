@@ -1,116 +1,126 @@
-// One setup: details, runs, members and (for operators) its agent tokens, created and revoked here.
-import { fail } from '@sveltejs/kit';
+// One setup: details, runs, members and (for operators) its agent tokens and webhooks, created and
+// revoked here through the same services and role checks as the JSON API.
+import { error, fail as kitFail } from '@sveltejs/kit';
+import { fail, message, setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { hasRole } from '$lib/roles';
-import { apiGet, apiGetOptional, apiSend, field } from '$lib/ui/api';
-import { fieldError } from '$lib/ui/fields';
-import { describeZodError } from '$lib/protocol/messages';
+import { listUsers, personExists } from '$lib/server/auth/users';
+import { requireRole } from '$lib/server/http/guard';
 import { getRuntime } from '$lib/server/runtime';
-import { retentionSchema, setRawRetention } from '$lib/server/setups/service';
-import type { AgentToken, Person, Run, Webhook } from '$lib/ui/types';
+import { listRuns } from '$lib/server/runs/service';
+import { addMember, getSetup, listMembers, removeMember, setRawRetention } from '$lib/server/setups/service';
+import { createAgentToken, listAgentTokens, revokeAgentToken } from '$lib/server/setups/tokens';
+import { addWebhook, listWebhooks, removeWebhook } from '$lib/server/webhooks/service';
+import { agentTokenSchema, memberSchema, newWebhookSchema, retentionSchema } from '$lib/setups/forms';
+import type { Person } from '$lib/ui/types';
 import type { Actions, PageServerLoad, RequestEvent } from './$types';
 
-interface SetupDetail {
-	setup: {
-		id: string;
-		name: string;
-		description: string;
-		order: number;
-		states: number;
-		modeGHz: number;
-		nominalMK: number;
-		rawRetentionDays: number | null;
-		createdAt: string;
-	};
-	runs: Run[];
-	tokens: AgentToken[];
-	members: Person[];
-}
+const tokenForm = () => superValidate(zod4(agentTokenSchema), { id: 'createToken' });
+const webhookForm = () => superValidate(zod4(newWebhookSchema), { id: 'addWebhook' });
+const memberForm = () => superValidate(zod4(memberSchema), { id: 'addMember' });
+const retentionForm = (days: number | null) => superValidate({ rawRetentionDays: days }, zod4(retentionSchema), { id: 'setRetention', errors: false });
 
-export const load: PageServerLoad = async ({ fetch, params, locals }) => {
-	const id = encodeURIComponent(params.id);
-	const operator = hasRole(locals.user?.role, 'operator');
-	const [detail, people, hooks] = await Promise.all([
-		apiGet<SetupDetail>(fetch, `/api/setups/${id}`),
-		// The people list is admin-only in the API; an operator who is not admin gets null and no picker.
-		operator ? apiGetOptional<{ users: Person[] }>(fetch, '/api/users') : Promise.resolve(null),
-		operator ? apiGetOptional<{ webhooks: Webhook[] }>(fetch, `/api/setups/${id}/webhooks`) : Promise.resolve(null)
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, 'observer');
+	const operator = hasRole(user.role, 'operator');
+	const { db } = await getRuntime();
+	const setup = await getSetup(db, event.params.id);
+	if (!setup) error(404, 'no setup with this id');
+	const [runs, tokens, members, people, webhooks, newToken, newWebhook, retention, newMember] = await Promise.all([
+		listRuns(db, { setup: setup.id }),
+		operator ? listAgentTokens(db, setup.id) : Promise.resolve([]),
+		listMembers(db, setup.id),
+		// The list of accounts is for admins only; an operator who is not admin gets no picker.
+		user.role === 'admin' ? listUsers(db) : Promise.resolve(null),
+		operator ? listWebhooks(db, setup.id) : Promise.resolve([]),
+		tokenForm(),
+		webhookForm(),
+		retentionForm(setup.rawRetentionDays),
+		memberForm()
 	]);
-	return { ...detail, people: people?.users ?? null, webhooks: hooks?.webhooks ?? [] };
+	// better-auth keeps role as nullable text; the people shown are the ones the role column names.
+	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook, retentionForm: retention, memberForm: newMember };
 };
 
 function operatorOnly(event: RequestEvent, intent: string) {
-	if (!hasRole(event.locals.user?.role, 'operator')) return fail(403, { intent, message: 'This needs the operator role.' });
+	if (!hasRole(event.locals.user?.role, 'operator')) return kitFail(403, { intent, message: 'This needs the operator role.' });
 	return null;
 }
 
-const base = (event: RequestEvent) => `/api/setups/${encodeURIComponent(event.params.id)}`;
+/** The acting operator and the setup, or why the action cannot go on. */
+async function operatorAndSetup(event: RequestEvent) {
+	const user = event.locals.user;
+	if (!user || !hasRole(user.role, 'operator')) return { ok: false as const, status: 403 as const, text: 'This needs the operator role.' };
+	const { db } = await getRuntime();
+	if (!(await getSetup(db, event.params.id))) return { ok: false as const, status: 404 as const, text: 'This setup no longer exists.' };
+	return { ok: true as const, user, db };
+}
 
 export const actions: Actions = {
 	addWebhook: async (event) => {
-		const denied = operatorOnly(event, 'addWebhook');
-		if (denied) return denied;
-		const form = await event.request.formData();
-		const url = field(form, 'url');
-		if (!url) return fail(400, { intent: 'addWebhook', message: 'Enter the URL that receives the alerts.' });
-		const res = await apiSend<{ webhook: Webhook; secret: string }>(event.fetch, `${base(event)}/webhooks`, 'POST', { url, label: field(form, 'label') ?? '' });
-		if (!res.ok || !res.data) return fail(res.status, { intent: 'addWebhook', message: fieldError(res.message).text });
+		const form = await superValidate(event.request, zod4(newWebhookSchema), { id: 'addWebhook' });
+		const ctx = await operatorAndSetup(event);
+		if (!ctx.ok) return message(form, ctx.text, { status: ctx.status });
+		if (!form.valid) return fail(400, { form });
+		const added = await addWebhook(ctx.db, event.params.id, form.data, ctx.user.id);
 		// The signing secret is shown in this response only.
-		return { intent: 'addWebhook', webhookSecret: res.data.secret, webhook: res.data.webhook };
+		return { form, intent: 'addWebhook', webhookSecret: added.secret, webhook: added.webhook };
 	},
 	removeWebhook: async (event) => {
 		const denied = operatorOnly(event, 'removeWebhook');
 		if (denied) return denied;
-		const hookId = field(await event.request.formData(), 'hookId');
-		if (!hookId) return fail(400, { intent: 'removeWebhook', message: 'The form did not say which webhook (field "hookId").' });
-		const res = await apiSend(event.fetch, `${base(event)}/webhooks/${encodeURIComponent(hookId)}`, 'DELETE');
-		if (!res.ok) return fail(res.status, { intent: 'removeWebhook', message: res.message });
+		const hookId = (await event.request.formData()).get('hookId');
+		if (typeof hookId !== 'string' || !hookId) return kitFail(400, { intent: 'removeWebhook', message: 'The form did not say which webhook (field "hookId").' });
+		const { db } = await getRuntime();
+		if (!(await removeWebhook(db, event.params.id, hookId))) return kitFail(404, { intent: 'removeWebhook', message: 'no webhook with this id on this setup' });
 		return { intent: 'removeWebhook', removed: hookId };
 	},
 	setRetention: async (event) => {
-		const denied = operatorOnly(event, 'setRetention');
-		if (denied) return denied;
-		const parsed = retentionSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { intent: 'setRetention', message: describeZodError(parsed.error) });
+		const form = await superValidate(event.request, zod4(retentionSchema), { id: 'setRetention' });
+		if (!hasRole(event.locals.user?.role, 'operator')) return message(form, 'This needs the operator role.', { status: 403 });
+		if (!form.valid) return fail(400, { form });
 		const { db } = await getRuntime();
-		const setup = await setRawRetention(db, event.params.id, parsed.data.rawRetentionDays);
-		if (!setup) return fail(404, { intent: 'setRetention', message: 'This setup no longer exists.' });
-		return { intent: 'setRetention' };
+		const setup = await setRawRetention(db, event.params.id, form.data.rawRetentionDays);
+		if (!setup) return message(form, 'This setup no longer exists.', { status: 404 });
+		return message(form, 'Saved.');
 	},
 	createToken: async (event) => {
-		const denied = operatorOnly(event, 'createToken');
-		if (denied) return denied;
-		const label = field(await event.request.formData(), 'label');
-		if (!label) return fail(400, { intent: 'createToken', message: 'Give the token a label, e.g. the instrument PC it runs on.' });
-		const res = await apiSend<{ token: AgentToken; secret: string }>(event.fetch, `${base(event)}/tokens`, 'POST', { label });
-		if (!res.ok || !res.data) return fail(res.status, { intent: 'createToken', message: fieldError(res.message).text });
+		const form = await superValidate(event.request, zod4(agentTokenSchema), { id: 'createToken' });
+		const ctx = await operatorAndSetup(event);
+		if (!ctx.ok) return message(form, ctx.text, { status: ctx.status });
+		if (!form.valid) return fail(400, { form });
+		const { token, secret } = await createAgentToken(ctx.db, event.params.id, form.data.label, ctx.user.id);
 		// Returned once, in this response only: it is never stored in the clear and not shown again.
-		return { intent: 'createToken', secret: res.data.secret, token: res.data.token };
+		return { form, intent: 'createToken', secret, token };
 	},
 	revokeToken: async (event) => {
 		const denied = operatorOnly(event, 'revokeToken');
 		if (denied) return denied;
-		const tokenId = field(await event.request.formData(), 'tokenId');
-		if (!tokenId) return fail(400, { intent: 'revokeToken', message: 'The form did not say which token (field "tokenId").' });
-		const res = await apiSend(event.fetch, `${base(event)}/tokens/${encodeURIComponent(tokenId)}`, 'DELETE');
-		if (!res.ok) return fail(res.status, { intent: 'revokeToken', message: res.message });
+		const tokenId = (await event.request.formData()).get('tokenId');
+		if (typeof tokenId !== 'string' || !tokenId) return kitFail(400, { intent: 'revokeToken', message: 'The form did not say which token (field "tokenId").' });
+		const { db, ingest } = await getRuntime();
+		const token = await revokeAgentToken(db, event.params.id, tokenId, event.locals.user!.id);
+		if (!token) return kitFail(404, { intent: 'revokeToken', message: 'no active token with this id on this setup' });
+		ingest.closeToken(token.id);
 		return { intent: 'revokeToken', revoked: tokenId };
 	},
 	addMember: async (event) => {
-		const denied = operatorOnly(event, 'addMember');
-		if (denied) return denied;
-		const userId = field(await event.request.formData(), 'userId');
-		if (!userId) return fail(400, { intent: 'addMember', message: 'Choose a person to add.' });
-		const res = await apiSend(event.fetch, `${base(event)}/members`, 'POST', { userId });
-		if (!res.ok) return fail(res.status, { intent: 'addMember', message: fieldError(res.message).text });
-		return { intent: 'addMember' };
+		const form = await superValidate(event.request, zod4(memberSchema), { id: 'addMember' });
+		const ctx = await operatorAndSetup(event);
+		if (!ctx.ok) return message(form, ctx.text, { status: ctx.status });
+		if (!form.valid) return fail(400, { form });
+		if (!(await personExists(ctx.db, form.data.userId))) return setError(form, 'userId', 'no such person');
+		await addMember(ctx.db, event.params.id, form.data.userId);
+		return { form };
 	},
 	removeMember: async (event) => {
 		const denied = operatorOnly(event, 'removeMember');
 		if (denied) return denied;
-		const userId = field(await event.request.formData(), 'userId');
-		if (!userId) return fail(400, { intent: 'removeMember', message: 'The form did not say whom to remove.' });
-		const res = await apiSend(event.fetch, `${base(event)}/members/${encodeURIComponent(userId)}`, 'DELETE');
-		if (!res.ok) return fail(res.status, { intent: 'removeMember', message: res.message });
+		const userId = (await event.request.formData()).get('userId');
+		if (typeof userId !== 'string' || !userId) return kitFail(400, { intent: 'removeMember', message: 'The form did not say whom to remove.' });
+		const { db } = await getRuntime();
+		if (!(await getSetup(db, event.params.id))) return kitFail(404, { intent: 'removeMember', message: 'This setup no longer exists.' });
+		await removeMember(db, event.params.id, userId);
 		return { intent: 'removeMember' };
 	}
 };

@@ -1,39 +1,39 @@
-// Replay of a stored run with other rules: starts from the setup's rules in force; the action sends
-// the rules to try to the replay API, which reads the frames and changes nothing real.
-import { fail } from '@sveltejs/kit';
-import { apiGet, apiGetOptional, apiSend } from '$lib/ui/api';
-import type { Frame, Incident, Run } from '$lib/ui/types';
+// Replay of a stored run with other rules: starts from the setup's rules in force; the action replays
+// the rules to try through the replay service, which reads the frames and changes nothing real.
+import { error, fail } from '@sveltejs/kit';
+import { requireRole } from '$lib/server/http/guard';
+import { listIncidents } from '$lib/server/incidents/service';
+import { currentRateModel } from '$lib/server/models/rate-models';
+import { ReplayRefused, replayRunFor } from '$lib/server/replay/replay-run';
+import { getSetupRules } from '$lib/server/rules/service';
+import { getRuntime } from '$lib/server/runtime';
+import { getRun, listFrames } from '$lib/server/runs/service';
+import { getSetup } from '$lib/server/setups/service';
 import { draftFromForm, fromDraft, messageField, resolveSpecs, applyRowEdit, toDraft, type Draft } from '../../../setups/[id]/rules/rules-form';
 import type { ReplayResult } from './replay-view';
 import type { Actions, PageServerLoad } from './$types';
 
-interface RunDetail {
-	run: Run;
-	setup: { id: string; name: string };
-	incidents: Incident[];
-}
-
-async function rulesOf(fetch: typeof globalThis.fetch, setupId: string) {
-	return (await apiGet<{ rules: Record<string, unknown> }>(fetch, `/api/setups/${encodeURIComponent(setupId)}/rules`)).rules;
-}
-
-export const load: PageServerLoad = async ({ fetch, params }) => {
-	const id = encodeURIComponent(params.id);
-	const [detail, first] = await Promise.all([
-		apiGet<RunDetail>(fetch, `/api/runs/${id}`),
-		apiGet<{ frames: Frame[] }>(fetch, `/api/runs/${id}/frames?from=1&limit=1`)
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'observer');
+	const { db } = await getRuntime();
+	const run = await getRun(db, event.params.id);
+	if (!run) error(404, 'no run with this id');
+	const [setup, live, first, rules, switching, escape] = await Promise.all([
+		getSetup(db, run.setupId),
+		listIncidents(db, { run: run.id, sort: 'openedAt', order: 'desc', page: 1, pageSize: 200 }),
+		listFrames(db, run.id, { from: 1, limit: 1 }),
+		getSetupRules(db, run.setupId),
+		currentRateModel(db, run.setupId, 'switching'),
+		currentRateModel(db, run.setupId, 'escape')
 	]);
-	const [rules, models] = await Promise.all([
-		rulesOf(fetch, detail.run.setupId),
-		apiGetOptional<{ rateModel: unknown; escapeModel: unknown }>(fetch, `/api/setups/${encodeURIComponent(detail.run.setupId)}/rate-model`)
-	]);
-	const f = first.frames[0] ?? null;
+	if (!setup) error(404, 'no setup with this id');
+	const f = first[0] ?? null;
 	return {
-		run: detail.run,
-		setup: { id: detail.setup.id, name: detail.setup.name },
-		liveIncidents: detail.incidents.length,
-		rules,
-		rateModels: { switching: models?.rateModel ?? null, escape: models?.escapeModel ?? null },
+		run,
+		setup: { id: setup.id, name: setup.name },
+		liveIncidents: live.incidents.length,
+		rules: rules as Record<string, unknown>,
+		rateModels: { switching, escape },
 		firstFrame: f ? { seq: f.seq, t: f.t, window_s: f.window_s } : null
 	};
 };
@@ -41,10 +41,12 @@ export const load: PageServerLoad = async ({ fetch, params }) => {
 export const actions: Actions = {
 	// Any signed-in person may replay: it saves nothing and opens nothing.
 	replay: async (event) => {
+		const user = requireRole(event, 'observer');
 		const form = await event.request.formData();
-		const id = encodeURIComponent(event.params.id);
-		const { run } = await apiGet<RunDetail>(event.fetch, `/api/runs/${id}`);
-		const current = await rulesOf(event.fetch, run.setupId);
+		const { db } = await getRuntime();
+		const run = await getRun(db, event.params.id);
+		if (!run) error(404, 'no run with this id');
+		const current = (await getSetupRules(db, run.setupId)) as Record<string, unknown>;
 		const specs = resolveSpecs(current);
 		const draft: Draft = draftFromForm(form, specs, toDraft(current, specs));
 
@@ -55,14 +57,13 @@ export const actions: Actions = {
 		const first = Object.entries(issues)[0];
 		if (first) return fail(400, { draft, field: first[0], message: first[1] });
 
-		const res = await apiSend<ReplayResult>(event.fetch, `/api/runs/${id}/replay`, 'POST', { rules });
-		if (!res.ok || !res.data) {
-			if (res.status === 404 && !/run/i.test(res.message)) {
-				return fail(503, { draft, field: null, message: 'Replay is not available on this server yet.' });
-			}
-			const named = messageField(res.message, draft, specs);
-			return fail(res.status === 200 ? 500 : res.status, { draft, field: named.field, message: named.text });
+		try {
+			const result: ReplayResult = await replayRunFor(db, user.id, run.id, rules, event.request.signal);
+			return { draft, result };
+		} catch (err) {
+			if (!(err instanceof ReplayRefused)) throw err;
+			const named = messageField(err.message, draft, specs);
+			return fail(err.status, { draft, field: named.field, message: named.text });
 		}
-		return { draft, result: res.data };
 	}
 };

@@ -57,7 +57,7 @@ export interface Lane {
 
 /** Live incidents on the frames' clock: the opening frame's t, else (agent_silent) the server's time. */
 export function liveOpen_ms(i: Incident): number {
-	return i.openedT ?? Date.parse(i.openedAt);
+	return i.openedT ?? new Date(i.openedAt).getTime();
 }
 
 function outcomeMaps(result: ReplayResult) {

@@ -1,10 +1,8 @@
 import { error } from '@sveltejs/kit';
 import { z } from 'zod';
 import { json, readJson, requireRole } from '$lib/server/http/guard';
-import { ReplayCancelled } from '$lib/server/replay/replay-in-worker';
-import { beginReplay, endReplay, ReplayBusy, runningReplayOf } from '$lib/server/replay/registry';
-import { replayStoredRun } from '$lib/server/replay/service';
-import { getSetupRules } from '$lib/server/rules/service';
+import { runningReplayOf } from '$lib/server/replay/registry';
+import { ReplayRefused, replayRunFor } from '$lib/server/replay/replay-run';
 import { getRuntime } from '$lib/server/runtime';
 import { getRun } from '$lib/server/runs/service';
 import type { RequestHandler } from './$types';
@@ -16,26 +14,11 @@ export const POST: RequestHandler = async (event) => {
 	const user = requireRole(event, 'observer');
 	const { rules } = await readJson(event.request, body);
 	const { db } = await getRuntime();
-	const run = await getRun(db, event.params.id);
-	if (!run) error(404, 'no run with this id');
-	let slot;
 	try {
-		slot = beginReplay(user.id, run.id, run.frameCount);
+		return json(await replayRunFor(db, user.id, event.params.id, rules, event.request.signal));
 	} catch (err) {
-		if (err instanceof ReplayBusy) error(409, err.message);
+		if (err instanceof ReplayRefused) error(err.status, err.message);
 		throw err;
-	}
-	try {
-		const progress = slot;
-		const chosen = rules ?? (await getSetupRules(db, run.setupId));
-		return json(await replayStoredRun(db, run, chosen, { signal: event.request.signal, onProgress: (done) => (progress.done = done) }));
-	} catch (err) {
-		if (err instanceof RangeError) error(400, err.message.replace(/^detector rules: /, 'rules.'));
-		// The person went away (closed the page): nobody reads the answer.
-		if (err instanceof ReplayCancelled) error(499, 'replay cancelled');
-		throw err;
-	} finally {
-		endReplay(slot);
 	}
 };
 

@@ -1,9 +1,9 @@
 import { error } from '@sveltejs/kit';
 import { z } from 'zod';
-import { safeText } from '$lib/protocol/safe-text';
 import { rateModelSchema } from '$lib/physics/rate-model-schema';
 import { json, readJson, requireRole } from '$lib/server/http/guard';
-import { currentRateModel, rateModelHistory, saveRateModel } from '$lib/server/models/rate-models';
+import { modelNoteSchema, RateModelRefused, saveAndApplyRateModel } from '$lib/server/models/apply';
+import { currentRateModel, rateModelHistory } from '$lib/server/models/rate-models';
 import { getRuntime } from '$lib/server/runtime';
 import { getSetup } from '$lib/server/setups/service';
 import type { RequestHandler } from './$types';
@@ -21,15 +21,17 @@ export const GET: RequestHandler = async (event) => {
 	return json({ rateModel, escapeModel, history });
 };
 
-const body = rateModelSchema.and(z.object({ note: safeText(z.string().trim().max(500)).optional() }));
+const body = rateModelSchema.and(z.object({ note: modelNoteSchema }));
 
 /** Saves a model for its process; it applies to frames committed from now on. */
 export const PUT: RequestHandler = async (event) => {
 	const user = requireRole(event, 'operator');
 	const { note, ...model } = await readJson(event.request, body);
 	const { db, ingest } = await getRuntime();
-	if (!(await getSetup(db, event.params.id))) error(404, 'no setup with this id');
-	await saveRateModel(db, event.params.id, model, user.id, note);
-	await ingest.runFactsChanged(event.params.id);
-	return json({ rateModel: await currentRateModel(db, event.params.id, model.process) });
+	try {
+		return json({ rateModel: await saveAndApplyRateModel(db, ingest, event.params.id, model, user.id, note) });
+	} catch (err) {
+		if (err instanceof RateModelRefused) error(err.status, err.message);
+		throw err;
+	}
 };
