@@ -186,7 +186,7 @@ it('an operator enters a rate model by hand: a bad value is named beside its fie
 	const { context, page } = await signedIn('operator');
 	await step(page, 'rate-model', async () => {
 		await page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
-		const card = page.locator('section').filter({ has: page.getByRole('heading', { name: 'Switching between phase states' }) });
+		const card = page.locator('section[aria-labelledby="rm-switching-h"]');
 		await card.getByText(/by hand…/).click();
 		// rate-model-schema.ts: W0_per_s must be a positive rate; the browser says so as one types.
 		await card.getByLabel(/^W₀/).fill('-3');
@@ -205,7 +205,7 @@ it('an operator enters a rate model by hand: a bad value is named beside its fie
 	const plain = await signedIn('operator', { javaScriptEnabled: false });
 	await step(plain.page, 'rate-model-nojs', async () => {
 		await plain.page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
-		const card = () => plain.page.locator('section').filter({ has: plain.page.getByRole('heading', { name: 'Escape from vacuum' }) });
+		const card = () => plain.page.locator('section[aria-labelledby="rm-escape-h"]');
 		await card().getByText(/by hand…/).click();
 		await card().getByLabel(/^W₀/).fill('fast');
 		await card().getByRole('button', { name: 'Save escape model' }).click();

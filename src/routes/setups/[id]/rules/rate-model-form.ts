@@ -34,8 +34,8 @@ export const RATE_FIELDS = [
 export type RateField = (typeof RATE_FIELDS)[number]['key'];
 export type RateDraft = Record<RateField, string> & { process: Process; note: string };
 
-/** A model's body from the draft, or the fields whose text is no number / an incomplete reference. */
-function buildModel(draft: RateDraft): { model: RateModelInput | null; issues: [RateField, string][] } {
+/** A model's body from the draft, and the fields whose text is no number or an incomplete reference. */
+function buildModel(draft: RateDraft): { model: RateModelInput; issues: [RateField, string][] } {
 	const issues: [RateField, string][] = [];
 	const num = (key: RateField, optional = false): number | undefined => {
 		const t = (draft[key] ?? '').trim().replace(/\u2212/g, '-');
@@ -68,7 +68,7 @@ function buildModel(draft: RateDraft): { model: RateModelInput | null; issues: [
 			for (const [k, v] of Object.entries(ref)) if (v === undefined) issues.push([`ref_${k}` as RateField, 'give all three, or none']);
 		}
 	}
-	return { model: issues.length ? null : model, issues };
+	return { model, issues };
 }
 
 /** The form field of a rateModelSchema issue path (`reference.damping` → ref_damping). */
@@ -88,16 +88,25 @@ export const rateFormSchema = z
 	})
 	.superRefine((draft, ctx) => {
 		const { model, issues } = buildModel(draft);
-		for (const [path, message] of issues) ctx.addIssue({ code: 'custom', path: [path], message });
-		if (!model) return;
+		const named = new Set<RateField>();
+		for (const [path, message] of issues) {
+			named.add(path);
+			ctx.addIssue({ code: 'custom', path: [path], message });
+		}
+		// The other fields are checked even while one is empty; a field that is no number keeps that message.
 		const parsed = rateModelSchema.safeParse(model);
-		if (!parsed.success) for (const issue of parsed.error.issues) ctx.addIssue({ code: 'custom', path: [fieldOfPath(issue.path)], message: issue.message });
+		for (const issue of parsed.success ? [] : parsed.error.issues) {
+			const field = fieldOfPath(issue.path);
+			if (named.has(field)) continue;
+			named.add(field);
+			ctx.addIssue({ code: 'custom', path: [field], message: issue.message });
+		}
 	});
 
 /** The model a valid draft stands for (after rateFormSchema accepted it), with the note apart. */
 export function rateModelFromDraft(draft: RateDraft): { model: z.output<typeof rateModelSchema>; note: string | undefined } {
-	const { model } = buildModel(draft);
-	if (!model) throw new RangeError('rate model form: the draft was not validated first');
+	const { model, issues } = buildModel(draft);
+	if (issues.length) throw new RangeError(`rate model form: ${issues[0][0]}: ${issues[0][1]} (validate with rateFormSchema first)`);
 	return { model: rateModelSchema.parse(model), note: draft.note.trim() || undefined };
 }
 
