@@ -218,7 +218,7 @@ it('an operator enters a rate model by hand: a bad value is named beside its fie
 	await plain.context.close();
 });
 
-it('without JavaScript an aux limit row is added, refused with its own field named, then saved', async () => {
+it('an aux limit row is added, refused with its own field named and saved without JavaScript, then removed with it', async () => {
 	const plain = await signedIn('operator', { javaScriptEnabled: false });
 	const { page } = plain;
 	const auxSection = () => page.locator('details').filter({ has: page.getByRole('heading', { name: 'Aux limits', exact: true }) });
@@ -243,4 +243,21 @@ it('without JavaScript an aux limit row is added, refused with its own field nam
 		expect((await rulesNow(page)).rules.aux_limit.limits).toMatchObject([{ name: 'mxc_mK' }, { name: 'pump_dBm', below: 5, clearAbove: 6 }]);
 	});
 	await plain.context.close();
+
+	// With JavaScript the row goes in the page, and the save carries the rules as superforms' JSON.
+	const scripted = await signedIn('operator');
+	await step(scripted.page, 'aux-js', async () => {
+		const p = scripted.page;
+		await p.goto(`${server.url}/setups/${seeded.setupId}/rules`);
+		const aux = p.locator('details').filter({ has: p.getByRole('heading', { name: 'Aux limits', exact: true }) });
+		await aux.getByRole('button', { name: 'Remove limit pump_dBm' }).click();
+		expect(await aux.locator('li').count()).toBe(1);
+		await p.getByRole('button', { name: 'Save rules' }).click();
+		await p.getByText(/Saved 1 change/).waitFor();
+		const { rules } = await rulesNow(p);
+		expect(rules.aux_limit.limits).toMatchObject([{ name: 'mxc_mK' }]);
+		expect(rules.aux_limit.limits).toHaveLength(1);
+		expect(rules.aux_limit.version).toBe(3);
+	});
+	await scripted.context.close();
 });
