@@ -181,3 +181,83 @@ it('a replay with more sensitive lock rules shows the loss the live rules let pa
 	});
 	await context.close();
 });
+
+it('an operator enters a rate model by hand: a bad value is named beside its field, a good one is saved', async () => {
+	const { context, page } = await signedIn('operator');
+	await step(page, 'rate-model', async () => {
+		await page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
+		const card = page.locator('section[aria-labelledby="rm-switching-h"]');
+		await card.getByText(/by hand…/).click();
+		// rate-model-schema.ts: W0_per_s must be a positive rate; the browser says so as one types.
+		await card.getByLabel(/^W₀/).fill('-3');
+		await card.getByText('W0_per_s must be a positive rate').waitFor();
+		expect(await card.getByLabel(/^W₀/).getAttribute('aria-invalid')).toBe('true');
+		await card.getByLabel(/^W₀/).fill('0.002');
+		await card.getByLabel(/^Activation exponent A/).fill('40');
+		await card.getByRole('button', { name: 'Save switching model' }).click();
+		await page.getByText(/Saved\. It applies to frames committed from now on/).waitFor();
+		const { rateModel } = await (await page.request.get(`${server.url}/api/setups/${seeded.setupId}/rate-model`)).json();
+		expect(rateModel).toMatchObject({ process: 'switching', W0_per_s: 0.002, A: 40, source: 'manual', savedBy: people.operator.name });
+	});
+	await context.close();
+
+	// Without JavaScript the server names the field, and the form opens again with what was typed.
+	const plain = await signedIn('operator', { javaScriptEnabled: false });
+	await step(plain.page, 'rate-model-nojs', async () => {
+		await plain.page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
+		const card = () => plain.page.locator('section[aria-labelledby="rm-escape-h"]');
+		await card().getByText(/by hand…/).click();
+		await card().getByLabel(/^W₀/).fill('fast');
+		await card().getByRole('button', { name: 'Save escape model' }).click();
+		await plain.page.waitForLoadState('load');
+		await card().getByText('“fast” is not a number').waitFor();
+		expect(await card().getByLabel(/^W₀/).inputValue()).toBe('fast');
+		const { escapeModel } = await (await plain.page.request.get(`${server.url}/api/setups/${seeded.setupId}/rate-model`)).json();
+		expect(escapeModel).toBeNull();
+	});
+	await plain.context.close();
+});
+
+it('an aux limit row is added, refused with its own field named and saved without JavaScript, then removed with it', async () => {
+	const plain = await signedIn('operator', { javaScriptEnabled: false });
+	const { page } = plain;
+	const auxSection = () => page.locator('details').filter({ has: page.getByRole('heading', { name: 'Aux limits', exact: true }) });
+	await step(page, 'aux-nojs', async () => {
+		await page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
+		await auxSection().getByRole('button', { name: 'Add a limit' }).click();
+		await page.waitForLoadState('load');
+		const rows = auxSection().locator('li');
+		expect(await rows.count()).toBe(2);
+		await rows.nth(1).getByLabel(/^Aux name/).fill('pump_dBm');
+		await rows.nth(1).getByLabel(/^Out below/).fill('5');
+		// rules.ts: clearAbove must be at least below (hysteresis), so 3 is refused on its own input.
+		await rows.nth(1).getByLabel(/^Back at or above/).fill('3');
+		await page.getByRole('button', { name: 'Save rules' }).click();
+		await page.waitForLoadState('load');
+		await auxSection().locator('li').nth(1).getByText('must be at least below, so that the incident does not flap').waitFor();
+		expect((await rulesNow(page)).rules.aux_limit.limits).toHaveLength(1);
+
+		await auxSection().locator('li').nth(1).getByLabel(/^Back at or above/).fill('6');
+		await page.getByRole('button', { name: 'Save rules' }).click();
+		await page.getByText(/Saved 1 change/).waitFor();
+		expect((await rulesNow(page)).rules.aux_limit.limits).toMatchObject([{ name: 'mxc_mK' }, { name: 'pump_dBm', below: 5, clearAbove: 6 }]);
+	});
+	await plain.context.close();
+
+	// With JavaScript the row goes in the page, and the save carries the rules as superforms' JSON.
+	const scripted = await signedIn('operator');
+	await step(scripted.page, 'aux-js', async () => {
+		const p = scripted.page;
+		await p.goto(`${server.url}/setups/${seeded.setupId}/rules`);
+		const aux = p.locator('details').filter({ has: p.getByRole('heading', { name: 'Aux limits', exact: true }) });
+		await aux.getByRole('button', { name: 'Remove limit pump_dBm' }).click();
+		expect(await aux.locator('li').count()).toBe(1);
+		await p.getByRole('button', { name: 'Save rules' }).click();
+		await p.getByText(/Saved 1 change/).waitFor();
+		const { rules } = await rulesNow(p);
+		expect(rules.aux_limit.limits).toMatchObject([{ name: 'mxc_mK' }]);
+		expect(rules.aux_limit.limits).toHaveLength(1);
+		expect(rules.aux_limit.version).toBe(3);
+	});
+	await scripted.context.close();
+});

@@ -1,7 +1,12 @@
-// The rate planner's inputs: field-by-field zod checks with messages, their defaults, and the URL
-// query that lets a planner view be shared.
+// The rate planner's operating point: field-by-field zod checks with messages, the defaults, and the
+// URL query that lets a planner view be shared. The sweep's settings are in sweep-inputs.ts.
 import { z } from 'zod';
 import type { DriveOrder, ModelParams } from '$lib/physics/model';
+import { collectErrors, numberField, type ParseResult } from './number-text';
+
+// The planner's page and tests take all its inputs from here.
+export { DEFAULT_SWEEP, parseSweepForm, type SweepField, type SweepForm, type SweepValues } from './sweep-inputs';
+export type { ParseResult } from './number-text';
 
 /**
  * The unit every rate of the rotating-frame model (δ, γ, ε, K, η) is entered in. They are angular
@@ -65,19 +70,6 @@ export const DEFAULT_FORM: PlannerForm = {
 	unit: 'per_us'
 };
 
-// Plain decimal or scientific notation: refuses '', 'Infinity', '0x1f', '1e'.
-const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
-
-function numberField(label: string) {
-	return z
-		.string()
-		.trim()
-		.min(1, `${label} is required`)
-		.regex(NUMBER, `${label} must be a number, like 0.5 or 1e-3`)
-		.transform(Number)
-		.pipe(z.number().finite(`${label} is out of range`));
-}
-
 const formSchema = z
 	.object({
 		order: z.enum(['2', '3', '4'], { message: 'Order M must be 2, 3 or 4' }).transform((v) => Number(v) as DriveOrder),
@@ -110,17 +102,6 @@ const formSchema = z
 			ctx.addIssue({ code: 'custom', path: ['eta'], message: 'Junction term η must not be zero (use Kerr instead)' });
 		}
 	});
-
-export type ParseResult<T, F extends string> = { ok: true; value: T } | { ok: false; errors: Partial<Record<F, string>> };
-
-function collectErrors<F extends string>(error: z.ZodError): Partial<Record<F, string>> {
-	const errors: Partial<Record<F, string>> = {};
-	for (const issue of error.issues) {
-		const key = String(issue.path[0] ?? '') as F;
-		if (!(key in errors)) errors[key] = issue.message;
-	}
-	return errors;
-}
 
 /** Checks the operating-point form; every bad field gets its own message. */
 export function parsePlannerForm(form: PlannerForm): ParseResult<PlannerValues, PlannerField> {
@@ -205,85 +186,4 @@ export function formForSetup(
 		mode_GHz: String(setup.modeGHz),
 		T_mK: String(setup.nominalMK)
 	};
-}
-
-// ------------------------------------------------------------------ the simulation settings
-
-export interface SweepForm {
-	process: 'escape' | 'switching';
-	lambdas: string;
-	trajectories: string;
-	maxTime: string;
-	duration: string;
-	seed: string;
-}
-export type SweepField = keyof SweepForm;
-
-/** Modest defaults: a few seconds in a browser worker on a slow machine. */
-export const DEFAULT_SWEEP: SweepForm = {
-	process: 'escape',
-	lambdas: '0.4, 0.3, 0.25, 0.2',
-	trajectories: '40',
-	maxTime: '2000',
-	duration: '1000',
-	seed: '1'
-};
-
-export interface SweepValues {
-	process: 'escape' | 'switching';
-	lambdas: number[];
-	trajectories: number;
-	maxTime: number;
-	duration: number;
-	seed: number;
-}
-
-function integerField(label: string, min: number, max: number) {
-	return numberField(label).pipe(
-		z
-			.number()
-			.int(`${label} must be a whole number`)
-			.min(min, `${label} must be at least ${min}`)
-			.max(max, `${label} must be at most ${max}`)
-	);
-}
-
-const sweepSchema = z.object({
-	process: z.enum(['escape', 'switching'], { message: 'Choose escape or switching' }),
-	lambdas: z
-		.string()
-		.transform((s, ctx) => {
-			const parts = s
-				.split(/[,;\s]+/)
-				.map((p) => p.trim())
-				.filter(Boolean);
-			const values: number[] = [];
-			for (const p of parts) {
-				const x = Number(p);
-				if (!NUMBER.test(p) || !(x > 0) || x > 5) {
-					ctx.addIssue({ code: 'custom', message: `λ values must be numbers between 0 and 5; "${p}" is not` });
-					return z.NEVER;
-				}
-				values.push(x);
-			}
-			if (values.length < 2 || values.length > 8) {
-				ctx.addIssue({ code: 'custom', message: 'Give 2 to 8 λ values, separated by commas' });
-				return z.NEVER;
-			}
-			if (new Set(values).size < 2) {
-				ctx.addIssue({ code: 'custom', message: 'The λ values must not all be equal: the fit needs a spread in 1/λ' });
-				return z.NEVER;
-			}
-			return values;
-		}),
-	trajectories: integerField('Trajectories', 1, 2000),
-	maxTime: numberField('Time limit').pipe(z.number().gt(0, 'Time limit must be positive').max(1e6, 'Time limit must be at most 10⁶')),
-	duration: numberField('Duration').pipe(z.number().gt(0, 'Duration must be positive').max(1e6, 'Duration must be at most 10⁶')),
-	seed: integerField('Seed', 0, 2 ** 31 - 1)
-});
-
-export function parseSweepForm(form: SweepForm): ParseResult<SweepValues, SweepField> {
-	const parsed = sweepSchema.safeParse(form);
-	if (!parsed.success) return { ok: false, errors: collectErrors<SweepField>(parsed.error) };
-	return { ok: true, value: parsed.data };
 }

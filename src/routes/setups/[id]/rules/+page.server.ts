@@ -1,113 +1,83 @@
-// A setup's detector rules, rate models and change history for everyone; saving them for operators
-// (through the JSON API, which validates with the same schema and refuses observers too).
-import { fail, type RequestEvent } from '@sveltejs/kit';
+// A setup's detector rules, rate models and change history for everyone; saving them for operators.
+// The loader and actions call the services the JSON API calls, with the same role checks, and the
+// forms go through superforms with the schemas the API validates with.
+import { error, fail, type RequestEvent } from '@sveltejs/kit';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { detectorRulesSchema } from '$lib/detect/rules';
 import { hasRole } from '$lib/roles';
-import { apiGet } from '$lib/ui/api';
-import type { Run } from '$lib/ui/types';
-import { rateDraftFromForm, rateMessageField, rateModelFromDraft, type RateModelHistoryRow, type SavedRateModel } from './rate-model-form';
-import { draftFromForm, fromDraft, messageField, resolveSpecs, applyRowEdit, toDraft, type Draft } from './rules-form';
+import { requireRole } from '$lib/server/http/guard';
+import { currentRateModel, rateModelHistory, saveRateModel } from '$lib/server/models/rate-models';
+import { getSetupRules, ruleHistory } from '$lib/server/rules/service';
+import { listRuns } from '$lib/server/runs/service';
+import { getRuntime } from '$lib/server/runtime';
+import { getSetup } from '$lib/server/setups/service';
+import { rateDraft, rateFormId, rateFormSchema, rateModelFromDraft, type Process, type RateModelHistoryRow } from './rate-model-form';
+import { RULES_FORM_ID, saveRulesForm } from './save-rules.server';
 import type { Actions, PageServerLoad } from './$types';
 
-export interface RuleChange {
-	id: number | string;
-	at: string;
-	field: string;
-	oldValue: unknown;
-	newValue: unknown;
-	actorName: string | null;
+async function setupOr404(id: string) {
+	const { db, ingest } = await getRuntime();
+	const setup = await getSetup(db, id);
+	if (!setup) error(404, 'no setup with this id');
+	return { db, ingest, setup };
 }
 
-interface SetupDetail {
-	setup: { id: string; name: string; order: number; states: number; modeGHz: number; nominalMK: number };
-	runs: Run[];
-}
-
-const base = (id: string) => `/api/setups/${encodeURIComponent(id)}`;
-
-export const load: PageServerLoad = async ({ fetch, params }) => {
-	const [detail, rules, models] = await Promise.all([
-		apiGet<SetupDetail>(fetch, base(params.id)),
-		apiGet<{ rules: Record<string, unknown>; history: RuleChange[] }>(fetch, `${base(params.id)}/rules`),
-		apiGet<{ rateModel: SavedRateModel | null; escapeModel: SavedRateModel | null; history: RateModelHistoryRow[] }>(
-			fetch,
-			`${base(params.id)}/rate-model`
-		)
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'observer');
+	const { db, setup } = await setupOr404(event.params.id);
+	const [ended, rules, history, switching, escape, rateHistory] = await Promise.all([
+		listRuns(db, { setup: setup.id, status: 'ended' }),
+		getSetupRules(db, setup.id),
+		ruleHistory(db, setup.id),
+		currentRateModel(db, setup.id, 'switching'),
+		currentRateModel(db, setup.id, 'escape'),
+		rateModelHistory(db, setup.id)
 	]);
-	const { id, name, order, states, modeGHz, nominalMK } = detail.setup;
+	const { id, name, order, states, modeGHz, nominalMK } = setup;
+	const rateForm = (process: Process, model: typeof switching) =>
+		superValidate(rateDraft(process, model, setup), zod4(rateFormSchema), { id: rateFormId(process), errors: false });
+	const [rulesForm, switchingForm, escapeForm] = await Promise.all([
+		superValidate(rules, zod4(detectorRulesSchema), { id: RULES_FORM_ID, errors: false }),
+		rateForm('switching', switching),
+		rateForm('escape', escape)
+	]);
 	return {
 		setup: { id, name, order, states, modeGHz, nominalMK },
 		// Finished runs to try other rules on (the replay page starts from these rules).
-		endedRuns: detail.runs.filter((r) => r.status === 'ended').slice(0, 5),
-		rules: rules.rules,
-		history: rules.history,
-		rateModels: { switching: models.rateModel, escape: models.escapeModel },
-		rateHistory: models.history
+		endedRuns: ended.slice(0, 5).map((r) => ({ id: r.id, name: r.name })),
+		rules,
+		history,
+		rateModels: { switching, escape },
+		rateHistory: rateHistory as RateModelHistoryRow[],
+		rulesForm,
+		rateForms: { switching: switchingForm, escape: escapeForm }
 	};
 };
 
-/** PUT with a JSON body through event.fetch (the session cookie goes along); never throws on a refusal. */
-async function put<T>(event: RequestEvent, path: string, body: unknown): Promise<{ ok: boolean; status: number; data: T | null; message: string }> {
-	let res: Response;
-	try {
-		res = await event.fetch(path, {
-			method: 'PUT',
-			headers: { 'content-type': 'application/json', accept: 'application/json' },
-			body: JSON.stringify(body)
-		});
-	} catch (e) {
-		return { ok: false, status: 503, data: null, message: `The server could not be reached (${(e as Error).message}).` };
-	}
-	const json = (await res.json().catch(() => null)) as (T & { message?: string }) | null;
-	return { ok: res.ok, status: res.status, data: res.ok ? json : null, message: json?.message ?? (res.ok ? '' : `The server answered ${res.status}.`) };
-}
-
-function operatorOnly(event: RequestEvent, intent: string) {
-	if (!hasRole(event.locals.user?.role, 'operator')) {
-		return fail(403, { intent, message: 'Changing rules and rate models needs the operator role; observers can read them.' });
-	}
-	return null;
-}
+const OPERATOR_ONLY = 'Changing rules and rate models needs the operator role; observers can read them.';
+const mayOperate = (event: RequestEvent) => hasRole(event.locals.user?.role, 'operator');
 
 export const actions: Actions = {
 	saveRules: async (event) => {
-		const denied = operatorOnly(event, 'saveRules');
-		if (denied) return denied;
-		const form = await event.request.formData();
-		const { rules: current } = await apiGet<{ rules: Record<string, unknown> }>(event.fetch, `${base(event.params.id)}/rules`);
-		const specs = resolveSpecs(current);
-		const draft: Draft = draftFromForm(form, specs, toDraft(current, specs));
-
-		// Without JavaScript, adding or removing a list row is a round trip that saves nothing.
-		if (applyRowEdit(form, specs, draft)) return { intent: 'saveRules', draft, edited: true };
-
-		const { rules, issues } = fromDraft(draft, specs);
-		const first = Object.entries(issues)[0];
-		if (first) return fail(400, { intent: 'saveRules', draft, field: first[0], message: first[1] });
-
-		const res = await put<{ rules: Record<string, unknown>; changes: unknown[] }>(event, `${base(event.params.id)}/rules`, rules);
-		if (!res.ok || !res.data) {
-			const named = messageField(res.message, draft, specs);
-			return fail(res.status === 200 ? 500 : res.status, { intent: 'saveRules', draft, field: named.field, message: named.text });
+		if (!mayOperate(event)) {
+			const form = await superValidate(zod4(detectorRulesSchema), { id: RULES_FORM_ID });
+			return message(form, OPERATOR_ONLY, { status: 403 });
 		}
-		return { intent: 'saveRules', saved: res.data.changes.length };
+		const { db, ingest, setup } = await setupOr404(event.params.id);
+		return saveRulesForm(event, { db, ingest, setup, actorId: event.locals.user!.id });
 	},
 
 	saveRateModel: async (event) => {
-		const denied = operatorOnly(event, 'saveRateModel');
-		if (denied) return denied;
-		const form = await event.request.formData();
-		const process = form.get('process') === 'escape' ? 'escape' : 'switching';
-		const draft = rateDraftFromForm(form);
-		const { body, issues } = rateModelFromDraft(process, draft);
-		if (!body) {
-			const [field, message] = Object.entries(issues)[0];
-			return fail(400, { intent: 'saveRateModel', process, rateDraft: draft, field, message });
-		}
-		const res = await put<{ rateModel: SavedRateModel }>(event, `${base(event.params.id)}/rate-model`, body);
-		if (!res.ok) {
-			const named = rateMessageField(res.message);
-			return fail(res.status, { intent: 'saveRateModel', process, rateDraft: draft, field: named.field, message: named.text });
-		}
-		return { intent: 'saveRateModel', process, savedModel: true };
+		const formData = await event.request.formData();
+		const process: Process = formData.get('process') === 'escape' ? 'escape' : 'switching';
+		const form = await superValidate(formData, zod4(rateFormSchema), { id: rateFormId(process) });
+		if (!mayOperate(event)) return message(form, OPERATOR_ONLY, { status: 403 });
+		if (!form.valid) return fail(400, { intent: 'saveRateModel' as const, process, form });
+		const { db, ingest, setup } = await setupOr404(event.params.id);
+		const { model, note } = rateModelFromDraft(form.data);
+		await saveRateModel(db, setup.id, model, event.locals.user!.id, note);
+		await ingest.runFactsChanged(setup.id);
+		return { intent: 'saveRateModel' as const, process, form, savedModel: true };
 	}
 };

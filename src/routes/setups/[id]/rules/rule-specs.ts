@@ -1,5 +1,5 @@
 // What each detector rule's fields mean to a person: label, unit and a one-line explanation, in form order.
-// Fields the schema gains later without an entry here still appear (see rules-form.ts), only plainer.
+// Fields the schema gains later without an entry here still appear (see resolve-specs.ts), only plainer.
 
 import { DEFAULT_RATE_MODEL_UNCERTAINTY } from '$lib/physics/rate-model-schema';
 

@@ -1,9 +1,11 @@
 // Checks of the rules form's conversions against the shared schema (src/lib/detect/rules.ts), the
 // reference both the browser and the API validate with.
 import { describe, expect, it } from 'vitest';
+import { superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
 import { defaultRules, detectorRulesSchema } from '$lib/detect/rules';
 import { describeZodError } from '$lib/protocol/messages';
-import { draftFromForm, fromDraft, messageField, resolveSpecs, rowDraft, toDraft, validateDraft } from './rules-form';
+import { draftFromForm, errorPaths, fromDraft, messageField, placeIssues, resolveSpecs, rowDraft, toDraft, toRulesPath, validateDraft } from './rules-form';
 
 const rules = () => defaultRules() as unknown as Record<string, unknown>;
 
@@ -94,5 +96,24 @@ describe('rules form', () => {
 			text: 'must be a whole number of windows'
 		});
 		expect(messageField('the request body is not valid JSON', draft, specs).field).toBeNull();
+	});
+});
+
+describe('rules form with superforms', () => {
+	it('places superValidate’s errors (data, not text) on the inputs they belong to', async () => {
+		const specs = resolveSpecs(rules());
+		const list = specs.find((s) => s.kind === 'aux_limit')!.list!;
+		const draft = toDraft(rules(), specs);
+		// A blank first row is dropped before validation, so the rule set's limit 1 is the draft's row 2.
+		draft.aux_limit.rows = [rowDraft(list), ...(draft.aux_limit.rows ?? []), rowDraft(list, { name: 'pump_dBm', above: 1, clearBelow: 2 })];
+		draft.lock_lost.fields.threshold = '1.5';
+		draft.lock_lost.fields.clearThreshold = '1.5';
+		const form = await superValidate(fromDraft(draft, specs).rules as never, zod4(detectorRulesSchema));
+		expect(form.valid).toBe(false);
+		const placed = placeIssues(errorPaths(form.errors), draft, specs);
+		expect(placed).toEqual(validateDraft(draft, specs).issues);
+		expect(Object.keys(placed).sort()).toEqual(['aux_limit.limits.2.clearBelow', 'lock_lost.clearThreshold', 'lock_lost.threshold']);
+		// And back: the draft's row 2 is the rule set's limit 1, where the server sets a field's error.
+		expect(toRulesPath('aux_limit.limits.2.clearBelow', draft, specs)).toBe('aux_limit.limits.1.clearBelow');
 	});
 });
