@@ -69,13 +69,14 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	expect(drift.evidence.explainedByTemperature).toBe(false);
 	expect(drift.evidence.temperatureFit.reason).toBe('temperature_at_nominal');
 
-	// Alerts are sent after commit; give the mailer a moment.
+	// These three opened minutes apart in agent time, so each heads its own group and is paged; the
+	// outbox sends after commit and the group's gathering window (2 s in tests), hence the poll.
 	for (const incident of incidents) {
 		await expect
 			.poll(async () => {
 				const mail = await (await operator('/api/dev/mail')).json();
 				return mail.messages.some((m: { to: string[]; text: string }) => m.to.includes(people.operator.email) && m.text.includes(`/incidents/${incident.id}`));
-			})
+			}, { timeout: 15_000 })
 			.toBe(true);
 	}
 	await agent.close();

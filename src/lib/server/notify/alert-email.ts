@@ -100,17 +100,22 @@ function groupLine(m: GroupMember): string {
 	return `${kindLabel(m.kind)}, ${m.severity}, opened ${opened}: ${oneLine(m.summary)}`;
 }
 
-function groupText(group: GroupMember[]): string[] {
+/** Each member with its own link, so a reader can open any of them from the one page they got. */
+function groupText(group: GroupMember[], appOrigin: string): string[] {
 	if (group.length < 2) return [];
-	return ['', GROUP_HEADING, ...group.flatMap((m) => wrap(`- ${groupLine(m)}`).map((l, i) => (i === 0 ? l : `  ${l}`)))];
+	return [
+		'',
+		GROUP_HEADING,
+		...group.flatMap((m) => [...wrap(`- ${groupLine(m)}`).map((l, i) => (i === 0 ? l : `  ${l}`)), `  ${incidentUrl(appOrigin, m.id)}`])
+	];
 }
 
 // ---- HTML -------------------------------------------------------------------------------------
 
-function groupHtml(group: GroupMember[]): string {
+function groupHtml(group: GroupMember[], appOrigin: string): string {
 	if (group.length < 2) return '';
 	return `<h2 style="font-size:15px;margin:20px 0 6px">${escapeHtml(GROUP_HEADING)}</h2><ul style="margin:0;padding-left:20px">${group
-		.map((m) => `<li style="margin:0 0 4px">${escapeHtml(groupLine(m))}</li>`)
+		.map((m) => `<li style="margin:0 0 4px"><a href="${escapeHtml(incidentUrl(appOrigin, m.id))}">${escapeHtml(groupLine(m))}</a></li>`)
 		.join('')}</ul>`;
 }
 
@@ -162,7 +167,7 @@ function compose(
 		...alignRows(facts, ''),
 		'',
 		...descriptionText(said, version),
-		...groupText(group),
+		...groupText(group, input.appOrigin),
 		'',
 		`Open the incident: ${link}`,
 		...(input.acknowledgeUrl ? [`Acknowledge: ${input.acknowledgeUrl}`] : []),
@@ -180,7 +185,7 @@ function compose(
 				.map(([k, v]) => `<tr><th style="${cell};font-weight:600">${escapeHtml(k)}</th><td style="${cell}">${escapeHtml(v)}</td></tr>`)
 				.join('')}</table>`,
 			descriptionHtml(said, version),
-			groupHtml(group),
+			groupHtml(group, input.appOrigin),
 			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
 			input.acknowledgeUrl ? `<p style="margin:0 0 18px"><a href="${escapeHtml(input.acknowledgeUrl)}">Acknowledge</a> <span style="color:#5a6573">(one tap, works once)</span></p>` : '',
 			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`
