@@ -86,8 +86,6 @@ export function describeZodError(error: z.ZodError, prefix = ''): string {
 	if (issue.code === 'invalid_key' && issue.issues?.[0]) {
 		issue = { ...issue.issues[0], path: [...issue.path, ...issue.issues[0].path] } as typeof issue;
 	}
-	const path = [prefix, ...issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`))]
-		.join('')
-		.replace(/^\./, '');
+	const path = [prefix, ...issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`))].join('').replace(/^\./, '');
 	return `${path || '(message)'}: ${issue.message}`;
 }

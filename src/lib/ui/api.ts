@@ -39,12 +39,7 @@ export async function apiGetOptional<T>(fetch: Fetch, path: string): Promise<T |
 }
 
 /** A write for a form action: never throws on an API refusal, so the action can `fail` with its words. */
-export async function apiSend<T>(
-	fetch: Fetch,
-	path: string,
-	method: 'POST' | 'PATCH' | 'DELETE',
-	body?: unknown
-): Promise<ApiResult<T>> {
+export async function apiSend<T>(fetch: Fetch, path: string, method: 'POST' | 'PATCH' | 'DELETE', body?: unknown): Promise<ApiResult<T>> {
 	let res: Response;
 	try {
 		res = await fetch(path, {

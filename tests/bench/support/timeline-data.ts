@@ -23,7 +23,12 @@ const T0_MS = 1_798_761_600_000; // 2027-01-01T00:00Z
 
 export type TimelineData = { dataDir: string; setupId: string; weekRunId: string; hourRunId: string };
 
-async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId: string, frames: number, lostSeqs: [number, number] | null) {
+async function fillRun(
+	db: Awaited<ReturnType<typeof openDatabase>>['db'],
+	runId: string,
+	frames: number,
+	lostSeqs: [number, number] | null
+) {
 	const cache = new RollupCache();
 	let lastSeq = 0;
 	let stored = 0;
@@ -34,7 +39,12 @@ async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId
 			batch.push(benchFrame(seq, T0_MS + seq * 1000));
 		}
 		if (batch.length === 0) continue;
-		const merged = await mergeWithStored(db, runId, rollupFrames(batch, () => null), cache);
+		const merged = await mergeWithStored(
+			db,
+			runId,
+			rollupFrames(batch, () => null),
+			cache
+		);
 		const last = batch[batch.length - 1];
 		await writeBatch(
 			db,
@@ -42,7 +52,14 @@ async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId
 			new Date(),
 			batch.map((frame) => ({ frame, late: false })),
 			merged,
-			{ lastSeq: last.seq, lastFrameT: last.t, lastFrameAt: new Date(), lastLock: last.lock, frameCount: stored += batch.length, gapCount: lostSeqs ? 1 : 0 }
+			{
+				lastSeq: last.seq,
+				lastFrameT: last.t,
+				lastFrameAt: new Date(),
+				lastLock: last.lock,
+				frameCount: (stored += batch.length),
+				gapCount: lostSeqs ? 1 : 0
+			}
 		);
 		for (const r of merged) cache.remember(r);
 		lastSeq = last.seq;

@@ -53,7 +53,13 @@ describe('decision interval at the actual counts per step', () => {
 });
 
 describe('window length changing mid-run', () => {
-	const win = (seq: number, window_s: number, switches: number, t_ms: number): Frame => ({ ...frame(seq, 0.95), window_s, dwell_s: window_s, switches, t: t_ms });
+	const win = (seq: number, window_s: number, switches: number, t_ms: number): Frame => ({
+		...frame(seq, 0.95),
+		window_s,
+		dwell_s: window_s,
+		switches,
+		t: t_ms
+	});
 	const noBurst = { switching_burst: { enabled: false }, rate_drift: {} };
 
 	it('rate_drift counts the budget in windows of each step’s own length', () => {
