@@ -60,7 +60,7 @@ async function main() {
 	const week = await weekRun(FRAMES, IQ_BINS);
 	const app = await startAppServer(week.dataDir);
 	const results: Record<'csv' | 'ndjson', Download> = {} as never;
-	let idleMB = 0;
+	let idleMB: number;
 	try {
 		const observer = await signIn(app);
 		// Warm the route code and the database's first pages, then let the server settle.

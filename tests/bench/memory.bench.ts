@@ -34,7 +34,7 @@ async function main() {
 	const seed = copySeed(template, 'memory');
 	const bareBefore = await bareRss(seed.dataDir);
 	const app = await startAppServer(seed.dataDir);
-	let appRss: number[] = [];
+	const appRss: number[] = [];
 	let events = 0;
 	try {
 		const observer = await signIn(app);

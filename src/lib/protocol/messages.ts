@@ -1,6 +1,5 @@
 // Messages of wire protocol v1, agent → server and server → agent.
 import { z } from 'zod';
-import { frameSchema } from './frame';
 import { safeText } from './safe-text';
 
 export const PROTOCOL_VERSION = 1;

@@ -30,7 +30,6 @@ async function fillRun(
 	lostSeqs: [number, number] | null
 ) {
 	const cache = new RollupCache();
-	let lastSeq = 0;
 	let stored = 0;
 	for (let first = 1; first <= frames; first += FRAMES_PER_STATEMENT) {
 		const batch = [];
@@ -62,8 +61,7 @@ async function fillRun(
 			}
 		);
 		for (const r of merged) cache.remember(r);
-		lastSeq = last.seq;
-		if (first % 60_000 === 1) process.stderr.write(`  ${runId.slice(0, 8)}: ${lastSeq} / ${frames} frames\r`);
+		if (first % 60_000 === 1) process.stderr.write(`  ${runId.slice(0, 8)}: ${last.seq} / ${frames} frames\r`);
 	}
 	if (lostSeqs) await db.insert(frameGaps).values({ runId, fromSeq: lostSeqs[0], toSeq: lostSeqs[1] });
 	// Ended, so a server opened on the folder has no live run to restore and replay.

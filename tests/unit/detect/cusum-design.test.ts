@@ -81,7 +81,7 @@ describe('window length changing mid-run', () => {
 		let t = frame(1, 0).t;
 		engine.onFrame(win(1, 1, 1, (t += 1000)));
 		engine.onFrame(win(2, 1, 1, (t += 1000)));
-		const events = engine.onFrame(win(3, 10, 80, (t += 10_000))).filter((e) => e.kind === 'switching_burst');
+		const events = engine.onFrame(win(3, 10, 80, t + 10_000)).filter((e) => e.kind === 'switching_burst');
 		expect(events).toHaveLength(1);
 		const ev = events[0].evidence as any;
 		expect(ev.alphaWindow).toBeCloseTo(10 / (DAYS * 86_400), 15);

@@ -16,7 +16,7 @@ import type { FrameExpectation } from '../../detect/expected';
 import type { RunInfo } from '../../detect/run-info';
 import { rollupFrames } from '../../rollup/rollup';
 import type { Db, Tx } from '../db';
-import { frameGaps, runs } from '../db/schema';
+import { frameGaps } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
 import { mergeWithStored, ROLLUP_ROWS_PER_STATEMENT, RollupCache, upsertRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';

@@ -57,6 +57,8 @@ function rulesFor(run: RunRow | null, states: number): LineRules {
 function cleanName(fileName: string) {
 	const base =
 		fileName
+			// Control characters are what this strips: a file name is shown back and written into headers.
+			// eslint-disable-next-line no-control-regex
 			.replace(/[\u0000-\u001f\u007f]/g, '')
 			.replace(/[\ud800-\udfff]/g, '')
 			.trim() || 'a file';

@@ -29,7 +29,10 @@ export function runsOf<T>(items: T[], keep: (item: T) => boolean): T[][] {
 	let current: T[] = [];
 	for (const item of items) {
 		if (keep(item)) current.push(item);
-		else if (current.length) (out.push(current), (current = []));
+		else if (current.length) {
+			out.push(current);
+			current = [];
+		}
 	}
 	if (current.length) out.push(current);
 	return out;
