@@ -1,12 +1,13 @@
 import adapter from '@sveltejs/adapter-node';
 import { vitePreprocess } from '@sveltejs/vite-plugin-svelte';
+import { withoutDependencyNoise } from './src/tooling/quiet-adapter.js';
 
 /** @type {import('@sveltejs/kit').Config} */
 const config = {
 	preprocess: vitePreprocess(),
 	compilerOptions: { runes: true },
 	kit: {
-		adapter: adapter({ out: 'build' }),
+		adapter: withoutDependencyNoise(adapter({ out: 'build' })),
 		// 'auto' gives SvelteKit's inline start-up script a nonce (rendered pages) or a hash.
 		// style-src keeps 'unsafe-inline': Svelte renders style="" attributes (charts, bars, style:
 		// directives) that no hash can cover. Fonts may be inlined by Vite as data: URLs.

@@ -21,6 +21,13 @@ function agentStream(): Plugin {
 export default defineConfig({
 	plugins: [tailwindcss(), sveltekit(), agentStream()],
 	server: { watch: { ignored: ['**/.data/**', '**/.test-data/**'] } },
+	build: {
+		rolldownOptions: {
+			// The timing report names SvelteKit's own compile steps, which we cannot speed up; it buries
+			// the demo's accounts and URLs under twenty lines of callback times.
+			checks: { bundlerTimings: false }
+		}
+	},
 	test: {
 		expect: { requireAssertions: true },
 		projects: [

@@ -82,14 +82,22 @@ export function spoolFileName(runKey: string): string {
 }
 
 function stamp(nowMs: number): string {
-	return new Date(nowMs).toISOString().replace(/[-:]/g, '').replace(/\.\d+Z$/, 'Z');
+	return new Date(nowMs)
+		.toISOString()
+		.replace(/[-:]/g, '')
+		.replace(/\.\d+Z$/, 'Z');
 }
 
 /**
  * Parses the flags. `env` supplies PHASEWARDEN_AGENT_TOKEN; `cwd` anchors the default spool;
  * `nowMs` names runs that get no --run-key. Throws UsageError naming the flag at fault.
  */
-export function parseAgentArgs(argv: string[], env: Record<string, string | undefined> = {}, cwd = '.', nowMs = Date.now()): AgentConfig | 'help' {
+export function parseAgentArgs(
+	argv: string[],
+	env: Record<string, string | undefined> = {},
+	cwd = '.',
+	nowMs = Date.now()
+): AgentConfig | 'help' {
 	let values;
 	try {
 		({ values } = parseArgs({
@@ -164,7 +172,14 @@ export function parseAgentArgs(argv: string[], env: Record<string, string | unde
 	};
 	const parsedRun = runDescriptionSchema.safeParse(candidate);
 	if (!parsedRun.success) {
-		const flag: Record<string, string> = { key: '--run-key', name: '--run-name', order: '--order', states: '--states', mode_GHz: '--mode-ghz', operatingPoint: '--operating-point' };
+		const flag: Record<string, string> = {
+			key: '--run-key',
+			name: '--run-name',
+			order: '--order',
+			states: '--states',
+			mode_GHz: '--mode-ghz',
+			operatingPoint: '--operating-point'
+		};
 		const field = String(parsedRun.error.issues[0].path[0] ?? '');
 		throw new UsageError(`${flag[field] ?? 'run'}: ${parsedRun.error.issues[0].message}`);
 	}

@@ -320,7 +320,9 @@ export class AgentConnection {
 					this.log('the run had already ended on the server');
 					this.checkWaiters();
 				} else {
-					this.fail(new AgentFatalError(code, `run "${this.opts.run.key}" has ended on the server; start a new run with another --run-key`));
+					this.fail(
+						new AgentFatalError(code, `run "${this.opts.run.key}" has ended on the server; start a new run with another --run-key`)
+					);
 				}
 				break;
 			case 'unauthorized':

@@ -41,7 +41,9 @@ export async function runAgent(config: AgentConfig, options: RunAgentOptions = {
 	const spool = Spool.open(config.spoolPath, { log, sync: options.spoolSync ?? true });
 	if (spool.size > 0) {
 		const first = spool.pending()[0].seq;
-		log(`spool ${config.spoolPath} holds ${spool.size} unacknowledged frames from before (seq ${first}…${spool.highestSeq}); they go first`);
+		log(
+			`spool ${config.spoolPath} holds ${spool.size} unacknowledged frames from before (seq ${first}…${spool.highestSeq}); they go first`
+		);
 	}
 	const conn = new AgentConnection({
 		url: config.url,
@@ -124,7 +126,11 @@ async function readInput(
 		if (!options.stdin) throw new Error('runAgent: --input - needs a stdin stream');
 		lines = streamLines(options.stdin, signal);
 	} else {
-		lines = fileLines(input.file, { follow: input.follow, signal, onTruncate: () => log(`${label}: file truncated; reading it from the start`) });
+		lines = fileLines(input.file, {
+			follow: input.follow,
+			signal,
+			onTruncate: () => log(`${label}: file truncated; reading it from the start`)
+		});
 	}
 	const highWater = options.highWater ?? 20_000;
 	const batchMs = options.spoolBatchMs ?? 20;
@@ -154,7 +160,9 @@ async function readInput(
 			}
 			read += 1;
 			if (result.frame.seq <= previousSeq) {
-				log(`${label} line ${lineNo}: seq ${result.frame.seq} is not above the previous ${previousSeq}; the server takes it for a duplicate`);
+				log(
+					`${label} line ${lineNo}: seq ${result.frame.seq} is not above the previous ${previousSeq}; the server takes it for a duplicate`
+				);
 			}
 			previousSeq = Math.max(previousSeq, result.frame.seq);
 			batch.push(result.frame);

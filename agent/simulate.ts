@@ -86,7 +86,8 @@ export function createSimulator(options: SimulatorOptions): Simulator {
 	const lossEnd_s = lossStart_s + nonNegative('lockLossMin', options.lockLossMin ?? 1.5) * 60;
 	const switchRate = nonNegative('switchRate_per_s', options.switchRate_per_s ?? 0.05);
 	const iqBins = options.iqBins ?? 0;
-	if (!Number.isInteger(iqBins) || iqBins < 0 || iqBins > 64) throw new RangeError(`simulator: iqBins must be an integer 0…64, got ${iqBins}`);
+	if (!Number.isInteger(iqBins) || iqBins < 0 || iqBins > 64)
+		throw new RangeError(`simulator: iqBins must be an integer 0…64, got ${iqBins}`);
 	let seq = options.startSeq ?? 1;
 	if (!Number.isInteger(seq) || seq < 1) throw new RangeError(`simulator: startSeq must be an integer ≥ 1, got ${seq}`);
 

@@ -162,7 +162,9 @@ export class Spool {
 
 	private rewrite() {
 		const tmp = `${this.path}.tmp`;
-		const body = this.pending().map((f) => JSON.stringify(f) + '\n').join('');
+		const body = this.pending()
+			.map((f) => JSON.stringify(f) + '\n')
+			.join('');
 		const fd = fs.openSync(tmp, 'w');
 		try {
 			fs.writeSync(fd, body);

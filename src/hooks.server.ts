@@ -25,7 +25,8 @@ const authentication: Handle = async ({ event, resolve }) => {
 	const { auth, db } = await getRuntime();
 	const bearer = await personFromBearer(db, event.request.headers);
 	// A script whose token stopped working must hear so, not be treated as signed out and redirected.
-	if (bearer.kind === 'invalid') return json({ message: 'this API token is unknown or revoked, or its person is deactivated' }, { status: 401 });
+	if (bearer.kind === 'invalid')
+		return json({ message: 'this API token is unknown or revoked, or its person is deactivated' }, { status: 401 });
 	if (bearer.kind === 'user') {
 		event.locals.user = bearer.user;
 		event.locals.sessionId = null;
@@ -33,7 +34,12 @@ const authentication: Handle = async ({ event, resolve }) => {
 	}
 	const result = await auth.api.getSession({ headers: event.request.headers });
 	event.locals.user = result
-		? { id: result.user.id, email: result.user.email, name: result.user.name, role: isRole(result.user.role) ? result.user.role : 'observer' }
+		? {
+				id: result.user.id,
+				email: result.user.email,
+				name: result.user.name,
+				role: isRole(result.user.role) ? result.user.role : 'observer'
+			}
 		: null;
 	event.locals.sessionId = result?.session.id ?? null;
 	return svelteKitHandler({ event, resolve, auth, building });
@@ -41,7 +47,19 @@ const authentication: Handle = async ({ event, resolve }) => {
 
 // The service worker must load without a session: the browser fetches it on its own. One-tap
 // acknowledge links (/ack/) carry their own signed authority and create no session.
-const PUBLIC_PATHS = ['/signin', '/forgot-password', '/reset-password/', '/invite/', '/ack/', '/api/health', '/api/auth/', '/favicon.svg', '/_app/', '/robots.txt', '/service-worker.js'];
+const PUBLIC_PATHS = [
+	'/signin',
+	'/forgot-password',
+	'/reset-password/',
+	'/invite/',
+	'/ack/',
+	'/api/health',
+	'/api/auth/',
+	'/favicon.svg',
+	'/_app/',
+	'/robots.txt',
+	'/service-worker.js'
+];
 
 /** Everything but sign-in needs a signed-in person; roles are checked in each route. */
 const signedIn: Handle = async ({ event, resolve }) => {

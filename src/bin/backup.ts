@@ -36,6 +36,8 @@ try {
 	console.log(`backup written to ${out} (${(statSync(out).size / 1e6).toFixed(1)} MB)`);
 } catch (err) {
 	const message = (err as Error).message;
-	console.error(`backup failed: ${message}${/in use by process/.test(message) ? ' (the embedded database can be backed up only while the server is stopped)' : ''}`);
+	console.error(
+		`backup failed: ${message}${/in use by process/.test(message) ? ' (the embedded database can be backed up only while the server is stopped)' : ''}`
+	);
 	process.exit(1);
 }

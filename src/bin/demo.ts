@@ -39,7 +39,16 @@ async function seed(): Promise<string> {
 			if (!secret) {
 				secret = (await createAgentToken(db, setup.id, 'demo instrument PC', admin.id)).secret;
 				// The simulated oscillator switches 0.05 times a second while locked: W0·e^{−A} at base temperature.
-				const model = { process: 'switching' as const, W0_per_s: 0.05 * Math.exp(3), A: 3, W0_sigma: 0.1, A_sigma: 0.1, mode_GHz: 5, nominal_mK: 12, source: 'manual' as const };
+				const model = {
+					process: 'switching' as const,
+					W0_per_s: 0.05 * Math.exp(3),
+					A: 3,
+					W0_sigma: 0.1,
+					A_sigma: 0.1,
+					mode_GHz: 5,
+					nominal_mK: 12,
+					source: 'manual' as const
+				};
 				await saveRateModel(db, setup.id, model, admin.id, 'demo: from an earlier cooldown of this line');
 				// Exactly one person is woken by the lock loss; the next in the rota if they sleep on.
 				const people = demoOnCall.map((p) => ({ id: ids.get(p.email)!, phone: p.phone }));
@@ -67,7 +76,9 @@ async function waitForServer(url: string, child: ChildProcess) {
 }
 
 if (process.env.PHASEWARDEN_DATA) {
-	console.log(`note: PHASEWARDEN_DATA (${process.env.PHASEWARDEN_DATA}) is ignored by the demo; it uses ${dataDir} (set ${DEMO_DATA_ENV} to change it).`);
+	console.log(
+		`note: PHASEWARDEN_DATA (${process.env.PHASEWARDEN_DATA}) is ignored by the demo; it uses ${dataDir} (set ${DEMO_DATA_ENV} to change it).`
+	);
 }
 // The demo always starts from a clean lab, and clears only a folder it made itself.
 const holder = dataDirHolder(dataDir);
@@ -99,7 +110,10 @@ async function subscribeDemoDevices() {
 			body: JSON.stringify({ email, password: DEMO_PASSWORD })
 		});
 		if (!signIn.ok) throw new Error(`demo: sign-in as ${email} failed (${signIn.status})`);
-		const cookie = signIn.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+		const cookie = signIn.headers
+			.getSetCookie()
+			.map((c) => c.split(';')[0])
+			.join('; ');
 		const device = await fetch(`${base}/api/dev/push/devices`, { method: 'POST', headers: { origin, cookie } });
 		if (!device.ok) throw new Error(`demo: could not add a push device for ${email} (${device.status} ${await device.text()})`);
 	}
@@ -112,17 +126,27 @@ const agent = spawn(
 	[
 		path.join(root, 'agent/cli.ts'),
 		'--simulate',
-		'--url', `ws://127.0.0.1:${port}/api/agent/stream`,
-		'--token', token,
-		'--run-key', 'bramble-t6-overnight',
-		'--run-name', 'T6 overnight, pump 15.02 GHz',
-		'--lose-lock-at-min', '1',
-		'--lock-loss-min', '1.5',
+		'--url',
+		`ws://127.0.0.1:${port}/api/agent/stream`,
+		'--token',
+		token,
+		'--run-key',
+		'bramble-t6-overnight',
+		'--run-name',
+		'T6 overnight, pump 15.02 GHz',
+		'--lose-lock-at-min',
+		'1',
+		'--lock-loss-min',
+		'1.5',
 		// IQ histograms so the run page's phase-space picture shows the state lobes.
-		'--iq-bins', '24',
-		'--spool', path.join(dataDir, 'agent-spool.ndjson'),
-		'--seed', '7',
-		'--speed', speed
+		'--iq-bins',
+		'24',
+		'--spool',
+		path.join(dataDir, 'agent-spool.ndjson'),
+		'--seed',
+		'7',
+		'--speed',
+		speed
 	],
 	{ env: process.env, stdio: ['ignore', 'inherit', 'inherit'] }
 );

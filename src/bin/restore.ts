@@ -26,11 +26,13 @@ const config = readConfig();
 try {
 	const kind = backupKindOf(file);
 	if (kind === 'embedded') {
-		if (config.databaseUrl) throw new Error('this is a dump of the embedded database; unset DATABASE_URL to restore it into PHASEWARDEN_DATA');
+		if (config.databaseUrl)
+			throw new Error('this is a dump of the embedded database; unset DATABASE_URL to restore it into PHASEWARDEN_DATA');
 		await restoreEmbedded(await openAsBlob(file), config.dataDir, config.migrationsDir);
 		console.log(`restored ${file} into ${config.dataDir}`);
 	} else {
-		if (!config.databaseUrl) throw new Error('this is a pg_dump of a PostgreSQL server; set DATABASE_URL to the (empty) database to restore it into');
+		if (!config.databaseUrl)
+			throw new Error('this is a pg_dump of a PostgreSQL server; set DATABASE_URL to the (empty) database to restore it into');
 		await restoreServer(file, config.databaseUrl);
 		// A backup from an older release gets the newer migrations.
 		const { close } = await openConfiguredDatabase(config);

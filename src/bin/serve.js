@@ -18,7 +18,9 @@ process.env.BODY_SIZE_LIMIT ||= DEFAULT_BODY_LIMIT;
 process.env.PHASEWARDEN_UPLOAD_LIMIT ||= DEFAULT_UPLOAD_LIMIT;
 process.env.PHASEWARDEN_ROUTE_BODY_LIMIT = process.env.BODY_SIZE_LIMIT;
 const routeLimits = { ...process.env };
-process.env.BODY_SIZE_LIMIT = String(Math.max(parseByteLimit(process.env.BODY_SIZE_LIMIT), parseByteLimit(process.env.PHASEWARDEN_UPLOAD_LIMIT)));
+process.env.BODY_SIZE_LIMIT = String(
+	Math.max(parseByteLimit(process.env.BODY_SIZE_LIMIT), parseByteLimit(process.env.PHASEWARDEN_UPLOAD_LIMIT))
+);
 /** Past this much of an oversized body the connection is cut instead of read to the end. */
 const DRAIN_CAP_BYTES = 64 * 1024 * 1024;
 // Loaded by URL so the type checker does not wander into the generated bundle.
@@ -31,7 +33,9 @@ const host = process.env.HOST ?? '0.0.0.0';
 
 // Static files are served by the handler outside SvelteKit's hooks, so the baseline headers go on here;
 // SvelteKit's own responses set them again (and their Content-Security-Policy) on top.
-const baseline = Object.entries(securityHeaders({ hsts: process.env.PHASEWARDEN_HSTS === '1' || (process.env.ORIGIN ?? '').startsWith('https:') }));
+const baseline = Object.entries(
+	securityHeaders({ hsts: process.env.PHASEWARDEN_HSTS === '1' || (process.env.ORIGIN ?? '').startsWith('https:') })
+);
 const server = http.createServer((req, res) => {
 	for (const [name, value] of baseline) res.setHeader(name, value);
 	const declared_bytes = Number(req.headers['content-length'] ?? 0);

@@ -31,7 +31,11 @@ try {
 const { db, close } = await openConfiguredDatabase(config);
 try {
 	// No request comes in here; the base URL only silences better-auth's warning.
-	const auth = createAuth({ db, secret: loadAuthSecret(config.dataDir, config.authSecret), baseURL: config.origin ?? 'http://localhost:3000' });
+	const auth = createAuth({
+		db,
+		secret: loadAuthSecret(config.dataDir, config.authSecret),
+		baseURL: config.origin ?? 'http://localhost:3000'
+	});
 	const user = await addUser(auth, parsed.data);
 	console.log(`added ${user.email} (${parsed.data.role}) to ${embedded ? config.dataDir : 'the PostgreSQL server'}`);
 } catch (err) {

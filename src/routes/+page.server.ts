@@ -14,6 +14,13 @@ export const load: PageServerLoad = async (event) => {
 	const { db } = await getRuntime();
 	// Typed as the JSON API's shape: the page patches runs into it from the live feed.
 	const setups: Setup[] = await listSetupsWithStatus(db);
-	const [onCall, silences] = await Promise.all([onCallNowNames(db, setups.map((s) => s.id), pagingNow()), listSilences(db, { activeOnly: true })]);
+	const [onCall, silences] = await Promise.all([
+		onCallNowNames(
+			db,
+			setups.map((s) => s.id),
+			pagingNow()
+		),
+		listSilences(db, { activeOnly: true })
+	]);
 	return { setups, onCall, silences };
 };

@@ -33,12 +33,17 @@ let trial = 0;
 
 /** The app ÷ raw ratio of each A/B pair: their median is the table's ratio, steadier than a ratio of medians. */
 const pairRatios = (r: { app: number[]; raw: number[] }) => r.app.map((a, i) => a / r.raw[i]);
-const pairs = (r: { app: number[]; raw: number[] }) => pairRatios(r).map((x) => x.toFixed(2)).join(', ');
+const pairs = (r: { app: number[]; raw: number[] }) =>
+	pairRatios(r)
+		.map((x) => x.toFixed(2))
+		.join(', ');
 
 /** Frames per second of `runs` agents streaming `perRun` frames each at once (connecting not timed). */
 async function streamRate(target: Target, runs: number, perRun: number): Promise<number> {
 	trial++;
-	const agents = await Promise.all(Array.from({ length: runs }, (_, i) => BenchAgent.open(target.wsUrl, target.token, `bulk-${trial}-${i}`)));
+	const agents = await Promise.all(
+		Array.from({ length: runs }, (_, i) => BenchAgent.open(target.wsUrl, target.token, `bulk-${trial}-${i}`))
+	);
 	const t0 = performance.now();
 	await Promise.all(agents.map((a) => a.stream(a.lastSeqAtWelcome, perRun, PER_MESSAGE, IN_FLIGHT, T0_MS)));
 	const elapsed_s = (performance.now() - t0) / 1000;
@@ -49,7 +54,9 @@ async function streamRate(target: Target, runs: number, perRun: number): Promise
 }
 
 async function main() {
-	console.log(`bulk ingest: ${SINGLE_FRAMES} frames on one run; ${RUNS} runs × ${FRAMES_PER_RUN} frames at once; ${PER_MESSAGE} frames/message, ${IN_FLIGHT} in flight; ${REPEATS} repeats, A/B interleaved`);
+	console.log(
+		`bulk ingest: ${SINGLE_FRAMES} frames on one run; ${RUNS} runs × ${FRAMES_PER_RUN} frames at once; ${PER_MESSAGE} frames/message, ${IN_FLIGHT} in flight; ${REPEATS} repeats, A/B interleaved`
+	);
 	const template = await seedTemplate();
 	const appSeed = copySeed(template, 'bulk-app');
 	const rawSeed = copySeed(template, 'bulk-raw');
@@ -69,15 +76,35 @@ async function main() {
 			const order = rep % 2 === 0 ? targets : [...targets].reverse();
 			for (const t of order) single[t.name].push(await streamRate(t, 1, SINGLE_FRAMES));
 			for (const t of order) many[t.name].push(await streamRate(t, RUNS, FRAMES_PER_RUN));
-			console.log(`repeat ${rep + 1}: single app ${single.app.at(-1)!.toFixed(0)} raw ${single.raw.at(-1)!.toFixed(0)}; ${RUNS} runs app ${many.app.at(-1)!.toFixed(0)} raw ${many.raw.at(-1)!.toFixed(0)} frames/s`);
+			console.log(
+				`repeat ${rep + 1}: single app ${single.app.at(-1)!.toFixed(0)} raw ${single.raw.at(-1)!.toFixed(0)}; ${RUNS} runs app ${many.app.at(-1)!.toFixed(0)} raw ${many.raw.at(-1)!.toFixed(0)} frames/s`
+			);
 		}
-		printTable('Bulk ingest, 500 frames per message (frames/s, median)', [
-			{ measure: 'one run', app: median(single.app), baseline: median(single.raw), ratio: median(pairRatios(single)), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } },
-			{ measure: `${RUNS} runs at once`, app: median(many.app), baseline: median(many.raw), ratio: median(pairRatios(many)), unit: 'frames/s', target: { on: 'ratio', atLeast: 0.6 } }
-		], [
-			`baseline: ${RAW_BASELINE}`,
-			`ratio = median of the A/B pairs' ratios; each pair, one run: ${pairs(single)}; ${RUNS} runs: ${pairs(many)}`
-		]);
+		printTable(
+			'Bulk ingest, 500 frames per message (frames/s, median)',
+			[
+				{
+					measure: 'one run',
+					app: median(single.app),
+					baseline: median(single.raw),
+					ratio: median(pairRatios(single)),
+					unit: 'frames/s',
+					target: { on: 'ratio', atLeast: 0.6 }
+				},
+				{
+					measure: `${RUNS} runs at once`,
+					app: median(many.app),
+					baseline: median(many.raw),
+					ratio: median(pairRatios(many)),
+					unit: 'frames/s',
+					target: { on: 'ratio', atLeast: 0.6 }
+				}
+			],
+			[
+				`baseline: ${RAW_BASELINE}`,
+				`ratio = median of the A/B pairs' ratios; each pair, one run: ${pairs(single)}; ${RUNS} runs: ${pairs(many)}`
+			]
+		);
 	} finally {
 		await app.stop();
 		await raw.stop();

@@ -16,7 +16,9 @@ const MUS = [0.05, 0.1, 0.2, 0.5, 1, 2, 5, 10, 20];
 const pct = (x: number) => `${x >= 0 ? '+' : ''}${(100 * x).toFixed(3)} %`;
 const rows: string[] = [];
 rows.push(`Target in-control run length ${TARGET} steps; Monte Carlo ${RUNS} runs per row; lattices up to ${LATTICE_STATES} states.`);
-rows.push('| ρ | μ/step | h | ARL chain | lattice k↓ | lattice k↑ | (lattice − chain)/chain, k↓ / k↑ | ARL MC ± SE | (MC − chain)/chain | z |');
+rows.push(
+	'| ρ | μ/step | h | ARL chain | lattice k↓ | lattice k↑ | (lattice − chain)/chain, k↓ / k↑ | ARL MC ± SE | (MC − chain)/chain | z |'
+);
 rows.push('|---|---|---|---|---|---|---|---|---|---|');
 let seed = 1000;
 for (const rho of [2, 0.5]) {

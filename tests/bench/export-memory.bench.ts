@@ -60,7 +60,7 @@ async function main() {
 	const week = await weekRun(FRAMES, IQ_BINS);
 	const app = await startAppServer(week.dataDir);
 	const results: Record<'csv' | 'ndjson', Download> = {} as never;
-	let idleMB = 0;
+	let idleMB: number;
 	try {
 		const observer = await signIn(app);
 		// Warm the route code and the database's first pages, then let the server settle.
@@ -70,8 +70,11 @@ async function main() {
 		for (const format of ['csv', 'ndjson'] as const) {
 			results[format] = await download(observer.fetch, `/api/runs/${week.runId}/export.${format}`, app.pid);
 			const expectedLines = FRAMES + (format === 'csv' ? 1 : 0);
-			if (results[format].lines !== expectedLines) throw new Error(`export.${format}: ${results[format].lines} lines, expected ${expectedLines}`);
-			console.log(`  export.${format}: ${(results[format].bytes / 1e6).toFixed(0)} MB in ${results[format].seconds.toFixed(1)} s, peak RSS ${results[format].peakMB.toFixed(0)} MB`);
+			if (results[format].lines !== expectedLines)
+				throw new Error(`export.${format}: ${results[format].lines} lines, expected ${expectedLines}`);
+			console.log(
+				`  export.${format}: ${(results[format].bytes / 1e6).toFixed(0)} MB in ${results[format].seconds.toFixed(1)} s, peak RSS ${results[format].peakMB.toFixed(0)} MB`
+			);
 		}
 	} finally {
 		await app.stop();
@@ -79,10 +82,34 @@ async function main() {
 	const bareCsv = await bareRead(week.dataDir, week.runId, false);
 	const bareNd = await bareRead(week.dataDir, week.runId, true);
 	const rows: BenchRow[] = [
-		{ measure: 'server RSS, peak during export.csv vs idle', app: results.csv.peakMB, baseline: idleMB, unit: 'MB', target: { on: 'difference', atMost: 50, unit: 'MB' } },
-		{ measure: 'server RSS, peak during export.ndjson vs idle', app: results.ndjson.peakMB, baseline: idleMB, unit: 'MB', target: { on: 'difference', atMost: 50, unit: 'MB' } },
-		{ measure: 'export.csv throughput vs bare keyset read (no IQ)', app: FRAMES / results.csv.seconds, baseline: bareCsv.rows / bareCsv.seconds, unit: 'frames/s', target: { on: 'none' } },
-		{ measure: 'export.ndjson throughput vs bare keyset read (with IQ)', app: FRAMES / results.ndjson.seconds, baseline: bareNd.rows / bareNd.seconds, unit: 'frames/s', target: { on: 'none' } }
+		{
+			measure: 'server RSS, peak during export.csv vs idle',
+			app: results.csv.peakMB,
+			baseline: idleMB,
+			unit: 'MB',
+			target: { on: 'difference', atMost: 50, unit: 'MB' }
+		},
+		{
+			measure: 'server RSS, peak during export.ndjson vs idle',
+			app: results.ndjson.peakMB,
+			baseline: idleMB,
+			unit: 'MB',
+			target: { on: 'difference', atMost: 50, unit: 'MB' }
+		},
+		{
+			measure: 'export.csv throughput vs bare keyset read (no IQ)',
+			app: FRAMES / results.csv.seconds,
+			baseline: bareCsv.rows / bareCsv.seconds,
+			unit: 'frames/s',
+			target: { on: 'none' }
+		},
+		{
+			measure: 'export.ndjson throughput vs bare keyset read (with IQ)',
+			app: FRAMES / results.ndjson.seconds,
+			baseline: bareNd.rows / bareNd.seconds,
+			unit: 'frames/s',
+			target: { on: 'none' }
+		}
 	];
 	const failed = printTable('Export of a 7-day run at 1 Hz', rows, [
 		`${FRAMES.toLocaleString('en-US')} frames; CSV ${(results.csv.bytes / 1e6).toFixed(0)} MB, NDJSON ${(results.ndjson.bytes / 1e6).toFixed(0)} MB`,

@@ -35,7 +35,8 @@ const lockAt = (seq: number) => {
 	const p = (seq - 1) % CYCLE;
 	return p >= LOW_START && p <= TRIGGER ? LOW_LOCK : GOOD_LOCK;
 };
-if (LOW_LOCK >= rule.threshold || GOOD_LOCK < rule.clearThreshold) throw new Error('the bench frames no longer straddle the lock_lost thresholds');
+if (LOW_LOCK >= rule.threshold || GOOD_LOCK < rule.clearThreshold)
+	throw new Error('the bench frames no longer straddle the lock_lost thresholds');
 
 interface Phase {
 	target: 'app' | 'raw';
@@ -78,7 +79,9 @@ async function drive(agents: BenchAgent[], phase: Phase) {
 }
 
 async function main() {
-	console.log(`incident latency: ${RUNS} runs × ${RATE_PER_RUN} frames/s, ${FRAMES_PER_MESSAGE} frame(s)/message; lock_lost opens after ${rule.windows} windows below ${rule.threshold}, once per ${CYCLE} frames per run; ${PHASES} phases of ${PHASE_S} s (app, raw, …)`);
+	console.log(
+		`incident latency: ${RUNS} runs × ${RATE_PER_RUN} frames/s, ${FRAMES_PER_MESSAGE} frame(s)/message; lock_lost opens after ${rule.windows} windows below ${rule.threshold}, once per ${CYCLE} frames per run; ${PHASES} phases of ${PHASE_S} s (app, raw, …)`
+	);
 	const template = await seedTemplate();
 	const appSeed = copySeed(template, 'incident-app');
 	const rawSeed = copySeed(template, 'incident-raw');
@@ -103,7 +106,9 @@ async function main() {
 		for (let p = 0; p < PHASES; p++) {
 			const target = p % 2 === 0 ? 'app' : 'raw';
 			const server = target === 'app' ? { url: app.wsUrl, token: appSeed.token } : { url: raw.wsUrl, token: rawSeed.token };
-			const agents = await Promise.all(Array.from({ length: RUNS }, (_, i) => BenchAgent.open(server.url, server.token, `incident-${p}-${i}`)));
+			const agents = await Promise.all(
+				Array.from({ length: RUNS }, (_, i) => BenchAgent.open(server.url, server.token, `incident-${p}-${i}`))
+			);
 			const phase: Phase = { target, ack_ms: [], triggerAck_ms: [], triggers: new Map() };
 			current = phase;
 			const before = incidentLatency.length;
@@ -122,14 +127,38 @@ async function main() {
 		printTable(
 			`Frame → incident at ${RUNS * RATE_PER_RUN} frames/s over ${RUNS} runs`,
 			[
-				{ measure: 'frame → incident on /api/events, p50', app: percentile(incidentLatency, 0.5), baseline: percentile(rawAck, 0.5), unit: 'ms', target: { on: 'none' } },
-				{ measure: 'frame → incident on /api/events, p99', app: percentile(incidentLatency, 0.99), baseline: percentile(rawAck, 0.99), unit: 'ms', target: { on: 'app', atMost: 200, unit: 'ms' } },
-				{ measure: 'ack latency of every message, p50', app: percentile(of('app', 'ack_ms'), 0.5), baseline: percentile(of('raw', 'ack_ms'), 0.5), unit: 'ms', target: { on: 'none' } },
-				{ measure: 'ack latency of every message, p99', app: percentile(of('app', 'ack_ms'), 0.99), baseline: percentile(of('raw', 'ack_ms'), 0.99), unit: 'ms', target: { on: 'none' } }
+				{
+					measure: 'frame → incident on /api/events, p50',
+					app: percentile(incidentLatency, 0.5),
+					baseline: percentile(rawAck, 0.5),
+					unit: 'ms',
+					target: { on: 'none' }
+				},
+				{
+					measure: 'frame → incident on /api/events, p99',
+					app: percentile(incidentLatency, 0.99),
+					baseline: percentile(rawAck, 0.99),
+					unit: 'ms',
+					target: { on: 'app', atMost: 200, unit: 'ms' }
+				},
+				{
+					measure: 'ack latency of every message, p50',
+					app: percentile(of('app', 'ack_ms'), 0.5),
+					baseline: percentile(of('raw', 'ack_ms'), 0.5),
+					unit: 'ms',
+					target: { on: 'none' }
+				},
+				{
+					measure: 'ack latency of every message, p99',
+					app: percentile(of('app', 'ack_ms'), 0.99),
+					baseline: percentile(of('raw', 'ack_ms'), 0.99),
+					unit: 'ms',
+					target: { on: 'none' }
+				}
 			],
 			[
 				`incidents received: ${incidentLatency.length} of ${triggers} lock drops sent to the app`,
-				`baseline: the raw ceiling’s ack latency for the same triggering frames at the same load (${RAW_BASELINE}); it commits every message on its own, so at ${RUNS * RATE_PER_RUN / FRAMES_PER_MESSAGE} messages/s it falls behind once a commit takes over ${(1000 / (RUNS * RATE_PER_RUN / FRAMES_PER_MESSAGE)).toFixed(1)} ms`,
+				`baseline: the raw ceiling’s ack latency for the same triggering frames at the same load (${RAW_BASELINE}); it commits every message on its own, so at ${(RUNS * RATE_PER_RUN) / FRAMES_PER_MESSAGE} messages/s it falls behind once a commit takes over ${(1000 / ((RUNS * RATE_PER_RUN) / FRAMES_PER_MESSAGE)).toFixed(1)} ms`,
 				`BENCH_INCIDENT_FRAMES_PER_MESSAGE=10 sends the same frames/s in messages of 10 every 100 ms per run`
 			]
 		);

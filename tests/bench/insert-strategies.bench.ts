@@ -25,8 +25,26 @@ const ROUNDS_BULK = sizeFromEnv('BENCH_INSERT_ROUNDS_BULK', 60);
 const ROUNDS_LIVE = sizeFromEnv('BENCH_INSERT_ROUNDS_LIVE', 600);
 const T0_MS = Date.UTC(2026, 0, 1);
 
-const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'] as const;
-const RECORD_TYPES = 'run_id text, seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
+const COLUMNS = [
+	'run_id',
+	'seq',
+	't',
+	'window_s',
+	'shots',
+	'vacuum',
+	'counts',
+	'lock',
+	'switches',
+	'dwell_s',
+	'escapes',
+	'vacuum_s',
+	'transitions',
+	'amp',
+	'aux',
+	'iq'
+] as const;
+const RECORD_TYPES =
+	'run_id text, seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
 
 type Insert = (runId: string, batch: Frame[]) => Promise<unknown>;
@@ -34,12 +52,53 @@ type Insert = (runId: string, batch: Frame[]) => Promise<unknown>;
 function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 	const textCache = new Map<number, string>();
 	const preparedCache = new Map<number, { execute(values: Record<string, unknown>): Promise<unknown> }>();
-	const FIELDS = ['runId', 'seq', 't', 'windowS', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwellS', 'escapes', 'vacuumS', 'transitions', 'amp', 'aux', 'iq'] as const;
+	const FIELDS = [
+		'runId',
+		'seq',
+		't',
+		'windowS',
+		'shots',
+		'vacuum',
+		'counts',
+		'lock',
+		'switches',
+		'dwellS',
+		'escapes',
+		'vacuumS',
+		'transitions',
+		'amp',
+		'aux',
+		'iq'
+	] as const;
 	return {
-		'drizzle .values(rows)': (runId, batch) => db.insert(framesTable).values(batch.map((f) => frameToRow(runId, f))).onConflictDoNothing(),
+		'drizzle .values(rows)': (runId, batch) =>
+			db
+				.insert(framesTable)
+				.values(batch.map((f) => frameToRow(runId, f)))
+				.onConflictDoNothing(),
 		'jsonb_to_recordset($1::jsonb)': (runId, batch) => {
-			const records = batch.map((f) => ({ run_id: runId, seq: f.seq, t: Math.round(f.t), window_s: f.window_s, shots: f.shots, vacuum: f.vacuum, counts: f.counts, lock: f.lock, switches: f.switches, dwell_s: f.dwell_s, escapes: f.escapes, vacuum_s: f.vacuum_s, transitions: f.transitions ?? null, amp: f.amp ?? null, aux: f.aux ?? null, iq: f.iq ?? null }));
-			return pg.query(`INSERT INTO frames (${COLUMNS.join(',')}) SELECT ${COLUMNS.join(',')} FROM jsonb_to_recordset($1::jsonb) AS x(${RECORD_TYPES}) ON CONFLICT DO NOTHING`, [JSON.stringify(records)]);
+			const records = batch.map((f) => ({
+				run_id: runId,
+				seq: f.seq,
+				t: Math.round(f.t),
+				window_s: f.window_s,
+				shots: f.shots,
+				vacuum: f.vacuum,
+				counts: f.counts,
+				lock: f.lock,
+				switches: f.switches,
+				dwell_s: f.dwell_s,
+				escapes: f.escapes,
+				vacuum_s: f.vacuum_s,
+				transitions: f.transitions ?? null,
+				amp: f.amp ?? null,
+				aux: f.aux ?? null,
+				iq: f.iq ?? null
+			}));
+			return pg.query(
+				`INSERT INTO frames (${COLUMNS.join(',')}) SELECT ${COLUMNS.join(',')} FROM jsonb_to_recordset($1::jsonb) AS x(${RECORD_TYPES}) ON CONFLICT DO NOTHING`,
+				[JSON.stringify(records)]
+			);
 		},
 		'cached multi-row text, $n parameters': (runId, batch) => {
 			let text = textCache.get(batch.length);
@@ -49,14 +108,36 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 				textCache.set(batch.length, text);
 			}
 			const params: unknown[] = [];
-			for (const f of batch) params.push(runId, f.seq, Math.round(f.t), f.window_s, f.shots, f.vacuum, json(f.counts), f.lock, f.switches, f.dwell_s, f.escapes, f.vacuum_s, json(f.transitions), f.amp ?? null, json(f.aux), json(f.iq));
+			for (const f of batch)
+				params.push(
+					runId,
+					f.seq,
+					Math.round(f.t),
+					f.window_s,
+					f.shots,
+					f.vacuum,
+					json(f.counts),
+					f.lock,
+					f.switches,
+					f.dwell_s,
+					f.escapes,
+					f.vacuum_s,
+					json(f.transitions),
+					f.amp ?? null,
+					json(f.aux),
+					json(f.iq)
+				);
 			return pg.query(text, params);
 		},
 		'drizzle .prepare() with placeholders': (runId, batch) => {
 			let prepared = preparedCache.get(batch.length);
 			if (!prepared) {
 				const rows = batch.map((_, r) => Object.fromEntries(FIELDS.map((k) => [k, sql.placeholder(`${k}${r}`)])));
-				prepared = db.insert(framesTable).values(rows as never).onConflictDoNothing().prepare(`frames_${batch.length}`);
+				prepared = db
+					.insert(framesTable)
+					.values(rows as never)
+					.onConflictDoNothing()
+					.prepare(`frames_${batch.length}`);
 				preparedCache.set(batch.length, prepared);
 			}
 			const values: Record<string, unknown> = {};
@@ -68,12 +149,21 @@ function strategies(db: Db, pg: PGlite): Record<string, Insert> {
 		},
 		// The app's statement: frames and rollups in one (batch-write.ts); the run's progress goes along every few seconds.
 		'app writeBatch (batch-write.ts)': (runId, batch) =>
-			writeBatch(db, runId, new Date(), batch.map((frame) => ({ frame, late: false })), [], null)
+			writeBatch(
+				db,
+				runId,
+				new Date(),
+				batch.map((frame) => ({ frame, late: false })),
+				[],
+				null
+			)
 	};
 }
 
 async function main() {
-	console.log(`insert strategies: ${ROUNDS_BULK} rounds of 500-frame statements, ${ROUNDS_LIVE} rounds of 1-frame statements; strategies in rotating order within each round; autocommit, PGlite as openDatabase opens it`);
+	console.log(
+		`insert strategies: ${ROUNDS_BULK} rounds of 500-frame statements, ${ROUNDS_LIVE} rounds of 1-frame statements; strategies in rotating order within each round; autocommit, PGlite as openDatabase opens it`
+	);
 	const template = await seedTemplate();
 	const seed = copySeed(template, 'insert');
 	const { db, client: pg, close } = await openDatabase(seed.dataDir, migrationsDir);
@@ -84,7 +174,12 @@ async function main() {
 		const nextSeq = new Map<string, number>();
 		for (const [i, name] of names.entries()) {
 			const id = `insert-bench-${i}`;
-			await pg.query('INSERT INTO runs (id, setup_id, key, name, "order", states, mode_ghz) VALUES ($1, $2, $3, $4, 3, 6, 5)', [id, seed.setupId, id, name]);
+			await pg.query('INSERT INTO runs (id, setup_id, key, name, "order", states, mode_ghz) VALUES ($1, $2, $3, $4, 3, 6, 5)', [
+				id,
+				seed.setupId,
+				id,
+				name
+			]);
 			runIds.set(name, id);
 			nextSeq.set(name, 0);
 		}
@@ -97,7 +192,10 @@ async function main() {
 			await all[name](runIds.get(name)!, batch);
 			return performance.now() - t0;
 		};
-		for (const [batchSize, rounds] of [[500, ROUNDS_BULK], [1, ROUNDS_LIVE]] as const) {
+		for (const [batchSize, rounds] of [
+			[500, ROUNDS_BULK],
+			[1, ROUNDS_LIVE]
+		] as const) {
 			for (const name of names) for (let w = 0; w < 3; w++) await once(name, batchSize); // warm-up
 			// Statement by statement in rotation, so every strategy meets the same disk and machine load.
 			const times = new Map<string, number[]>(names.map((n) => [n, []]));
@@ -109,7 +207,9 @@ async function main() {
 			}
 			const rates = names.map((n) => ({ name: n, rate: batchSize / (median(times.get(n)!) / 1000) }));
 			const best = Math.max(...rates.map((m) => m.rate));
-			console.log(`### Frame INSERT strategies, ${batchSize} frame${batchSize > 1 ? 's' : ''} per statement (median of ${rounds} statements each)\n`);
+			console.log(
+				`### Frame INSERT strategies, ${batchSize} frame${batchSize > 1 ? 's' : ''} per statement (median of ${rounds} statements each)\n`
+			);
 			console.log('| strategy | frames/s | ratio to the fastest |\n| --- | ---: | ---: |');
 			for (const m of rates) console.log(`| ${m.name} | ${Math.round(m.rate).toLocaleString('en-US')} | ${(m.rate / best).toFixed(2)} |`);
 			console.log('');

@@ -67,16 +67,22 @@ function escapeEstimator(): number {
 }
 
 function overdamped(): number {
-	const r = estimateWellToWellRate({ potentialDerivative: (x) => -x + x * x * x, D: 0.05, dt: 0.02, duration: STEPS * 0.02, seed: 3, wells: [-1, 1] });
+	const r = estimateWellToWellRate({
+		potentialDerivative: (x) => -x + x * x * x,
+		D: 0.05,
+		dt: 0.02,
+		duration: STEPS * 0.02,
+		seed: 3,
+		wells: [-1, 1]
+	});
 	return r.steps;
 }
 
 async function inWorker(): Promise<{ ms: number; steps: number }> {
 	const entry = new URL('../../src/lib/physics/langevin-node-worker.ts', import.meta.url).href;
-	const worker = new Worker(
-		`import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(entry)}); })`,
-		{ eval: true }
-	);
+	const worker = new Worker(`import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(entry)}); })`, {
+		eval: true
+	});
 	try {
 		const dt = estimateEscapeRate(params, { ...escapeOptions, maxTime: 1 }).dt;
 		const job = {

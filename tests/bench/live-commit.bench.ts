@@ -56,7 +56,9 @@ async function rowSize(dataDir: string) {
 }
 
 async function main() {
-	console.log(`live commits: ${COMMIT_SAMPLES} timed commits per side in blocks of ${BLOCK}; app folder growth over ${GROWTH_FRAMES} frames from ${GROWTH_RUNS} runs, 1 frame/message, read ${SETTLE_MS / 1000} s after the last ack (maintenance every ${MAINTENANCE_S} s)`);
+	console.log(
+		`live commits: ${COMMIT_SAMPLES} timed commits per side in blocks of ${BLOCK}; app folder growth over ${GROWTH_FRAMES} frames from ${GROWTH_RUNS} runs, 1 frame/message, read ${SETTLE_MS / 1000} s after the last ack (maintenance every ${MAINTENANCE_S} s)`
+	);
 	const template = await seedTemplate();
 	const appSeed = copySeed(template, 'live-app');
 	const rawSeed = copySeed(template, 'live-raw');
@@ -71,7 +73,16 @@ async function main() {
 		const times = { app: [] as number[], raw: [] as number[] };
 		let seq = BLOCK;
 		for (let b = 0; b * BLOCK < COMMIT_SAMPLES; b++) {
-			const pair = b % 2 === 0 ? ([['app', appAgent], ['raw', rawAgent]] as const) : ([['raw', rawAgent], ['app', appAgent]] as const);
+			const pair =
+				b % 2 === 0
+					? ([
+							['app', appAgent],
+							['raw', rawAgent]
+						] as const)
+					: ([
+							['raw', rawAgent],
+							['app', appAgent]
+						] as const);
 			for (const [name, agent] of pair) times[name].push(...(await oneByOne(agent, seq, BLOCK)));
 			seq += BLOCK;
 		}
@@ -84,7 +95,9 @@ async function main() {
 		const rawRow = await rowSize(rawSeed.dataDir);
 
 		// Growth of the app's folder, read after maintenance at the start, the middle and the end.
-		const runs = await Promise.all(Array.from({ length: GROWTH_RUNS }, (_, i) => BenchAgent.open(app.wsUrl, appSeed.token, `live-growth-${i}`)));
+		const runs = await Promise.all(
+			Array.from({ length: GROWTH_RUNS }, (_, i) => BenchAgent.open(app.wsUrl, appSeed.token, `live-growth-${i}`))
+		);
 		const share = Math.ceil(GROWTH_FRAMES / 2 / GROWTH_RUNS);
 		const half = share * GROWTH_RUNS;
 		await sleep(SETTLE_MS);
@@ -93,7 +106,9 @@ async function main() {
 			await Promise.all(runs.map((a) => oneByOne(a, h * share, share)));
 			await sleep(SETTLE_MS);
 			sizes.push(sizeOf(appSeed.dataDir));
-			console.log(`after ${(h + 1) * half} frames: folder ${(sizes[h + 1].all / 1e6).toFixed(1)} MB, without pg_wal ${(sizes[h + 1].withoutWal / 1e6).toFixed(1)} MB`);
+			console.log(
+				`after ${(h + 1) * half} frames: folder ${(sizes[h + 1].all / 1e6).toFixed(1)} MB, without pg_wal ${(sizes[h + 1].withoutWal / 1e6).toFixed(1)} MB`
+			);
 		}
 		await Promise.all(runs.map((a) => a.close()));
 		const perFrame = (h: number, k: keyof FolderSize) => (sizes[h + 1][k] - sizes[h][k]) / half / 1024;
@@ -101,8 +116,20 @@ async function main() {
 		printTable(
 			'Live ingest, one frame per message',
 			[
-				{ measure: 'commit cost, send → ack, median', app: median(times.app), baseline: median(times.raw), unit: 'ms', target: { on: 'ratio', atMost: 2 } },
-				{ measure: 'commit cost, send → ack, p95', app: percentile(times.app, 0.95), baseline: percentile(times.raw, 0.95), unit: 'ms', target: { on: 'none' } },
+				{
+					measure: 'commit cost, send → ack, median',
+					app: median(times.app),
+					baseline: median(times.raw),
+					unit: 'ms',
+					target: { on: 'ratio', atMost: 2 }
+				},
+				{
+					measure: 'commit cost, send → ack, p95',
+					app: percentile(times.app, 0.95),
+					baseline: percentile(times.raw, 0.95),
+					unit: 'ms',
+					target: { on: 'none' }
+				},
 				{
 					measure: `folder growth per frame, over all ${2 * half} frames`,
 					app: (sizes[2].all - sizes[0].all) / (2 * half) / 1024,
@@ -113,9 +140,27 @@ async function main() {
 				// Flat: the second half must grow no faster than the first. The first half of a new folder
 				// also holds pg_wal's one-time growth to its minimum size (a 16 MB segment).
 				{ measure: `… frames 1–${half}`, app: perFrame(0, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } },
-				{ measure: `… frames ${half + 1}–${2 * half}`, app: perFrame(1, 'all'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'app', atMost: 2, unit: 'kB' } },
-				{ measure: `… without pg_wal, frames 1–${half}`, app: perFrame(0, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } },
-				{ measure: `… without pg_wal, frames ${half + 1}–${2 * half}`, app: perFrame(1, 'withoutWal'), baseline: rawRow.tablePerRow / 1024, unit: 'kB', target: { on: 'none' } }
+				{
+					measure: `… frames ${half + 1}–${2 * half}`,
+					app: perFrame(1, 'all'),
+					baseline: rawRow.tablePerRow / 1024,
+					unit: 'kB',
+					target: { on: 'app', atMost: 2, unit: 'kB' }
+				},
+				{
+					measure: `… without pg_wal, frames 1–${half}`,
+					app: perFrame(0, 'withoutWal'),
+					baseline: rawRow.tablePerRow / 1024,
+					unit: 'kB',
+					target: { on: 'none' }
+				},
+				{
+					measure: `… without pg_wal, frames ${half + 1}–${2 * half}`,
+					app: perFrame(1, 'withoutWal'),
+					baseline: rawRow.tablePerRow / 1024,
+					unit: 'kB',
+					target: { on: 'none' }
+				}
 			],
 			[
 				`commit cost baseline: ${RAW_BASELINE}`,

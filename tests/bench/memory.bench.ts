@@ -34,11 +34,13 @@ async function main() {
 	const seed = copySeed(template, 'memory');
 	const bareBefore = await bareRss(seed.dataDir);
 	const app = await startAppServer(seed.dataDir);
-	let appRss: number[] = [];
+	const appRss: number[] = [];
 	let events = 0;
 	try {
 		const observer = await signIn(app);
-		const streams = Array.from({ length: DASHBOARDS }, () => openEventStream(`${app.url}/api/events`, observer.cookie, () => void events++));
+		const streams = Array.from({ length: DASHBOARDS }, () =>
+			openEventStream(`${app.url}/api/events`, observer.cookie, () => void events++)
+		);
 		await Promise.all(streams.map((s) => s.ready));
 		const agents = await Promise.all(Array.from({ length: LIVE_RUNS }, (_, i) => BenchAgent.open(app.wsUrl, seed.token, `memory-${i}`)));
 		const idleRss = rssMB(app.pid);
@@ -46,9 +48,12 @@ async function main() {
 		const timers = agents.map((agent, i) => {
 			let seq = 0;
 			let interval: NodeJS.Timeout | undefined;
-			const start = setTimeout(() => {
-				interval = setInterval(() => agent.send([benchFrame(++seq, Date.now())]), 1000);
-			}, (i * 1000) / LIVE_RUNS);
+			const start = setTimeout(
+				() => {
+					interval = setInterval(() => agent.send([benchFrame(++seq, Date.now())]), 1000);
+				},
+				(i * 1000) / LIVE_RUNS
+			);
 			return () => (clearTimeout(start), clearInterval(interval));
 		});
 		for (let s = 5; s <= LOAD_S; s += 5) {
@@ -59,7 +64,9 @@ async function main() {
 		const acked = agents.reduce((n, a) => n + a.lastAck, 0);
 		await Promise.all(agents.map((a) => a.close()));
 		streams.forEach((s) => s.close());
-		console.log(`server RSS every 5 s: ${appRss.map((r) => r.toFixed(0)).join(' ')} MB (${idleRss.toFixed(0)} MB with the sockets open, before frames); ${acked} frames acked, ${events} events delivered`);
+		console.log(
+			`server RSS every 5 s: ${appRss.map((r) => r.toFixed(0)).join(' ')} MB (${idleRss.toFixed(0)} MB with the sockets open, before frames); ${acked} frames acked, ${events} events delivered`
+		);
 	} finally {
 		await app.stop();
 	}
@@ -67,10 +74,24 @@ async function main() {
 	printTable(
 		`Server memory, ${LIVE_RUNS} live runs at 1 Hz and ${DASHBOARDS} dashboards`,
 		[
-			{ measure: `server RSS after ${LOAD_S} s`, app: appRss[appRss.length - 1], baseline: bareAfter, unit: 'MB', target: { on: 'difference', atMost: 100, unit: 'MB' } },
-			{ measure: 'server RSS, peak', app: Math.max(...appRss), baseline: bareAfter, unit: 'MB', target: { on: 'difference', atMost: 100, unit: 'MB' } }
+			{
+				measure: `server RSS after ${LOAD_S} s`,
+				app: appRss[appRss.length - 1],
+				baseline: bareAfter,
+				unit: 'MB',
+				target: { on: 'difference', atMost: 100, unit: 'MB' }
+			},
+			{
+				measure: 'server RSS, peak',
+				app: Math.max(...appRss),
+				baseline: bareAfter,
+				unit: 'MB',
+				target: { on: 'difference', atMost: 100, unit: 'MB' }
+			}
 		],
-		[`baseline: node + openDatabase on the same data folder, idle ${SETTLE_S} s, read after the load (${bareAfter.toFixed(0)} MB; before the load ${bareBefore.toFixed(0)} MB)`]
+		[
+			`baseline: node + openDatabase on the same data folder, idle ${SETTLE_S} s, read after the load (${bareAfter.toFixed(0)} MB; before the load ${bareBefore.toFixed(0)} MB)`
+		]
 	);
 }
 

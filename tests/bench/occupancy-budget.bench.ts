@@ -41,7 +41,9 @@ function inControl(total_per_s: number, ratio: number, transitions: boolean, see
 
 const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 const rows: string[] = [];
-rows.push(`in control, ${WINDOWS} windows of 1 s (${(WINDOWS / 86_400).toFixed(2)} days), budget 1 per ${DAYS} days → ${budget.toFixed(3)} expected at most`);
+rows.push(
+	`in control, ${WINDOWS} windows of 1 s (${(WINDOWS / 86_400).toFixed(2)} days), budget 1 per ${DAYS} days → ${budget.toFixed(3)} expected at most`
+);
 rows.push('out-rate/s | within:cross | transitions | incidents states | incidents pairs | P(X ≥ count | budget)');
 for (const [rate, ratio, seed] of [
 	[0.21, 10, 10],
@@ -52,18 +54,31 @@ for (const [rate, ratio, seed] of [
 	for (const tr of [true, false]) {
 		const r = inControl(rate, ratio, tr, seed);
 		const total = r.states + r.pairs;
-		rows.push(`${rate.toFixed(2)} | ${ratio}:1 | ${tr ? 'yes' : 'no'} | ${r.states} | ${r.pairs} | ${poissonUpperTail(total, budget).toExponential(2)}`);
+		rows.push(
+			`${rate.toFixed(2)} | ${ratio}:1 | ${tr ? 'yes' : 'no'} | ${r.states} | ${r.pairs} | ${poissonUpperTail(total, budget).toExponential(2)}`
+		);
 	}
 }
 
 // Out of control: from window 600 state 0 fills 1.7× as much as each other state, at 25 mK.
 rows.push('');
-rows.push(`out of control: 1.7× occupancy of state 0 from t = 600 s, out-rate ${W25.toFixed(3)}/s at 25 mK (warm-switching model), 2000 shots per window`);
+rows.push(
+	`out of control: 1.7× occupancy of state 0 from t = 600 s, out-rate ${W25.toFixed(3)}/s at 25 mK (warm-switching model), 2000 shots per window`
+);
 rows.push('seed | transitions | delay to open (s)');
 for (const tr of [true, false]) {
 	const delays: number[] = [];
 	for (let seed = 1; seed <= 10; seed++) {
-		const fs = pairFrames({ seed: 500 + seed, states: 6, windows: 600 + 3600, withinRate_per_s: (W25 * 10) / 11, crossRate_per_s: W25 / 11, excess: 1.7, excessFrom: 600, transitions: tr });
+		const fs = pairFrames({
+			seed: 500 + seed,
+			states: 6,
+			windows: 600 + 3600,
+			withinRate_per_s: (W25 * 10) / 11,
+			crossRate_per_s: W25 / 11,
+			excess: 1.7,
+			excessFrom: 600,
+			transitions: tr
+		});
 		const engine = new DetectorEngine({ occupancy_imbalance: { falseAlarmEvery_days: DAYS } }, run6());
 		let delay = NaN;
 		for (const f of fs) {
@@ -86,7 +101,11 @@ const STUDENTIZE = process.env.BENCH_RAW !== '1';
 const MIN_EPISODES = Number(process.env.BENCH_MIN_EPISODES ?? 0);
 const HORIZONS = Number(process.env.BENCH_HORIZONS ?? 4000);
 const H = Number(process.env.BENCH_HORIZON ?? 300);
-const cal: string[] = ['', `tail calibration: ${HORIZONS} independent horizons of ${H} windows, observed-transitions χ²${STUDENTIZE ? ', modes studentized' : ', raw'}, modes with < ${MIN_EPISODES} episodes untested`, 'out-rate/s | within:cross | P(p < 0.1) | P(p < 0.01) | P(p < 0.001) | mean χ² (dof)'];
+const cal: string[] = [
+	'',
+	`tail calibration: ${HORIZONS} independent horizons of ${H} windows, observed-transitions χ²${STUDENTIZE ? ', modes studentized' : ', raw'}, modes with < ${MIN_EPISODES} episodes untested`,
+	'out-rate/s | within:cross | P(p < 0.1) | P(p < 0.01) | P(p < 0.001) | mean χ² (dof)'
+];
 for (const [rate, ratio] of [
 	[W25, 10],
 	[0.21, 10],
@@ -97,7 +116,14 @@ for (const [rate, ratio] of [
 	let sumDof = 0;
 	const chunk = 200;
 	for (let c = 0; c < HORIZONS; c += chunk) {
-		const fs = pairFrames({ seed: 9000 + c, states: 6, windows: H * chunk, withinRate_per_s: (rate * ratio) / (ratio + 1), crossRate_per_s: rate / (ratio + 1), shots: 2000 });
+		const fs = pairFrames({
+			seed: 9000 + c,
+			states: 6,
+			windows: H * chunk,
+			withinRate_per_s: (rate * ratio) / (ratio + 1),
+			crossRate_per_s: rate / (ratio + 1),
+			shots: 2000
+		});
 		for (let b = 0; b < chunk; b++) {
 			const counts = new Array<number>(6).fill(0);
 			const tr = new Array<number>(36).fill(0);
@@ -113,6 +139,8 @@ for (const [rate, ratio] of [
 		}
 	}
 	const frac = (a: number) => (ps.filter((p) => p < a).length / ps.length).toFixed(4);
-	cal.push(`${rate.toFixed(2)} | ${ratio}:1 | ${frac(0.1)} | ${frac(0.01)} | ${frac(0.001)} | ${(sumStat / ps.length).toFixed(2)} (${(sumDof / ps.length).toFixed(2)})`);
+	cal.push(
+		`${rate.toFixed(2)} | ${ratio}:1 | ${frac(0.1)} | ${frac(0.01)} | ${frac(0.001)} | ${(sumStat / ps.length).toFixed(2)} (${(sumDof / ps.length).toFixed(2)})`
+	);
 }
 console.log(cal.join('\n'));

@@ -28,7 +28,8 @@ type EngineClass = { new (rules: unknown, run: unknown): Engine; restore(s: unkn
 const root = resolve(import.meta.dirname, '../..');
 const git = (cmd: string) => execSync(`git ${cmd}`, { cwd: root, encoding: 'utf8' }).trim();
 const baseRef = process.env.BASE_REF ?? git('merge-base HEAD main');
-if (baseRef === git('rev-parse HEAD')) throw new Error('BASE_REF: HEAD is its own fork point from main; name the commit before the model band');
+if (baseRef === git('rev-parse HEAD'))
+	throw new Error('BASE_REF: HEAD is its own fork point from main; name the commit before the model band');
 const baseDir = join(root, 'node_modules/.cache/rate-budget-base');
 rmSync(baseDir, { recursive: true, force: true });
 mkdirSync(baseDir, { recursive: true });
@@ -41,8 +42,10 @@ const N = Math.round(DAYS * 86_400);
 const BUDGET_DAYS = 0.25;
 const SIGMA = 0.1;
 
-const pages = (evs: ReturnType<Engine['onFrame']>, kind: string) => evs.filter((e) => e.type === 'open' && e.kind === kind && e.severity !== 'info').length;
-const infos = (evs: ReturnType<Engine['onFrame']>) => evs.filter((e) => e.type === 'open' && e.kind === 'rate_drift' && e.severity === 'info').length;
+const pages = (evs: ReturnType<Engine['onFrame']>, kind: string) =>
+	evs.filter((e) => e.type === 'open' && e.kind === kind && e.severity !== 'info').length;
+const infos = (evs: ReturnType<Engine['onFrame']>) =>
+	evs.filter((e) => e.type === 'open' && e.kind === 'rate_drift' && e.severity === 'info').length;
 const feed = (engine: Engine, fs: Frame[]) => fs.flatMap((f) => engine.onFrame(f));
 const fmt = (x: number, d = 1) => x.toFixed(d);
 
@@ -67,20 +70,40 @@ for (const mu of [0.21, 0.85, 3]) {
 	const M = 200;
 	const seeds = Array.from({ length: M }, () => Math.floor(u() * 2 ** 31));
 	const len = Math.round(4000 / mu);
-	const today = seeds.map((seed) => firstOpen(new Base(delayRules({}), { states: 6, rateModels: { switching: flat(mu) } }), rateFrames({ seed, windows: len, switchRate: () => 2 * mu }), false));
-	const learning = seeds.map((seed) => firstOpen(new Current(delayRules({}), { states: 6, rateModels: { switching: flat(mu) } }), rateFrames({ seed, windows: len, switchRate: () => 2 * mu }), true));
+	const today = seeds.map((seed) =>
+		firstOpen(
+			new Base(delayRules({}), { states: 6, rateModels: { switching: flat(mu) } }),
+			rateFrames({ seed, windows: len, switchRate: () => 2 * mu }),
+			false
+		)
+	);
+	const learning = seeds.map((seed) =>
+		firstOpen(
+			new Current(delayRules({}), { states: 6, rateModels: { switching: flat(mu) } }),
+			rateFrames({ seed, windows: len, switchRate: () => 2 * mu }),
+			true
+		)
+	);
 	const after: number[] = [];
 	for (let b = 0; b < 10; b++) {
 		const engine = new Current(delayRules({}), { states: 6, rateModels: { switching: flat(mu) } });
 		feed(engine, rateFrames({ seed: Math.floor(u() * 2 ** 31), windows: 7200, switchRate: () => mu }));
 		const snap = JSON.stringify(engine.snapshot());
 		for (let r = 0; r < M / 10; r++) {
-			after.push(firstOpen(Current.restore(JSON.parse(snap)), rateFrames({ seed: seeds[b * (M / 10) + r], windows: len, firstSeq: 7201, switchRate: () => 2 * mu }), false));
+			after.push(
+				firstOpen(
+					Current.restore(JSON.parse(snap)),
+					rateFrames({ seed: seeds[b * (M / 10) + r], windows: len, firstSeq: 7201, switchRate: () => 2 * mu }),
+					false
+				)
+			);
 		}
 	}
 	const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
 	const t = mean(today);
-	console.log(`| ${mu} | ${fmt(t)} | ${fmt(mean(after))} | ${fmt(mean(after) / t, 2)} | ${fmt(mean(learning))} | ${fmt(mean(learning) / t, 2)} |`);
+	console.log(
+		`| ${mu} | ${fmt(t)} | ${fmt(mean(after))} | ${fmt(mean(after) / t, 2)} | ${fmt(mean(learning))} | ${fmt(mean(learning) / t, 2)} |`
+	);
 }
 
 // ---- Table 2: in-control openings ------------------------------------------------------------
@@ -100,24 +123,45 @@ const cases: Case[] = [
 		processes: ['switching', 'escape'],
 		run: () => ({
 			states: 6,
-			rateModels: { switching: withSigma(flat(1.25), { W0_sigma: SIGMA }), escape: withSigma({ ...flat(5), process: 'escape' }, { W0_sigma: SIGMA }) }
+			rateModels: {
+				switching: withSigma(flat(1.25), { W0_sigma: SIGMA }),
+				escape: withSigma({ ...flat(5), process: 'escape' }, { W0_sigma: SIGMA })
+			}
 		}),
-		frames: () => rateFrames({ seed: 4300, windows: N, dwell_s: 0.8, vacuum_s: 0.2, switchRate: () => 1.25 * Math.exp(2 * SIGMA), escapeRate: () => 5 * Math.exp(-2 * SIGMA) })
+		frames: () =>
+			rateFrames({
+				seed: 4300,
+				windows: N,
+				dwell_s: 0.8,
+				vacuum_s: 0.2,
+				switchRate: () => 1.25 * Math.exp(2 * SIGMA),
+				escapeRate: () => 5 * Math.exp(-2 * SIGMA)
+			})
 	},
 	{
 		name: 'fridge days 10→40→10 mK, model +1σ W0, −1σ A',
 		processes: ['switching'],
 		run: () => ({
 			states: 6,
-			rateModels: { switching: withSigma({ process: 'switching', W0_per_s: 74.2, A: 6, mode_GHz: 1, nominal_mK: 10 }, { W0_sigma: 0.1, A_sigma: 0.3 }) }
+			rateModels: {
+				switching: withSigma({ process: 'switching', W0_per_s: 74.2, A: 6, mode_GHz: 1, nominal_mK: 10 }, { W0_sigma: 0.1, A_sigma: 0.3 })
+			}
 		}),
-		frames: () => rateFrames({ seed: 4400, windows: N, T_mK: T_day, switchRate: (i) => Math.exp(Math.log(74.2) + 0.1 - 5.7 / noiseFactor(1, T_day(i))) })
+		frames: () =>
+			rateFrames({
+				seed: 4400,
+				windows: N,
+				T_mK: T_day,
+				switchRate: (i) => Math.exp(Math.log(74.2) + 0.1 - 5.7 / noiseFactor(1, T_day(i)))
+			})
 	}
 ];
 
 const expected = DAYS / BUDGET_DAYS;
 const limit = poissonThresholdForTail(expected, 0.001);
-console.log(`\nTable 2: openings over ${DAYS} days at 1 Hz, budget one per ${BUDGET_DAYS * 24} h per rule: mean ${expected}, P(K ≥ ${limit}) ≤ 0.001`);
+console.log(
+	`\nTable 2: openings over ${DAYS} days at 1 Hz, budget one per ${BUDGET_DAYS * 24} h per rule: mean ${expected}, P(K ≥ ${limit}) ≤ 0.001`
+);
 console.log('| stream | before: rate_drift | before: switching_burst | now: rate_drift | now: switching_burst | now: info findings |');
 console.log('| --- | --- | --- | --- | --- | --- |');
 for (const c of cases) {
@@ -130,6 +174,8 @@ for (const c of cases) {
 	const before = feed(new Base(rules({}), c.run()), frames);
 	const now = feed(new Current(rules({}), c.run()), frames);
 	const mark = (n: number) => (n >= limit ? `**${n}**` : `${n}`);
-	console.log(`| ${c.name} | ${mark(pages(before, 'rate_drift'))} | ${mark(pages(before, 'switching_burst'))} | ${mark(pages(now, 'rate_drift'))} | ${mark(pages(now, 'switching_burst'))} | ${infos(now)} |`);
+	console.log(
+		`| ${c.name} | ${mark(pages(before, 'rate_drift'))} | ${mark(pages(before, 'switching_burst'))} | ${mark(pages(now, 'rate_drift'))} | ${mark(pages(now, 'switching_burst'))} | ${infos(now)} |`
+	);
 }
 console.log(`\n(bold: at or above ${limit}, outside the budget's Poisson interval)`);

@@ -25,7 +25,9 @@ interface Sample {
 }
 
 async function main() {
-	console.log(`replay under load: stored run of ${STORED_FRAMES} frames; ${REPLAYS} replays, each after ${IDLE_S} s idle; live run sends 1 frame every ${LIVE_PERIOD_MS} ms`);
+	console.log(
+		`replay under load: stored run of ${STORED_FRAMES} frames; ${REPLAYS} replays, each after ${IDLE_S} s idle; live run sends 1 frame every ${LIVE_PERIOD_MS} ms`
+	);
 	const template = await seedTemplate();
 	const seed = copySeed(template, 'replay');
 	const app = await startAppServer(seed.dataDir);
@@ -66,7 +68,8 @@ async function main() {
 			const res = await observer.fetch(`/api/runs/${stored.runId}/replay`, { method: 'POST', body: '{}' });
 			const body = (await res.json()) as { frameCount?: number };
 			const end = performance.now();
-			if (!res.ok || body.frameCount !== STORED_FRAMES) throw new Error(`replay answered ${res.status} with ${body.frameCount} frames, expected ${STORED_FRAMES}`);
+			if (!res.ok || body.frameCount !== STORED_FRAMES)
+				throw new Error(`replay answered ${res.status} with ${body.frameCount} frames, expected ${STORED_FRAMES}`);
 			replayWindows.push([start, end]);
 			replay_ms.push(end - start);
 			console.log(`replay ${r + 1}: ${(end - start).toFixed(0)} ms`);
@@ -83,11 +86,25 @@ async function main() {
 		printTable(
 			'Live ack latency while a 24-hour run is replayed',
 			[
-				{ measure: `live ack latency, median (${busy.length} during replay / ${idle.length} idle)`, app: median(busy), baseline: median(idle), unit: 'ms', target: { on: 'ratio', atMost: 3 } },
-				{ measure: 'live ack latency, p95', app: percentile(busy, 0.95), baseline: percentile(idle, 0.95), unit: 'ms', target: { on: 'ratio', atMost: 3 } },
+				{
+					measure: `live ack latency, median (${busy.length} during replay / ${idle.length} idle)`,
+					app: median(busy),
+					baseline: median(idle),
+					unit: 'ms',
+					target: { on: 'ratio', atMost: 3 }
+				},
+				{
+					measure: 'live ack latency, p95',
+					app: percentile(busy, 0.95),
+					baseline: percentile(idle, 0.95),
+					unit: 'ms',
+					target: { on: 'ratio', atMost: 3 }
+				},
 				{ measure: 'live ack latency, max', app: Math.max(...busy), baseline: Math.max(...idle), unit: 'ms', target: { on: 'none' } }
 			],
-			[`app = during a replay, baseline = the same live run with no replay (idle phases alternate with replays); replay of ${STORED_FRAMES} frames took ${median(replay_ms).toFixed(0)} ms (median)`]
+			[
+				`app = during a replay, baseline = the same live run with no replay (idle phases alternate with replays); replay of ${STORED_FRAMES} frames took ${median(replay_ms).toFixed(0)} ms (median)`
+			]
 		);
 	} finally {
 		await app.stop();

@@ -43,7 +43,9 @@ async function underLoad(label: string, work: () => Promise<number>) {
 	clearInterval(ticker);
 	const ms = (ns: number) => ns / 1e6;
 	const r = { label, wall, p50: ms(h.percentile(50)), max: ms(h.max), incidents };
-	console.log(`${label.padEnd(34)} wall ${wall.toFixed(0).padStart(6)} ms   loop delay p50 ${r.p50.toFixed(1).padStart(7)} ms  max ${r.max.toFixed(1).padStart(8)} ms   ${incidents} incidents`);
+	console.log(
+		`${label.padEnd(34)} wall ${wall.toFixed(0).padStart(6)} ms   loop delay p50 ${r.p50.toFixed(1).padStart(7)} ms  max ${r.max.toFixed(1).padStart(8)} ms   ${incidents} incidents`
+	);
 	return r;
 }
 
@@ -58,7 +60,10 @@ const main = await underLoad('engine on the main thread', async () => {
 	await new Promise((r) => setTimeout(r, 5));
 	return replayIncidents(replayRun(frames, {}, run, { receivedAt_ms: (f) => f.t })).length;
 });
-const worker = await underLoad('engine in a worker, pages of 500', async () => (await replayInWorker(pages(), { rules: {}, run })).incidents.length);
+const worker = await underLoad(
+	'engine in a worker, pages of 500',
+	async () => (await replayInWorker(pages(), { rules: {}, run })).incidents.length
+);
 // A worker starts afresh for each replay; from source it compiles the engine through tsx first.
 const s0 = performance.now();
 await replayInWorker(warm(), { rules: {}, run });
@@ -68,4 +73,6 @@ console.log('');
 console.log(`frames: ${FRAMES}; same incidents both ways: ${main.incidents === worker.incidents}`);
 console.log(`max loop delay, worker / main thread: ${(worker.max / main.max).toFixed(3)}`);
 console.log(`wall time, worker / main thread:      ${(worker.wall / main.wall).toFixed(2)}`);
-console.log(`a worker's start with 2000 frames / main-thread replay: ${(startUp / main.wall).toFixed(2)} (start-up counts in the wall time above)`);
+console.log(
+	`a worker's start with 2000 frames / main-thread replay: ${(startUp / main.wall).toFixed(2)} (start-up counts in the wall time above)`
+);

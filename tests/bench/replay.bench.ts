@@ -58,12 +58,16 @@ const validate = time('baseline: frameSchema.safeParse of each frame', () => {
 const t0 = performance.now();
 const coldEvents = replayRun(frames, {}, run);
 const cold = performance.now() - t0;
-console.log(`${'replay, first run (designs computed)'.padEnd(46)} ${cold.toFixed(1).padStart(9)} ms  ${((FRAMES / cold) * 1000).toFixed(0).padStart(10)} frames/s`);
+console.log(
+	`${'replay, first run (designs computed)'.padEnd(46)} ${cold.toFixed(1).padStart(9)} ms  ${((FRAMES / cold) * 1000).toFixed(0).padStart(10)} frames/s`
+);
 const replay = time('replay, default rules, switching model', () => replayRun(frames, {}, run).length);
 const noModel = time('replay, default rules, no rate model', () => replayRun(frames, {}, { states: 6 }).length);
 
 console.log('');
-console.log(`events in the replay: ${coldEvents.length} (${[...new Set(coldEvents.filter((e) => e.type === 'open').map((e) => e.kind))].join(', ')})`);
+console.log(
+	`events in the replay: ${coldEvents.length} (${[...new Set(coldEvents.filter((e) => e.type === 'open').map((e) => e.kind))].join(', ')})`
+);
 console.log(`replay / plain loop:        ${(replay / plain).toFixed(1)} × the time`);
 console.log(`replay / schema validation: ${(replay / validate).toFixed(2)} × the time`);
 console.log(`no model / schema validation: ${(noModel / validate).toFixed(2)} × the time`);

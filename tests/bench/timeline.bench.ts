@@ -33,8 +33,13 @@ async function interleaved(week: () => Promise<unknown>, hour: () => Promise<unk
 	for (let i = 0; i < trials; i++) {
 		let w: number;
 		let h: number;
-		if (i % 2 === 0) (h = await time(hour)), (w = await time(week));
-		else (w = await time(week)), (h = await time(hour));
+		if (i % 2 === 0) {
+			h = await time(hour);
+			w = await time(week);
+		} else {
+			w = await time(week);
+			h = await time(hour);
+		}
 		out.week.push(w);
 		out.hour.push(h);
 		out.ratios.push(w / h);

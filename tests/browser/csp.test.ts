@@ -24,7 +24,9 @@ async function watchViolations(page: Page) {
 	await page.exposeFunction('reportViolation', (v: string) => seen.push(v));
 	await page.addInitScript(() => {
 		document.addEventListener('securitypolicyviolation', (e) => {
-			(window as unknown as { reportViolation(v: string): void }).reportViolation(`${e.violatedDirective} ${e.blockedURI} ${e.sourceFile}:${e.lineNumber}`);
+			(window as unknown as { reportViolation(v: string): void }).reportViolation(
+				`${e.violatedDirective} ${e.blockedURI} ${e.sourceFile}:${e.lineNumber}`
+			);
 		});
 	});
 	page.on('console', (m) => {

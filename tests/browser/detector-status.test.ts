@@ -71,7 +71,11 @@ it('the rules page says which rules can run on the setup', async () => {
 	const page = await signedIn('observer', 390);
 	const operator = await signIn(server, 'operator');
 	const { rules } = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
-	const off = { ...rules, occupancy_imbalance: { ...rules.occupancy_imbalance, enabled: false }, rate_drift: { ...rules.rate_drift, processes: ['switching', 'escape'] } };
+	const off = {
+		...rules,
+		occupancy_imbalance: { ...rules.occupancy_imbalance, enabled: false },
+		rate_drift: { ...rules.rate_drift, processes: ['switching', 'escape'] }
+	};
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(off) })).status).toBe(200);
 	await page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
 	const readiness = page.locator('section').filter({ has: page.getByRole('heading', { name: 'What can run on this setup' }) });

@@ -25,10 +25,23 @@ beforeAll(async () => {
 	browser = await launchChromium();
 	const operator = await signIn(server, 'operator');
 	// W ≈ W0·e^{−A} = 1 switch per second at 12 mK (5 GHz); an exact model, no learned baseline.
-	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, W0_sigma: 0, A_sigma: 0, source: 'manual' };
+	const model = {
+		process: 'switching',
+		W0_per_s: Math.E * 2,
+		A: 2,
+		mode_GHz: 5,
+		nominal_mK: 12,
+		W0_sigma: 0,
+		A_sigma: 0,
+		source: 'manual'
+	};
 	expect((await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) })).status).toBe(200);
 	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
-	const changed = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, enabled: false }, rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 } };
+	const changed = {
+		...rules.rules,
+		switching_burst: { ...rules.rules.switching_burst, enabled: false },
+		rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 }
+	};
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(changed) })).status).toBe(200);
 	const u = uniformStream(99);
 	const frames = Array.from({ length: 400 }, (_, i) => ({ ...frame(i + 1), dwell_s: 1, switches: poissonKnuth(i >= 200 ? 2 : 1, u) }));
@@ -90,7 +103,11 @@ it('the rate-drift incident draws its windows and its CUSUM, in words and charts
 it('the drift alert e-mail says it in sentences with the interval and no field names', async () => {
 	const operator = await signIn(server, 'operator');
 	const mail = await expect
-		.poll(async () => ((await (await operator('/api/dev/mail')).json()).messages as { text: string }[]).find((m) => m.text.includes(`/incidents/${driftId}`)))
+		.poll(async () =>
+			((await (await operator('/api/dev/mail')).json()).messages as { text: string }[]).find((m) =>
+				m.text.includes(`/incidents/${driftId}`)
+			)
+		)
 		.toBeTruthy();
 	void mail;
 	const { messages } = await (await operator('/api/dev/mail')).json();
@@ -102,7 +119,15 @@ it('the drift alert e-mail says it in sentences with the interval and no field n
 });
 
 it('the run page draws the simulated agent’s IQ histograms with one ringed lobe per state', async () => {
-	const sim = createSimulator({ seed: 7, startMs: Date.now() - 300_000, order: 3, states: 6, iqBins: 24, loseLockAtMin: 100, switchRate_per_s: 1 });
+	const sim = createSimulator({
+		seed: 7,
+		startMs: Date.now() - 300_000,
+		order: 3,
+		states: 6,
+		iqBins: 24,
+		loseLockAtMin: 100,
+		switchRate_per_s: 1
+	});
 	const frames = Array.from({ length: 120 }, () => sim.next());
 	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'iq-run', name: 'IQ run' });
 	agent.send({ type: 'frames', frames });
@@ -122,7 +147,11 @@ it('the run page draws the simulated agent’s IQ histograms with one ringed lob
 		expect(await picture.locator('[data-part="bin"]').count()).toBeGreaterThan(50);
 		expect(await picture.getAttribute('aria-label')).toMatch(/Summed IQ histogram of 120 frames/);
 		await picture.scrollIntoViewIfNeeded();
-		await page.locator('#iq-h').locator('xpath=..').locator('xpath=..').screenshot({ path: path.join(shots, 'phase-space.png') });
+		await page
+			.locator('#iq-h')
+			.locator('xpath=..')
+			.locator('xpath=..')
+			.screenshot({ path: path.join(shots, 'phase-space.png') });
 	} finally {
 		await page.close();
 	}

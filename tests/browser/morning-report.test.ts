@@ -28,8 +28,12 @@ beforeAll(async () => {
 	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'browser-night', name: 'Browser night' });
 	runId = agent.welcome.run;
 	// Switches mostly between neighbouring states of the six, a few across.
-	const transitions = (seq: number) => Array.from({ length: 36 }, (_, i) => (i === ((seq % 6) * 6 + ((seq + 1) % 6)) ? 2 : i === 3 && seq % 50 === 0 ? 1 : 0));
-	const frames = Array.from({ length: 900 }, (_, i) => ({ ...frame(i + 1, i > 300 && i < 320 ? 0.2 : 0.93, NIGHT), transitions: transitions(i + 1) }));
+	const transitions = (seq: number) =>
+		Array.from({ length: 36 }, (_, i) => (i === (seq % 6) * 6 + ((seq + 1) % 6) ? 2 : i === 3 && seq % 50 === 0 ? 1 : 0));
+	const frames = Array.from({ length: 900 }, (_, i) => ({
+		...frame(i + 1, i > 300 && i < 320 ? 0.2 : 0.93, NIGHT),
+		transitions: transitions(i + 1)
+	}));
 	for (let i = 0; i < frames.length; i += 100) agent.send({ type: 'frames', frames: frames.slice(i, i + 100) });
 	await agent.waitFor((m) => m.type === 'ack' && m.seq === 900, 30_000);
 	await agent.close();
@@ -58,7 +62,8 @@ it('an operator sets the report time, opens the night’s report, follows a run 
 	expect(await (await operator('/api/reports/settings')).json()).toMatchObject({ reportTime: '09:00', followSetups: [seeded.setupId] });
 
 	const admin = await signIn(server, 'admin');
-	const tick = async (now_ms: number) => (await (await admin('/api/dev/reports/clock', { method: 'POST', body: JSON.stringify({ now_ms }) })).json()).reports;
+	const tick = async (now_ms: number) =>
+		(await (await admin('/api/dev/reports/clock', { method: 'POST', body: JSON.stringify({ now_ms }) })).json()).reports;
 	// 08:00 UTC is not the operator's time (09:00 UTC); 09:00 is.
 	const at8 = await tick(MORNING);
 	const at9 = await tick(MORNING + 3_600_000);
@@ -69,7 +74,9 @@ it('an operator sets the report time, opens the night’s report, follows a run 
 	await page.getByRole('link', { name: /2026-11-30 09:00 – 2026-12-01 09:00/ }).click();
 	await expect.poll(() => page.getByRole('heading', { name: /Browser night/ }).count()).toBe(1);
 	const timeline = page.getByRole('link', { name: 'Open the timeline of this span' });
-	expect(await timeline.getAttribute('href')).toBe(`/runs/${runId}/timeline?from_ms=${MORNING + 3_600_000 - 86_400_000}&to_ms=${MORNING + 3_600_000}`);
+	expect(await timeline.getAttribute('href')).toBe(
+		`/runs/${runId}/timeline?from_ms=${MORNING + 3_600_000 - 86_400_000}&to_ms=${MORNING + 3_600_000}`
+	);
 	expect(await page.getByText(/Acknowledged by|Not acknowledged/).count()).toBeGreaterThan(0);
 	await page.screenshot({ path: path.join(shots, 'morning-report-desktop.png'), fullPage: true });
 

@@ -40,7 +40,8 @@ it('shows the live run, the lock-loss incident arriving without reload, and ackn
 	}
 });
 
-async function watchLiveRun(page: Page) {	await page.goto(`${server.url}/`);
+async function watchLiveRun(page: Page) {
+	await page.goto(`${server.url}/`);
 	await expect.poll(() => page.url()).toContain('/signin');
 	await page.getByLabel(/e-?mail/i).fill(people.operator.email);
 	await page.getByLabel(/password/i).fill(PASSWORD);
@@ -48,10 +49,19 @@ async function watchLiveRun(page: Page) {	await page.goto(`${server.url}/`);
 	await page.waitForURL((url) => !url.pathname.startsWith('/signin'));
 
 	// From the overview to the live run.
-	await page.getByRole('link', { name: /Browser test run/ }).first().click();
+	await page
+		.getByRole('link', { name: /Browser test run/ })
+		.first()
+		.click();
 	await page.waitForURL(/\/runs\//);
-	await page.getByText(/Browser test run/).first().waitFor();
-	await page.getByText(/streaming/i).first().waitFor();
+	await page
+		.getByText(/Browser test run/)
+		.first()
+		.waitFor();
+	await page
+		.getByText(/streaming/i)
+		.first()
+		.waitFor();
 
 	// Lock is lost while the page is open: the incident must appear live.
 	agent.send({ type: 'frames', frames: Array.from({ length: 8 }, (_, i) => frame(21 + i, 0.12)) });
@@ -61,7 +71,10 @@ async function watchLiveRun(page: Page) {	await page.goto(`${server.url}/`);
 	await page.screenshot({ path: path.join(shots, 'run-lock-lost.png'), fullPage: true });
 
 	await acknowledge.click();
-	await page.getByText(/acknowledged/i).first().waitFor({ timeout: 15_000 });
+	await page
+		.getByText(/acknowledged/i)
+		.first()
+		.waitFor({ timeout: 15_000 });
 	await page.screenshot({ path: path.join(shots, 'run-acknowledged.png'), fullPage: true });
 
 	// The server agrees: the incident is acknowledged by the operator.

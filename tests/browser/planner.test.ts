@@ -96,7 +96,10 @@ it('an operator simulates a sweep in the worker and saves it as the setup’s ra
 
 	// Reloaded, the forecast reads the saved model back.
 	await openPlanner(page, `?setup=${setupId}`);
-	await page.getByText(new RegExp(`Saved for Test fridge · tripler by ${people.operator.name}`)).first().waitFor();
+	await page
+		.getByText(new RegExp(`Saved for Test fridge · tripler by ${people.operator.name}`))
+		.first()
+		.waitFor();
 	await context.close();
 });
 

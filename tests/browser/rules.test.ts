@@ -37,8 +37,14 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-async function signedIn(who: keyof typeof people, options: { javaScriptEnabled?: boolean; width?: number } = {}): Promise<{ context: BrowserContext; page: Page }> {
-	const context = await browser.newContext({ viewport: { width: options.width ?? 1280, height: 900 }, javaScriptEnabled: options.javaScriptEnabled ?? true });
+async function signedIn(
+	who: keyof typeof people,
+	options: { javaScriptEnabled?: boolean; width?: number } = {}
+): Promise<{ context: BrowserContext; page: Page }> {
+	const context = await browser.newContext({
+		viewport: { width: options.width ?? 1280, height: 900 },
+		javaScriptEnabled: options.javaScriptEnabled ?? true
+	});
 	const page = await context.newPage();
 	await page.goto(`${server.url}/signin`);
 	await page.getByLabel(/e-?mail/i).fill(people[who].email);
@@ -113,11 +119,18 @@ it('an operator changes a threshold and saves it; a bad value is named and store
 		await plain.page.getByRole('button', { name: 'Save rules' }).click();
 		await plain.page.waitForLoadState('load');
 		// The message is tied to its input (aria-describedby), so it is read out with the field.
-		const describedBy = (await lockSection(plain.page).getByLabel(/^Low below/).getAttribute('aria-describedby')) ?? '';
+		const describedBy =
+			(await lockSection(plain.page)
+				.getByLabel(/^Low below/)
+				.getAttribute('aria-describedby')) ?? '';
 		const errorId = describedBy.split(' ').find((id) => id.endsWith('-err'));
 		expect(errorId).toBeTruthy();
 		expect(await plain.page.locator(`[id="${errorId}"]`).textContent()).toMatch(/must be between 0 and 1/);
-		expect(await lockSection(plain.page).getByLabel(/^Low below/).inputValue()).toBe('1.5');
+		expect(
+			await lockSection(plain.page)
+				.getByLabel(/^Low below/)
+				.inputValue()
+		).toBe('1.5');
 		await plain.page.screenshot({ path: path.join(shots, 'rules-nojs-error.png') });
 		expect((await rulesNow(plain.page)).rules.lock_lost).toMatchObject({ threshold: 0.4, version: 2 });
 	});
@@ -157,13 +170,18 @@ it('a replay with more sensitive lock rules shows the loss the live rules let pa
 		await page.waitForURL(/\/replay$/);
 		await page.getByText('Nothing real changes.').waitFor();
 		await lockSection(page).locator('summary').click();
-		await lockSection(page).getByLabel(/^Opens after/).fill('2');
+		await lockSection(page)
+			.getByLabel(/^Opens after/)
+			.fill('2');
 		await page.getByRole('button', { name: 'Replay', exact: true }).click();
 		await page.getByRole('heading', { name: /Only by the replay/ }).waitFor({ timeout: 20_000 });
 
 		// Two consecutive low windows now suffice: the short loss (seq 31–33) opens at its second window.
 		await page.getByRole('heading', { name: 'Only by the replay (1)' }).waitFor();
-		await page.locator('section[aria-labelledby=only-replay-h]').getByText(/Would have raised at .*\(seq 32\)/).waitFor();
+		await page
+			.locator('section[aria-labelledby=only-replay-h]')
+			.getByText(/Would have raised at .*\(seq 32\)/)
+			.waitFor();
 		await page.getByRole('heading', { name: 'Raised by both (1)' }).waitFor();
 		await page.getByRole('heading', { name: 'Only live (0)' }).waitFor();
 		await page.getByRole('img', { name: /Timeline of 1 incident kinds/ }).waitFor();
@@ -206,7 +224,9 @@ it('an operator enters a rate model by hand: a bad value is named beside its fie
 	await step(plain.page, 'rate-model-nojs', async () => {
 		await plain.page.goto(`${server.url}/setups/${seeded.setupId}/rules`);
 		const card = () => plain.page.locator('section[aria-labelledby="rm-escape-h"]');
-		await card().getByText(/by hand…/).click();
+		await card()
+			.getByText(/by hand…/)
+			.click();
 		await card().getByLabel(/^W₀/).fill('fast');
 		await card().getByRole('button', { name: 'Save escape model' }).click();
 		await plain.page.waitForLoadState('load');
@@ -228,19 +248,35 @@ it('an aux limit row is added, refused with its own field named and saved withou
 		await page.waitForLoadState('load');
 		const rows = auxSection().locator('li');
 		expect(await rows.count()).toBe(2);
-		await rows.nth(1).getByLabel(/^Aux name/).fill('pump_dBm');
-		await rows.nth(1).getByLabel(/^Out below/).fill('5');
+		await rows
+			.nth(1)
+			.getByLabel(/^Aux name/)
+			.fill('pump_dBm');
+		await rows
+			.nth(1)
+			.getByLabel(/^Out below/)
+			.fill('5');
 		// rules.ts: clearAbove must be at least below (hysteresis), so 3 is refused on its own input.
-		await rows.nth(1).getByLabel(/^Back at or above/).fill('3');
+		await rows
+			.nth(1)
+			.getByLabel(/^Back at or above/)
+			.fill('3');
 		await page.getByRole('button', { name: 'Save rules' }).click();
 		await page.waitForLoadState('load');
 		await auxSection().locator('li').nth(1).getByText('must be at least below, so that the incident does not flap').waitFor();
 		expect((await rulesNow(page)).rules.aux_limit.limits).toHaveLength(1);
 
-		await auxSection().locator('li').nth(1).getByLabel(/^Back at or above/).fill('6');
+		await auxSection()
+			.locator('li')
+			.nth(1)
+			.getByLabel(/^Back at or above/)
+			.fill('6');
 		await page.getByRole('button', { name: 'Save rules' }).click();
 		await page.getByText(/Saved 1 change/).waitFor();
-		expect((await rulesNow(page)).rules.aux_limit.limits).toMatchObject([{ name: 'mxc_mK' }, { name: 'pump_dBm', below: 5, clearAbove: 6 }]);
+		expect((await rulesNow(page)).rules.aux_limit.limits).toMatchObject([
+			{ name: 'mxc_mK' },
+			{ name: 'pump_dBm', below: 5, clearAbove: 6 }
+		]);
 	});
 	await plain.context.close();
 

@@ -28,7 +28,8 @@ beforeAll(async () => {
 	const { user } = (await (await admin('/api/auth/get-session')).json()) as { user: { id: string } };
 	const operator = await signIn(server, 'operator');
 	const { user: op } = (await (await operator('/api/auth/get-session')).json()) as { user: { id: string } };
-	for (const userId of [user.id, op.id]) expect((await admin(`/api/setups/${setupId}/members`, { method: 'POST', body: JSON.stringify({ userId }) })).status).toBeLessThan(300);
+	for (const userId of [user.id, op.id])
+		expect((await admin(`/api/setups/${setupId}/members`, { method: 'POST', body: JSON.stringify({ userId }) })).status).toBeLessThan(300);
 	browser = await launchChromium();
 });
 
@@ -58,7 +59,9 @@ it('an operator sets up a rota and silences a rule; the person on call acknowled
 	await desk.getByLabel(/Critical: escalate after/).fill('15');
 	await desk.getByRole('button', { name: 'Save rota' }).click();
 	await desk.getByText('Rota saved.').waitFor();
-	await expect.poll(async () => (await desk.locator('main header p', { hasText: 'Now:' }).first().textContent())?.replace(/\s+/g, ' ')).toContain(`Now: ${people.admin.name}, backed up by ${people.operator.name}.`);
+	await expect
+		.poll(async () => (await desk.locator('main header p', { hasText: 'Now:' }).first().textContent())?.replace(/\s+/g, ' '))
+		.toContain(`Now: ${people.admin.name}, backed up by ${people.operator.name}.`);
 	await desk.screenshot({ path: path.join(shots, 'rota-built.png'), fullPage: true });
 
 	await desk.goto(`${server.url}/silences`);
@@ -69,7 +72,10 @@ it('an operator sets up a rota and silences a rule; the person on call acknowled
 	await desk.getByTestId('silences').getByText('helium transfer').waitFor();
 	await expect.poll(() => desk.getByTestId('silences').getByText(people.operator.name).count()).toBeGreaterThan(0);
 	await desk.goto(`${server.url}/`);
-	await desk.getByTestId('silence-note').getByText(/Occupancy imbalance/).waitFor();
+	await desk
+		.getByTestId('silence-note')
+		.getByText(/Occupancy imbalance/)
+		.waitFor();
 	await desk.getByText(`On call now: ${people.admin.name}`).waitFor();
 	await desk.screenshot({ path: path.join(shots, 'silence-overview.png') });
 
@@ -77,7 +83,10 @@ it('an operator sets up a rota and silences a rule; the person on call acknowled
 	const runId = await lockLossRun(server.wsUrl, token, 'phone-ack');
 	// The run page shows the silence of its setup's rule too.
 	await desk.goto(`${server.url}/runs/${runId}`);
-	await desk.getByTestId('silence-note').getByText(/Occupancy imbalance/).waitFor();
+	await desk
+		.getByTestId('silence-note')
+		.getByText(/Occupancy imbalance/)
+		.waitFor();
 	const operator = await signIn(server, 'operator');
 	const link = await poll('the admin’s alert e-mail', async () => {
 		const { messages } = (await (await operator('/api/dev/mail')).json()) as { messages: { to: string[]; text?: string }[] };

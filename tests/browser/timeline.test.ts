@@ -22,7 +22,9 @@ beforeAll(async () => {
 	browser = await launchChromium();
 	const agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'timeline-browser', name: 'Timeline browser run' });
 	// 40 minutes at 1 Hz with lock lost for two minutes in the middle (an incident) and a lost stretch.
-	const frames = Array.from({ length: 2400 }, (_, i) => frame(i + 1, i >= 1200 && i < 1320 ? 0.1 : 0.93)).filter((f) => f.seq < 1800 || f.seq > 1860);
+	const frames = Array.from({ length: 2400 }, (_, i) => frame(i + 1, i >= 1200 && i < 1320 ? 0.1 : 0.93)).filter(
+		(f) => f.seq < 1800 || f.seq > 1860
+	);
 	for (let i = 0; i < frames.length; i += 300) agent.send({ type: 'frames', frames: frames.slice(i, i + 300) });
 	await agent.waitFor((m) => m.type === 'ack' && m.seq === 2400, 60_000);
 	runId = agent.welcome.run;

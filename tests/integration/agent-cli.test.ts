@@ -28,7 +28,23 @@ it('loses and duplicates nothing across a server kill -9 and restart', async () 
 	const spool = path.join(mkdtempSync(path.join(os.tmpdir(), 'phasewarden-spool-')), 'run.ndjson');
 	const agent = spawn(
 		path.join(root, 'node_modules/.bin/tsx'),
-		['agent/cli.ts', '--url', server.wsUrl, '--token', seeded.token, '--run-key', 'cli-run', '--order', '3', '--states', '6', '--input', '-', '--spool', spool],
+		[
+			'agent/cli.ts',
+			'--url',
+			server.wsUrl,
+			'--token',
+			seeded.token,
+			'--run-key',
+			'cli-run',
+			'--order',
+			'3',
+			'--states',
+			'6',
+			'--input',
+			'-',
+			'--spool',
+			spool
+		],
 		{ cwd: root, stdio: ['pipe', 'pipe', 'pipe'] }
 	);
 	let agentLog = '';

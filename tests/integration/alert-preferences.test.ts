@@ -46,7 +46,9 @@ describe('alert preferences', () => {
 		expect(await bad.text()).toMatch(/both ends of the quiet hours/);
 
 		const runId = await lockLossRun(server.wsUrl, seeded.token, 'prefs', { recover: true });
-		const { incidents } = (await (await admin(`/api/incidents?run=${runId}`)).json()) as { incidents: { id: string; kind: string; state: string }[] };
+		const { incidents } = (await (await admin(`/api/incidents?run=${runId}`)).json()) as {
+			incidents: { id: string; kind: string; state: string }[];
+		};
 		const lock = incidents.find((i) => i.kind === 'lock_lost')!;
 		await poll('the lock-loss incident cleared', async () => {
 			const { incident } = (await (await admin(`/api/incidents/${lock.id}`)).json()) as { incident: { state: string } };

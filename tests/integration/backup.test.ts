@@ -72,5 +72,7 @@ it.skipIf(Boolean(testPgUrl))('refuses to restore over an existing database fold
 	const seeded = await seedDataDir();
 	const file = path.join(mkdtempSync(path.join(os.tmpdir(), 'phasewarden-backup-')), 'x.backup');
 	writeFileSync(file, Buffer.from([0x1f, 0x8b, 0, 0, 0]));
-	await expect(cli('restore.ts', [file], seeded.dataDir)).rejects.toMatchObject({ stderr: expect.stringMatching(/is not empty: restore into a new folder/) });
+	await expect(cli('restore.ts', [file], seeded.dataDir)).rejects.toMatchObject({
+		stderr: expect.stringMatching(/is not empty: restore into a new folder/)
+	});
 });

@@ -44,7 +44,9 @@ describe('web push', () => {
 		expect(device.status).toBe(201);
 		const { subscription } = await device.json();
 		expect((await operator('/api/push/test', { method: 'POST' })).status).toBe(202);
-		const pushed = await poll('the test push', async () => (await caughtPushes()).messages.find((m) => m.endpoint === subscription.endpoint));
+		const pushed = await poll('the test push', async () =>
+			(await caughtPushes()).messages.find((m) => m.endpoint === subscription.endpoint)
+		);
 		expect(pushed.payload.title).toBe('Phasewarden test');
 		const { publicKey } = await (await operator('/api/push/key')).json();
 		expect(pushed.vapidKey).toBe(publicKey);
@@ -82,7 +84,10 @@ describe('web push', () => {
 		expect(registered.status).toBe(201);
 		expect((await (await observer('/api/push/subscriptions')).json()).subscriptions).toHaveLength(1);
 		expect((await observer('/api/push/test', { method: 'POST' })).status).toBe(202);
-		await poll('the subscription to be dropped', async () => (await (await observer('/api/push/subscriptions')).json()).subscriptions.length === 0);
+		await poll(
+			'the subscription to be dropped',
+			async () => (await (await observer('/api/push/subscriptions')).json()).subscriptions.length === 0
+		);
 	});
 
 	it('refuses a plain-http endpoint outside this machine', async () => {
@@ -111,7 +116,9 @@ describe('text messages', () => {
 		expect((await verified.json()).phone.verifiedAt).toBeTruthy();
 
 		await lockLossRun(server.wsUrl, seeded.token, 'sms-alert');
-		const alert = await poll('the alert text', async () => (await sms()).find((m) => m.to === number && /CRITICAL: Lock lost/.test(m.body)));
+		const alert = await poll('the alert text', async () =>
+			(await sms()).find((m) => m.to === number && /CRITICAL: Lock lost/.test(m.body))
+		);
 		expect(alert.body).toContain(`${server.url}/incidents/`);
 	});
 
@@ -138,7 +145,10 @@ describe('webhook', () => {
 		try {
 			const operator = await signIn(server, 'operator');
 			const url = `http://127.0.0.1:${(receiver.address() as AddressInfo).port}/phasewarden`;
-			const added = await operator(`/api/setups/${seeded.setupId}/webhooks`, { method: 'POST', body: JSON.stringify({ url, label: 'test receiver' }) });
+			const added = await operator(`/api/setups/${seeded.setupId}/webhooks`, {
+				method: 'POST',
+				body: JSON.stringify({ url, label: 'test receiver' })
+			});
 			expect(added.status).toBe(201);
 			const { secret, webhook } = await added.json();
 			expect(secret).toMatch(/^pwh_/);
@@ -154,7 +164,9 @@ describe('webhook', () => {
 			// Computed here with node:crypto, independently of the server's code.
 			const expected = `sha256=${createHmac('sha256', secret).update(`${timestamp}.${hit.body}`).digest('hex')}`;
 			expect(hit.headers['x-phasewarden-signature']).toBe(expected);
-			const tampered = `sha256=${createHmac('sha256', secret).update(`${timestamp}.${hit.body.replace('critical', 'warning')}`).digest('hex')}`;
+			const tampered = `sha256=${createHmac('sha256', secret)
+				.update(`${timestamp}.${hit.body.replace('critical', 'warning')}`)
+				.digest('hex')}`;
 			expect(tampered).not.toBe(expected);
 			const payload = JSON.parse(hit.body);
 			expect(payload.incident).toMatchObject({ kind: 'lock_lost', severity: 'critical' });

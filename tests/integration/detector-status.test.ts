@@ -15,14 +15,28 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-type Status = { kind: string; active: boolean; code: string; reason: string | null; notes: { code: string; text: string }[]; detail?: Record<string, unknown> };
+type Status = {
+	kind: string;
+	active: boolean;
+	code: string;
+	reason: string | null;
+	notes: { code: string; text: string }[];
+	detail?: Record<string, unknown>;
+};
 
 async function statusOf(runId: string): Promise<Record<string, Status>> {
 	const observer = await signIn(server, 'observer');
 	const res = await observer(`/api/runs/${runId}`);
 	expect(res.status).toBe(200);
 	const body = (await res.json()) as { detectors: Status[] };
-	expect(body.detectors.map((d) => d.kind)).toEqual(['lock_lost', 'agent_silent', 'switching_burst', 'rate_drift', 'occupancy_imbalance', 'aux_limit']);
+	expect(body.detectors.map((d) => d.kind)).toEqual([
+		'lock_lost',
+		'agent_silent',
+		'switching_burst',
+		'rate_drift',
+		'occupancy_imbalance',
+		'aux_limit'
+	]);
 	return Object.fromEntries(body.detectors.map((d) => [d.kind, d]));
 }
 
@@ -41,7 +55,11 @@ it('reports the rate detectors blind until a rate model is saved, then watching'
 	expect(before.agent_silent.active).toBe(true);
 	expect(before.aux_limit).toMatchObject({ active: true, code: 'watching' });
 	// 10 windows × 2 switches against the default minimum of 100.
-	expect(before.occupancy_imbalance).toMatchObject({ active: false, code: 'too_few_switches', detail: { switches: 20, minSwitches: 100, needed: 80 } });
+	expect(before.occupancy_imbalance).toMatchObject({
+		active: false,
+		code: 'too_few_switches',
+		detail: { switches: 20, minSwitches: 100, needed: 80 }
+	});
 
 	const operator = await signIn(server, 'operator');
 	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, source: 'manual' };

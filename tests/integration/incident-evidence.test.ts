@@ -18,7 +18,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-
 // A 4×4 histogram per frame: the count in bin b is seq + b, so the sum over frames is known by hand.
 const BINS = 4;
 const iqOf = (seq: number) => ({ bins: BINS, extent: 3, counts: Array.from({ length: BINS * BINS }, (_, b) => seq + b) });

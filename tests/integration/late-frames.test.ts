@@ -18,7 +18,11 @@ async function storedSeqs(runId: string, to: number) {
 	const observer = await signIn(server, 'observer');
 	const body = await (await observer(`/api/runs/${runId}/frames?from=1&to=${to}&limit=5000`)).json();
 	const detail = await (await observer(`/api/runs/${runId}`)).json();
-	return { seqs: body.frames.map((f: { seq: number }) => f.seq) as number[], run: detail.run, gaps: detail.gaps as { fromSeq: number; toSeq: number }[] };
+	return {
+		seqs: body.frames.map((f: { seq: number }) => f.seq) as number[],
+		run: detail.run,
+		gaps: detail.gaps as { fromSeq: number; toSeq: number }[]
+	};
 }
 
 it('stores a frame that fills a gap after a higher seq (1, 2, 4, then 3)', async () => {

@@ -16,7 +16,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-
 describe('agent stream authentication', () => {
 	it('refuses a missing or unknown token with HTTP 401 before the upgrade', async () => {
 		await expect(connect(server.wsUrl, null)).rejects.toThrow('HTTP 401');
@@ -25,7 +24,10 @@ describe('agent stream authentication', () => {
 
 	it('refuses a revoked token', async () => {
 		const operator = await signIn(server, 'operator');
-		const created = await operator(`/api/setups/${seeded.setupId}/tokens`, { method: 'POST', body: JSON.stringify({ label: 'to revoke' }) });
+		const created = await operator(`/api/setups/${seeded.setupId}/tokens`, {
+			method: 'POST',
+			body: JSON.stringify({ label: 'to revoke' })
+		});
 		expect(created.status).toBe(201);
 		const { token, secret } = await created.json();
 		const ws = await connect(server.wsUrl, secret);
@@ -87,7 +89,10 @@ describe('lock loss end to end', () => {
 		const tooLong = await operator(`/api/incidents/${open.id}/ack`, { method: 'POST', body: JSON.stringify({ note: 'x'.repeat(2001) }) });
 		expect(tooLong.status).toBe(400);
 		expect((await tooLong.json()).message).toMatch(/note/);
-		const acked = await operator(`/api/incidents/${open.id}/ack`, { method: 'POST', body: JSON.stringify({ note: 'pump relocked by hand' }) });
+		const acked = await operator(`/api/incidents/${open.id}/ack`, {
+			method: 'POST',
+			body: JSON.stringify({ note: 'pump relocked by hand' })
+		});
 		expect(acked.status).toBe(200);
 		expect((await acked.json()).incident.state).toBe('acknowledged');
 		const resolved = await operator(`/api/incidents/${open.id}/resolve`, { method: 'POST', body: '{}' });
@@ -158,9 +163,15 @@ describe('API rules', () => {
 		expect((await fetch(`${server.url}/api/setups`)).status).toBe(401);
 		const observer = await signIn(server, 'observer');
 		const operator = await signIn(server, 'operator');
-		const forbidden = await observer('/api/setups', { method: 'POST', body: JSON.stringify({ name: 'x', order: 3, states: 6, mode_GHz: 5, nominal_mK: 10 }) });
+		const forbidden = await observer('/api/setups', {
+			method: 'POST',
+			body: JSON.stringify({ name: 'x', order: 3, states: 6, mode_GHz: 5, nominal_mK: 10 })
+		});
 		expect(forbidden.status).toBe(403);
-		const bad = await operator('/api/setups', { method: 'POST', body: JSON.stringify({ name: 'x', order: 3, states: 5, mode_GHz: 5, nominal_mK: 10 }) });
+		const bad = await operator('/api/setups', {
+			method: 'POST',
+			body: JSON.stringify({ name: 'x', order: 3, states: 5, mode_GHz: 5, nominal_mK: 10 })
+		});
 		expect(bad.status).toBe(400);
 		expect((await bad.json()).message).toMatch(/^states/);
 		const badQuery = await observer('/api/incidents?state=sleeping');

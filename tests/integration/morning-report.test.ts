@@ -27,7 +27,6 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-
 type Mail = { to: string[]; subject: string; text: string; html?: string };
 
 describe('morning report of a scripted night', () => {
@@ -42,7 +41,10 @@ describe('morning report of a scripted night', () => {
 		expect(await tick(iso('2026-11-30T12:00:00Z'))).toEqual([]);
 		const operator = await signIn(server, 'operator');
 		const observer = await signIn(server, 'observer');
-		const saved = await operator('/api/reports/settings', { method: 'PUT', body: JSON.stringify({ reportTime: '08:00', followSetups: [seeded.setupId] }) });
+		const saved = await operator('/api/reports/settings', {
+			method: 'PUT',
+			body: JSON.stringify({ reportTime: '08:00', followSetups: [seeded.setupId] })
+		});
 		expect(saved.status).toBe(200);
 		expect((await saved.json()).effectiveTimeZone).toBe('Europe/Berlin');
 		const bad = await operator('/api/reports/settings', { method: 'PUT', body: JSON.stringify({ reportTime: '8 am' }) });
@@ -108,7 +110,10 @@ describe('morning report of a scripted night', () => {
 		const s = json.runs[0].summary;
 		expect(s.exposure.frames).toBe(frames.length);
 		expect(s.switching.count).toBe(frames.reduce((n, f) => n + f.switches, 0));
-		expect(s.exposure.dwell_s).toBeCloseTo(frames.reduce((n, f) => n + f.dwell_s, 0), 6);
+		expect(s.exposure.dwell_s).toBeCloseTo(
+			frames.reduce((n, f) => n + f.dwell_s, 0),
+			6
+		);
 		expect(s.lost.frames).toBe(20);
 		expect(s.timeLocked.locked_s_min).toBe(frames.filter((f) => f.lock >= 0.5).length);
 		expect(s.timeLocked.locked_s_max).toBe(s.timeLocked.locked_s_min);
@@ -144,7 +149,10 @@ describe('morning report of a scripted night', () => {
 		server = await startServer(seeded.dataDir, undefined, ENV);
 		const admin2 = await signIn(server, 'admin');
 		const tick2 = async (now_ms: number) =>
-			(await (await admin2('/api/dev/reports/clock', { method: 'POST', body: JSON.stringify({ now_ms }) })).json()).reports as { since_ms: number; until_ms: number }[];
+			(await (await admin2('/api/dev/reports/clock', { method: 'POST', body: JSON.stringify({ now_ms }) })).json()).reports as {
+				since_ms: number;
+				until_ms: number;
+			}[];
 		expect(await tick2(MORNING + 3_600_000)).toEqual([]);
 		const next = await tick2(MORNING + 86_400_000);
 		expect(next.length).toBeGreaterThan(0);

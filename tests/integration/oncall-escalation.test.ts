@@ -31,13 +31,31 @@ async function alertEmails(server: RunningServer): Promise<Delivery[]> {
 }
 
 /** A lock loss with a switching burst and a warm mixing chamber in the same seconds, as in the demo. */
-async function demoLikeLockLoss(server: RunningServer, token: string, setupId: string, operator: (p: string, init?: RequestInit) => Promise<Response>) {
+async function demoLikeLockLoss(
+	server: RunningServer,
+	token: string,
+	setupId: string,
+	operator: (p: string, init?: RequestInit) => Promise<Response>
+) {
 	// W = W0·exp(−A/(2n̄+1)) ≈ W0·e^{−A} = 1 switch per second at 5 GHz and 12 mK (see physics-incidents.test.ts).
-	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, W0_sigma: 0, A_sigma: 0, source: 'manual' };
+	const model = {
+		process: 'switching',
+		W0_per_s: Math.E * 2,
+		A: 2,
+		mode_GHz: 5,
+		nominal_mK: 12,
+		W0_sigma: 0,
+		A_sigma: 0,
+		source: 'manual'
+	};
 	expect((await operator(`/api/setups/${setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) })).status).toBe(200);
 	const frames = Array.from({ length: 24 }, (_, i) => {
 		const seq = i + 1;
-		const f: ReturnType<typeof frame> & { aux?: Record<string, number> } = { ...frame(seq, seq > 10 ? 0.15 : 0.93), dwell_s: 1, switches: 1 };
+		const f: ReturnType<typeof frame> & { aux?: Record<string, number> } = {
+			...frame(seq, seq > 10 ? 0.15 : 0.93),
+			dwell_s: 1,
+			switches: 1
+		};
 		if (seq === 11) f.switches = 25; // P(K ≥ 25 | μ = 1) ≈ 1e-25: a burst
 		if (seq >= 11) f.aux = { mxc_mK: 35 }; // past the default 30 mK limit
 		return f;
@@ -60,8 +78,17 @@ describe('on call, grouping and escalation', () => {
 		expect((await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 }) })).status).toBe(200);
 
 		for (const id of [adminId, operatorId])
-			expect((await admin(`/api/setups/${seeded.setupId}/members`, { method: 'POST', body: JSON.stringify({ userId: id }) })).status).toBeLessThan(300);
-		const rota = { members: [operatorId, adminId], handoverWeekday: 1, handoverTime: '09:00', startsOn: '2026-03-16', criticalAckMin: 10, warningAckMin: 30 };
+			expect(
+				(await admin(`/api/setups/${seeded.setupId}/members`, { method: 'POST', body: JSON.stringify({ userId: id }) })).status
+			).toBeLessThan(300);
+		const rota = {
+			members: [operatorId, adminId],
+			handoverWeekday: 1,
+			handoverTime: '09:00',
+			startsOn: '2026-03-16',
+			criticalAckMin: 10,
+			warningAckMin: 30
+		};
 		const saved = await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify(rota) });
 		expect(saved.status).toBe(200);
 		const view = await saved.json();
@@ -103,9 +130,13 @@ describe('on call, grouping and escalation', () => {
 		expect(mail[0].subject).toMatch(new RegExp(`^\\[Phasewarden\\] Critical: Lock lost and ${incidents.length - 1} related on `));
 
 		// Nine minutes on: nothing new. Ten: the secondary is paged.
-		const at9 = await (await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 9 * MINUTE }) })).json();
+		const at9 = await (
+			await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 9 * MINUTE }) })
+		).json();
 		expect(at9.paged).toEqual([]);
-		const at10 = await (await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 10 * MINUTE }) })).json();
+		const at10 = await (
+			await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 10 * MINUTE }) })
+		).json();
 		expect(at10.paged).toEqual([{ incidentId: head, step: 1 }]);
 		const escalated = await poll('the page to the secondary', async () => {
 			const rows = (await alertEmails(server)).filter((d) => d.recipient === adminId);
@@ -113,12 +144,16 @@ describe('on call, grouping and escalation', () => {
 		});
 		expect(escalated.map((d) => d.incidentId)).toEqual([head]);
 		const history = (await (await operator(`/api/incidents/${head}`)).json()).events;
-		expect(history.find((e: { action: string }) => e.action === 'escalated').note).toMatch(/^escalated to Test Admin \(secondary\) at 2026-03-18T12:10:00.000Z$/);
+		expect(history.find((e: { action: string }) => e.action === 'escalated').note).toMatch(
+			/^escalated to Test Admin \(secondary\) at 2026-03-18T12:10:00.000Z$/
+		);
 
 		// The operator acknowledges: twenty and thirty minutes on, nobody else is paged.
 		expect((await operator(`/api/incidents/${head}/ack`, { method: 'POST', body: '{}' })).status).toBe(200);
 		for (const m of [20, 30]) {
-			const tick = await (await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + m * MINUTE }) })).json();
+			const tick = await (
+				await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + m * MINUTE }) })
+			).json();
 			expect(tick.paged).toEqual([]);
 		}
 		await new Promise((r) => setTimeout(r, 500));
@@ -143,7 +178,9 @@ describe('on call, grouping and escalation', () => {
 		await server.stop();
 		server = await startServer(seeded.dataDir, server.port, env);
 		admin = await signIn(server, 'admin');
-		const tick = await (await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 10 * MINUTE }) })).json();
+		const tick = await (
+			await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 + 10 * MINUTE }) })
+		).json();
 		expect(tick.paged).toHaveLength(1);
 		expect(tick.paged[0].step).toBe(1);
 		await poll('the escalated pages', async () => ((await alertEmails(server)).length >= 4 ? true : null));
@@ -159,23 +196,47 @@ describe('rota page and overrides', () => {
 		const operator = await signIn(server, 'operator');
 		const [adminId, operatorId] = [await userId(admin), await userId(operator)];
 		await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 }) });
-		for (const id of [adminId, operatorId]) await admin(`/api/setups/${seeded.setupId}/members`, { method: 'POST', body: JSON.stringify({ userId: id }) });
+		for (const id of [adminId, operatorId])
+			await admin(`/api/setups/${seeded.setupId}/members`, { method: 'POST', body: JSON.stringify({ userId: id }) });
 		const rota = { members: [operatorId, adminId], handoverWeekday: 1, handoverTime: '09:00', startsOn: '2026-03-16' };
-		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify({ ...rota, members: [operatorId, operatorId] }) })).status).toBe(400);
-		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify({ ...rota, handoverTime: '9pm' }) })).status).toBe(400);
+		expect(
+			(
+				await operator(`/api/setups/${seeded.setupId}/rota`, {
+					method: 'PUT',
+					body: JSON.stringify({ ...rota, members: [operatorId, operatorId] })
+				})
+			).status
+		).toBe(400);
+		expect(
+			(await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify({ ...rota, handoverTime: '9pm' }) }))
+				.status
+		).toBe(400);
 		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify(rota) })).status).toBe(200);
 
 		// "I cover Wednesday night": the admin covers from 20:00 to 08:00 Vienna time (CET, UTC+1).
-		const bad = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, { method: 'POST', body: JSON.stringify({ userId: adminId, from: '2026-03-19T07:00:00Z', until: '2026-03-18T19:00:00Z' }) });
+		const bad = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, {
+			method: 'POST',
+			body: JSON.stringify({ userId: adminId, from: '2026-03-19T07:00:00Z', until: '2026-03-18T19:00:00Z' })
+		});
 		expect(bad.status).toBe(400);
 		expect((await bad.json()).message).toMatch(/until must be after from/);
-		const added = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, { method: 'POST', body: JSON.stringify({ userId: adminId, from: '2026-03-18T19:00:00Z', until: '2026-03-19T07:00:00Z', note: 'I cover Wednesday night' }) });
+		const added = await operator(`/api/setups/${seeded.setupId}/rota/overrides`, {
+			method: 'POST',
+			body: JSON.stringify({
+				userId: adminId,
+				from: '2026-03-18T19:00:00Z',
+				until: '2026-03-19T07:00:00Z',
+				note: 'I cover Wednesday night'
+			})
+		});
 		expect(added.status).toBe(201);
 		const { override } = await added.json();
 		await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse('2026-03-18T23:00:00Z') }) });
 		const view = await (await operator(`/api/setups/${seeded.setupId}/rota`)).json();
 		expect(view.now).toEqual({ primary: adminId, secondary: operatorId });
-		expect(view.spans.some((s: { primary: string; from: string }) => s.primary === 'Test Operator' && s.from === '2026-03-19T07:00:00.000Z')).toBe(true);
+		expect(
+			view.spans.some((s: { primary: string; from: string }) => s.primary === 'Test Operator' && s.from === '2026-03-19T07:00:00.000Z')
+		).toBe(true);
 
 		const observer = await signIn(server, 'observer');
 		const page = await observer(`/setups/${seeded.setupId}/oncall`, { headers: { accept: 'text/html' } });

@@ -17,7 +17,9 @@ afterEach(async () => {
 
 async function incidentOf(api: Api, runId: string) {
 	return poll(`an incident on run ${runId}`, async () => {
-		const { incidents } = (await (await api(`/api/incidents?run=${runId}`)).json()) as { incidents: { id: string; kind: string; state: string }[] };
+		const { incidents } = (await (await api(`/api/incidents?run=${runId}`)).json()) as {
+			incidents: { id: string; kind: string; state: string }[];
+		};
 		return incidents.find((i) => i.kind === 'lock_lost');
 	});
 }
@@ -73,7 +75,9 @@ describe('one-tap acknowledge', () => {
 			events: { action: string; actorName: string | null; note: string | null }[];
 		};
 		expect(after.incident.state).toBe('acknowledged');
-		expect(after.events).toContainEqual(expect.objectContaining({ action: 'acknowledged', actorName: people.operator.name, note: 'via one-tap link' }));
+		expect(after.events).toContainEqual(
+			expect.objectContaining({ action: 'acknowledged', actorName: people.operator.name, note: 'via one-tap link' })
+		);
 
 		const second = await tap(server, link);
 		expect(second.status).toBe(409);
@@ -112,7 +116,9 @@ describe('one-tap acknowledge', () => {
 		const res = await tap(server, link);
 		expect(res.status).toBe(409);
 		expect(await res.text()).toMatch(/expired/);
-		expect(((await (await operator(`/api/incidents/${incident.id}`)).json()) as { incident: { state: string } }).incident.state).toBe('open');
+		expect(((await (await operator(`/api/incidents/${incident.id}`)).json()) as { incident: { state: string } }).incident.state).toBe(
+			'open'
+		);
 	}, 120_000);
 });
 
@@ -125,21 +131,41 @@ describe('silences', () => {
 		const admin = await signIn(server, 'admin');
 		const observer = await signIn(server, 'observer');
 
-		const refused = await observer('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, duration_min: 1, reason: 'helium transfer' }) });
+		const refused = await observer('/api/silences', {
+			method: 'POST',
+			body: JSON.stringify({ setupId: seeded.setupId, duration_min: 1, reason: 'helium transfer' })
+		});
 		expect(refused.status).toBe(403);
-		const created = await operator('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, duration_min: 0.1, reason: 'helium transfer' }) });
+		const created = await operator('/api/silences', {
+			method: 'POST',
+			body: JSON.stringify({ setupId: seeded.setupId, duration_min: 0.1, reason: 'helium transfer' })
+		});
 		expect(created.status).toBe(201);
-		const listed = (await (await observer('/api/silences?active=1')).json()) as { silences: { reason: string; createdByName: string; active: boolean }[] };
-		expect(listed.silences).toEqual([expect.objectContaining({ reason: 'helium transfer', createdByName: people.operator.name, active: true })]);
+		const listed = (await (await observer('/api/silences?active=1')).json()) as {
+			silences: { reason: string; createdByName: string; active: boolean }[];
+		};
+		expect(listed.silences).toEqual([
+			expect.objectContaining({ reason: 'helium transfer', createdByName: people.operator.name, active: true })
+		]);
 
 		// A second silence, ended early: it stays listed with who ended it, and ending it twice is refused.
-		const early = (await (await operator('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, kind: 'rate_drift', duration_min: 60, reason: 'pump sweep' }) })).json()) as { silence: { id: string } };
+		const early = (await (
+			await operator('/api/silences', {
+				method: 'POST',
+				body: JSON.stringify({ setupId: seeded.setupId, kind: 'rate_drift', duration_min: 60, reason: 'pump sweep' })
+			})
+		).json()) as { silence: { id: string } };
 		expect((await observer(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(403);
 		expect((await admin(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(200);
 		expect((await admin(`/api/silences/${early.silence.id}`, { method: 'DELETE' })).status).toBe(409);
-		const all = (await (await observer('/api/silences')).json()) as { silences: { id: string; active: boolean; endedByName: string | null }[] };
+		const all = (await (await observer('/api/silences')).json()) as {
+			silences: { id: string; active: boolean; endedByName: string | null }[];
+		};
 		expect(all.silences.find((s) => s.id === early.silence.id)).toMatchObject({ active: false, endedByName: people.admin.name });
-		const tooLong = await operator('/api/silences', { method: 'POST', body: JSON.stringify({ setupId: seeded.setupId, duration_min: 30 * 24 * 60, reason: 'forever' }) });
+		const tooLong = await operator('/api/silences', {
+			method: 'POST',
+			body: JSON.stringify({ setupId: seeded.setupId, duration_min: 30 * 24 * 60, reason: 'forever' })
+		});
 		expect(tooLong.status).toBe(400);
 		expect(await tooLong.text()).toMatch(/at most 14 days/);
 
@@ -157,7 +183,9 @@ describe('silences', () => {
 		});
 		const loudRun = await lockLossRun(server.wsUrl, seeded.token, 'after-silence');
 		const loud = await incidentOf(operator, loudRun);
-		const rows = (await (await admin(`/api/deliveries?incident=${loud.id}&channel=email`)).json()) as { deliveries: { recipient: string }[] };
+		const rows = (await (await admin(`/api/deliveries?incident=${loud.id}&channel=email`)).json()) as {
+			deliveries: { recipient: string }[];
+		};
 		expect(rows.deliveries.length).toBe(2);
 		// And the silenced incident's alert was never mailed.
 		const { messages } = (await (await operator('/api/dev/mail')).json()) as { messages: Mail[] };

@@ -8,7 +8,17 @@ import { lockLossRun } from './support/lock-loss';
 import { poll } from './support/poll';
 import { freePort, people, seedDataDir, signIn, startServer, type RunningServer } from './support/server';
 
-type Delivery = { id: string; incidentId: string | null; kind: string; channel: string; recipient: string; status: string; attempts: number; lastError: string | null; attemptLog: { outcome: string }[] };
+type Delivery = {
+	id: string;
+	incidentId: string | null;
+	kind: string;
+	channel: string;
+	recipient: string;
+	status: string;
+	attempts: number;
+	lastError: string | null;
+	attemptLog: { outcome: string }[];
+};
 
 const FAST_RETRY = { PHASEWARDEN_OUTBOX_POLL_S: '0.2', PHASEWARDEN_OUTBOX_RETRY_S: '0.3' };
 const cleanup: (() => Promise<unknown>)[] = [];

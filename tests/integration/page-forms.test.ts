@@ -7,11 +7,13 @@ import { PASSWORD, people, seedDataDir, startServer, type RunningServer } from '
 let server: RunningServer;
 const cookies: Record<keyof typeof people, string> = { admin: '', operator: '', observer: '' };
 
-const page = (path: string, who: keyof typeof people) => fetch(`${server.url}${path}`, { headers: { cookie: cookies[who], accept: 'text/html' }, redirect: 'manual' });
+const page = (path: string, who: keyof typeof people) =>
+	fetch(`${server.url}${path}`, { headers: { cookie: cookies[who], accept: 'text/html' }, redirect: 'manual' });
 
 beforeAll(async () => {
 	server = await startServer((await seedDataDir()).dataDir);
-	for (const who of Object.keys(people) as (keyof typeof people)[]) cookies[who] = (await signInAs(server, people[who].email, PASSWORD)).cookie;
+	for (const who of Object.keys(people) as (keyof typeof people)[])
+		cookies[who] = (await signInAs(server, people[who].email, PASSWORD)).cookie;
 });
 afterAll(async () => {
 	await server?.stop();

@@ -12,7 +12,10 @@ let operator: { cookie: string };
 const setupBody = (name: string) => JSON.stringify({ name, order: 3, states: 6, mode_GHz: 5, nominal_mK: 10 });
 
 async function addPerson(email: string, role: string, password = 'first-password-1') {
-	const res = await call(server, '/api/users', admin, { method: 'POST', body: JSON.stringify({ email, name: email.split('@')[0], role, password }) });
+	const res = await call(server, '/api/users', admin, {
+		method: 'POST',
+		body: JSON.stringify({ email, name: email.split('@')[0], role, password })
+	});
 	expect(res.status).toBe(201);
 	return ((await res.json()) as { user: { id: string } }).user.id;
 }
@@ -37,7 +40,10 @@ afterAll(async () => {
 describe('invitations', () => {
 	it('lets an invitee set their password once and sign in with the invited role', async () => {
 		const email = 'new.operator@lab.test';
-		const refused = await call(server, '/api/invitations', operator, { method: 'POST', body: JSON.stringify({ email: 'boss@lab.test', role: 'admin' }) });
+		const refused = await call(server, '/api/invitations', operator, {
+			method: 'POST',
+			body: JSON.stringify({ email: 'boss@lab.test', role: 'admin' })
+		});
 		expect(refused.status).toBe(403);
 		const invited = await call(server, '/api/invitations', operator, { method: 'POST', body: JSON.stringify({ email, role: 'operator' }) });
 		expect(invited.status).toBe(201);
@@ -46,9 +52,17 @@ describe('invitations', () => {
 
 		const link = await linkFromMail(server, operator.cookie, email, '/invite/');
 		expect((await fetch(`${server.url}${link}`)).status).toBe(200);
-		const mismatch = await postForm(server, `${link}?/accept`, { name: 'New Operator', password: 'chosen-password-1', confirm: 'other-password-1' });
+		const mismatch = await postForm(server, `${link}?/accept`, {
+			name: 'New Operator',
+			password: 'chosen-password-1',
+			confirm: 'other-password-1'
+		});
 		expect(mismatch.status).toBe(400);
-		const accepted = await postForm(server, `${link}?/accept`, { name: 'New Operator', password: 'chosen-password-1', confirm: 'chosen-password-1' });
+		const accepted = await postForm(server, `${link}?/accept`, {
+			name: 'New Operator',
+			password: 'chosen-password-1',
+			confirm: 'chosen-password-1'
+		});
 		expect(accepted.status).toBe(303);
 		expect(cookieOf(accepted)).toContain('session_token');
 
@@ -56,7 +70,9 @@ describe('invitations', () => {
 		expect(invitee.status).toBe(200);
 		expect((await call(server, '/api/setups', invitee, { method: 'POST', body: setupBody('Invitee fridge') })).status).toBe(201);
 		expect((await call(server, '/api/users', invitee)).status).toBe(403);
-		const { users } = (await (await call(server, '/api/users', admin)).json()) as { users: { email: string; role: string; name: string }[] };
+		const { users } = (await (await call(server, '/api/users', admin)).json()) as {
+			users: { email: string; role: string; name: string }[];
+		};
 		expect(users.find((u) => u.email === email)).toMatchObject({ role: 'operator', name: 'New Operator' });
 
 		// The link works once: the page and the action both refuse it now, and no second account appears.
@@ -69,7 +85,10 @@ describe('invitations', () => {
 	});
 
 	it('refuses a withdrawn invitation and an address that already has an account', async () => {
-		const taken = await call(server, '/api/invitations', admin, { method: 'POST', body: JSON.stringify({ email: people.observer.email, role: 'observer' }) });
+		const taken = await call(server, '/api/invitations', admin, {
+			method: 'POST',
+			body: JSON.stringify({ email: people.observer.email, role: 'observer' })
+		});
 		expect(taken.status).toBe(400);
 		const email = 'withdrawn@lab.test';
 		const res = await call(server, '/api/invitations', admin, { method: 'POST', body: JSON.stringify({ email, role: 'admin' }) });
@@ -120,7 +139,9 @@ describe('deactivation', () => {
 		const token = await newToken(session, 'leaving script');
 		expect((await call(server, '/api/setups', { token: token.secret })).status).toBe(200);
 
-		expect((await call(server, `/api/users/${id}/active`, operator, { method: 'PUT', body: JSON.stringify({ active: false }) })).status).toBe(403);
+		expect(
+			(await call(server, `/api/users/${id}/active`, operator, { method: 'PUT', body: JSON.stringify({ active: false }) })).status
+		).toBe(403);
 		const off = await call(server, `/api/users/${id}/active`, admin, { method: 'PUT', body: JSON.stringify({ active: false }) });
 		expect(off.status).toBe(200);
 		expect((await call(server, '/api/setups', session)).status).toBe(401);
@@ -131,7 +152,9 @@ describe('deactivation', () => {
 		const mail = (await (await call(server, '/api/dev/mail', admin)).json()) as { messages: { to: string[] }[] };
 		expect(mail.messages.filter((m) => m.to.includes(email))).toHaveLength(0);
 
-		expect((await call(server, `/api/users/${id}/active`, admin, { method: 'PUT', body: JSON.stringify({ active: true }) })).status).toBe(200);
+		expect((await call(server, `/api/users/${id}/active`, admin, { method: 'PUT', body: JSON.stringify({ active: true }) })).status).toBe(
+			200
+		);
 		expect((await signInAs(server, email, 'first-password-1')).status).toBe(200);
 		expect((await call(server, '/api/setups', { token: token.secret })).status).toBe(200);
 	});
@@ -151,10 +174,14 @@ describe('personal API tokens', () => {
 		const observerToken = await newToken(observer, 'observer script');
 		expect(observerToken.secret.startsWith('pwp_')).toBe(true);
 		expect((await call(server, '/api/setups', { token: observerToken.secret })).status).toBe(200);
-		expect((await call(server, '/api/setups', { token: observerToken.secret }, { method: 'POST', body: setupBody('Observer fridge') })).status).toBe(403);
+		expect(
+			(await call(server, '/api/setups', { token: observerToken.secret }, { method: 'POST', body: setupBody('Observer fridge') })).status
+		).toBe(403);
 
 		const operatorToken = await newToken(operator, 'operator script');
-		expect((await call(server, '/api/setups', { token: operatorToken.secret }, { method: 'POST', body: setupBody('Token fridge') })).status).toBe(201);
+		expect(
+			(await call(server, '/api/setups', { token: operatorToken.secret }, { method: 'POST', body: setupBody('Token fridge') })).status
+		).toBe(201);
 		expect((await call(server, '/api/users', { token: operatorToken.secret })).status).toBe(403);
 		const adminToken = await newToken(admin, 'admin script');
 		expect((await call(server, '/api/users', { token: adminToken.secret })).status).toBe(200);
@@ -163,15 +190,23 @@ describe('personal API tokens', () => {
 		const email = 'demoted@lab.test';
 		const id = await addPerson(email, 'operator');
 		const demotedToken = await newToken(await signInAs(server, email, 'first-password-1'), 'demoted script');
-		expect((await call(server, '/api/setups', { token: demotedToken.secret }, { method: 'POST', body: setupBody('Before demotion') })).status).toBe(201);
-		expect((await call(server, `/api/users/${id}`, admin, { method: 'PATCH', body: JSON.stringify({ role: 'observer' }) })).status).toBe(200);
-		expect((await call(server, '/api/setups', { token: demotedToken.secret }, { method: 'POST', body: setupBody('After demotion') })).status).toBe(403);
+		expect(
+			(await call(server, '/api/setups', { token: demotedToken.secret }, { method: 'POST', body: setupBody('Before demotion') })).status
+		).toBe(201);
+		expect((await call(server, `/api/users/${id}`, admin, { method: 'PATCH', body: JSON.stringify({ role: 'observer' }) })).status).toBe(
+			200
+		);
+		expect(
+			(await call(server, '/api/setups', { token: demotedToken.secret }, { method: 'POST', body: setupBody('After demotion') })).status
+		).toBe(403);
 
 		// Agent tokens and made-up tokens are not personal tokens.
 		expect((await call(server, '/api/setups', { token: seeded.token })).status).toBe(401);
 		expect((await call(server, '/api/setups', { token: 'pwp_made-up' })).status).toBe(401);
 
-		const listed = (await (await call(server, '/api/me/tokens', observer)).json()) as { tokens: { id: string; lastUsedAt: string | null }[] };
+		const listed = (await (await call(server, '/api/me/tokens', observer)).json()) as {
+			tokens: { id: string; lastUsedAt: string | null }[];
+		};
 		expect(listed.tokens.find((t) => t.id === observerToken.id)?.lastUsedAt).not.toBeNull();
 		// Only the owner can revoke: someone else's id is unknown to them.
 		expect((await call(server, `/api/me/tokens/${observerToken.id}`, operator, { method: 'DELETE' })).status).toBe(404);

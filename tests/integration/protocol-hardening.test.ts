@@ -151,7 +151,10 @@ describe('text the database cannot store', () => {
 		sock.send(hello({ ...run, name: 'Run 7 🧊' }));
 		const welcome = (await sock.waitFor((e) => e.type === 'welcome', 'welcome')) as Extract<ServerMessage, { type: 'welcome' }>;
 		sock.send({ type: 'end', reason: 'stopped\u0000' });
-		await sock.waitFor((e) => e.type === 'error' && /^reason: must not contain NUL/.test((e as { message: string }).message), 'end.reason error');
+		await sock.waitFor(
+			(e) => e.type === 'error' && /^reason: must not contain NUL/.test((e as { message: string }).message),
+			'end.reason error'
+		);
 		sock.send({ type: 'frames', frames: [frame(1)] });
 		await sock.waitFor((e) => e.type === 'ack' && e.seq === 1, 'ack 1');
 		expect(await storedSeqs(welcome.run)).toEqual([1]);

@@ -28,18 +28,30 @@ async function warmRun(server: RunningServer, token: string, key: string) {
 }
 
 async function alertRecipientsOf(admin: Fetcher, runId: string, kind: string) {
-	const { incidents } = (await (await admin(`/api/incidents?run=${runId}`)).json()) as { incidents: { id: string; kind: string; severity: string }[] };
+	const { incidents } = (await (await admin(`/api/incidents?run=${runId}`)).json()) as {
+		incidents: { id: string; kind: string; severity: string }[];
+	};
 	const incident = incidents.find((i) => i.kind === kind);
 	expect(incident, `a ${kind} incident on run ${runId}`).toBeDefined();
 	// The deliveries are written in the transaction that opened the incident: all there once it is.
 	const { deliveries } = (await (await admin(`/api/deliveries?incident=${incident!.id}&limit=200`)).json()) as { deliveries: Delivery[] };
-	return { severity: incident!.severity, emailedTo: deliveries.filter((d) => d.kind === 'alert' && d.channel === 'email').map((d) => d.recipient).sort() };
+	return {
+		severity: incident!.severity,
+		emailedTo: deliveries
+			.filter((d) => d.kind === 'alert' && d.channel === 'email')
+			.map((d) => d.recipient)
+			.sort()
+	};
 }
 
 describe('quiet hours', () => {
 	it('hold back a warning inside them and let a critical through', async () => {
 		const seeded = await seedDataDir();
-		const server = await startServer(seeded.dataDir, undefined, { PHASEWARDEN_TEST_HOOKS: '1', PHASEWARDEN_TIME_ZONE: 'UTC', PHASEWARDEN_ESCALATION_POLL_S: '3600' });
+		const server = await startServer(seeded.dataDir, undefined, {
+			PHASEWARDEN_TEST_HOOKS: '1',
+			PHASEWARDEN_TIME_ZONE: 'UTC',
+			PHASEWARDEN_ESCALATION_POLL_S: '3600'
+		});
 		cleanup.push(() => server.stop());
 		const admin = await signIn(server, 'admin');
 		const operator = await signIn(server, 'operator');
@@ -63,7 +75,10 @@ describe('quiet hours', () => {
 		});
 		expect(saved.status).toBe(200);
 
-		const setClock = async (iso: string) => expect((await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse(iso) }) })).status).toBe(200);
+		const setClock = async (iso: string) =>
+			expect(
+				(await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse(iso) }) })).status
+			).toBe(200);
 
 		// 03:00, inside the quiet hours: the warning reaches the admin only.
 		await setClock('2026-03-18T03:00:00Z');
@@ -84,14 +99,24 @@ describe('quiet hours', () => {
 
 	it('let a critical that joins a warning’s group page the sleeper once, and the group clears once', async () => {
 		const seeded = await seedDataDir();
-		const server = await startServer(seeded.dataDir, undefined, { PHASEWARDEN_TEST_HOOKS: '1', PHASEWARDEN_TIME_ZONE: 'UTC', PHASEWARDEN_ESCALATION_POLL_S: '3600' });
+		const server = await startServer(seeded.dataDir, undefined, {
+			PHASEWARDEN_TEST_HOOKS: '1',
+			PHASEWARDEN_TIME_ZONE: 'UTC',
+			PHASEWARDEN_ESCALATION_POLL_S: '3600'
+		});
 		cleanup.push(() => server.stop());
 		const admin = await signIn(server, 'admin');
 		const operator = await signIn(server, 'operator');
 		const id = async (f: Fetcher) => ((await (await f('/api/auth/get-session')).json()) as { user: { id: string } }).user.id;
 		const [adminId, operatorId] = [await id(admin), await id(operator)];
 		const op = await signInAs(server, people.operator.email, PASSWORD);
-		const prefs = new URLSearchParams([['channels', 'email'], ['severities', 'warning'], ['quietStart', '22:00'], ['quietEnd', '07:00'], ['notifyOnClear', 'on']]);
+		const prefs = new URLSearchParams([
+			['channels', 'email'],
+			['severities', 'warning'],
+			['quietStart', '22:00'],
+			['quietEnd', '07:00'],
+			['notifyOnClear', 'on']
+		]);
 		const saved = await fetch(`${server.url}/settings?/alertPrefs`, {
 			method: 'POST',
 			redirect: 'manual',
@@ -99,7 +124,10 @@ describe('quiet hours', () => {
 			body: prefs.toString()
 		});
 		expect(saved.status).toBe(200);
-		expect((await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse('2026-03-18T03:00:00Z') }) })).status).toBe(200);
+		expect(
+			(await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: Date.parse('2026-03-18T03:00:00Z') }) }))
+				.status
+		).toBe(200);
 
 		// A warm mixing chamber first (warning, heads the group), the lock lost five windows later
 		// (critical, joins it: same run within the group window), then lock and temperature return.
@@ -110,14 +138,23 @@ describe('quiet hours', () => {
 		const lost = Array.from({ length: 8 }, (_, i) => ({ ...frame(i + 5, 0.15), aux: { mxc_mK: 35 } }));
 		agent.send({ type: 'frames', frames: lost });
 		await agent.waitFor((m) => m.type === 'ack' && m.seq === 12);
-		const { incidents } = (await (await admin(`/api/incidents?run=${agent.welcome.run}`)).json()) as { incidents: { id: string; kind: string }[] };
+		const { incidents } = (await (await admin(`/api/incidents?run=${agent.welcome.run}`)).json()) as {
+			incidents: { id: string; kind: string }[];
+		};
 		const aux = incidents.find((i) => i.kind === 'aux_limit')!;
 		const lock = incidents.find((i) => i.kind === 'lock_lost')!;
 		expect(aux && lock).toBeTruthy();
 		const deliveriesOf = async (incidentId: string) =>
-			((await (await admin(`/api/deliveries?incident=${incidentId}&limit=200`)).json()) as { deliveries: Delivery[] }).deliveries.filter((d) => d.channel === 'email');
+			((await (await admin(`/api/deliveries?incident=${incidentId}&limit=200`)).json()) as { deliveries: Delivery[] }).deliveries.filter(
+				(d) => d.channel === 'email'
+			);
 		// One page per person for the group, on the warning that heads it; the critical queued nothing of its own.
-		expect((await deliveriesOf(aux.id)).filter((d) => d.kind === 'alert').map((d) => d.recipient).sort()).toEqual([adminId, operatorId].sort());
+		expect(
+			(await deliveriesOf(aux.id))
+				.filter((d) => d.kind === 'alert')
+				.map((d) => d.recipient)
+				.sort()
+		).toEqual([adminId, operatorId].sort());
 		expect(await deliveriesOf(lock.id)).toEqual([]);
 		const detail = (await (await admin(`/api/incidents/${aux.id}`)).json()) as { events: { action: string; note: string | null }[] };
 		expect(detail.events.filter((e) => e.action === 'paged').map((e) => e.note)).toEqual([
@@ -129,10 +166,17 @@ describe('quiet hours', () => {
 		agent.send({ type: 'frames', frames: back });
 		await agent.waitFor((m) => m.type === 'ack' && m.seq === 22);
 		await agent.close();
-		const states = ((await (await admin(`/api/incidents?run=${agent.welcome.run}`)).json()) as { incidents: { state: string }[] }).incidents.map((i) => i.state);
+		const states = (
+			(await (await admin(`/api/incidents?run=${agent.welcome.run}`)).json()) as { incidents: { state: string }[] }
+		).incidents.map((i) => i.state);
 		expect(states).toEqual(['resolved', 'resolved']);
 		// Cleared once per person, for the group's head; nothing for the member.
-		expect((await deliveriesOf(aux.id)).filter((d) => d.kind === 'clear').map((d) => d.recipient).sort()).toEqual([adminId, operatorId].sort());
+		expect(
+			(await deliveriesOf(aux.id))
+				.filter((d) => d.kind === 'clear')
+				.map((d) => d.recipient)
+				.sort()
+		).toEqual([adminId, operatorId].sort());
 		expect(await deliveriesOf(lock.id)).toEqual([]);
 	}, 120_000);
 });

@@ -7,7 +7,11 @@ import { seedDataDir, signIn, startServer, type RunningServer, type Seeded } fro
 
 const FRAMES = 20_000;
 /** The replay page's form as a browser without JavaScript posts it: no field changed, so the rules in force. */
-const formPost: RequestInit = { method: 'POST', body: 'replay=1', headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' } };
+const formPost: RequestInit = {
+	method: 'POST',
+	body: 'replay=1',
+	headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html' }
+};
 const PER_MESSAGE = 500;
 
 let seeded: Seeded;
@@ -21,7 +25,8 @@ afterAll(async () => {
 });
 
 /** Three lock losses, each longer than the default 5 windows. */
-const lockOf = (seq: number) => ((seq > 3000 && seq <= 3008) || (seq > 9000 && seq <= 9012) || (seq > 15_500 && seq <= 15_507) ? 0.1 : 0.93);
+const lockOf = (seq: number) =>
+	(seq > 3000 && seq <= 3008) || (seq > 9000 && seq <= 9012) || (seq > 15_500 && seq <= 15_507) ? 0.1 : 0.93;
 
 async function streamLongRun(agent: TestAgent) {
 	for (let first = 1; first <= FRAMES; first += PER_MESSAGE) {
@@ -100,8 +105,12 @@ it('replays a 20,000-frame run while another run keeps streaming, and refuses a 
 	// Every frame the second run sent while the replay ran was acked and stored.
 	expect(lastDuring).toBeGreaterThanOrEqual(firstDuring);
 	await side.waitFor((m) => m.type === 'ack' && m.seq === sideSeq, 30_000);
-	const stored = await (await observer(`/api/runs/${side.welcome.run}/frames?from=${firstDuring}&to=${lastDuring}&limit=${lastDuring - firstDuring + 1}`)).json();
-	expect(stored.frames.map((f: { seq: number }) => f.seq)).toEqual(Array.from({ length: lastDuring - firstDuring + 1 }, (_, i) => firstDuring + i));
+	const stored = await (
+		await observer(`/api/runs/${side.welcome.run}/frames?from=${firstDuring}&to=${lastDuring}&limit=${lastDuring - firstDuring + 1}`)
+	).json();
+	expect(stored.frames.map((f: { seq: number }) => f.seq)).toEqual(
+		Array.from({ length: lastDuring - firstDuring + 1 }, (_, i) => firstDuring + i)
+	);
 	await side.close();
 
 	// Done: the slot is free again, and the page's form (no JavaScript) replays and shows the outcome.

@@ -32,7 +32,11 @@ it('reproduces the live incidents with unchanged rules and shows what other rule
 	expect(same.frameCount).toBe(45);
 	expect(same.replayed).toHaveLength(1);
 	expect(same.replayed[0]).toMatchObject({ kind: 'lock_lost', openedSeq: 15, clearedSeq: 23 });
-	expect(same.comparison).toEqual({ both: [{ actualId: before.incidents[0].id, replayIndex: 0, openShift_ms: 0 }], onlyReplay: [], onlyActual: [] });
+	expect(same.comparison).toEqual({
+		both: [{ actualId: before.incidents[0].id, replayIndex: 0, openShift_ms: 0 }],
+		onlyReplay: [],
+		onlyActual: []
+	});
 
 	const { rules } = await (await observer(`/api/setups/${seeded.setupId}/rules`)).json();
 	const sensitive = { ...rules, lock_lost: { ...rules.lock_lost, windows: 2 } };
@@ -40,7 +44,10 @@ it('reproduces the live incidents with unchanged rules and shows what other rule
 	expect(other.replayed.map((r: { openedSeq: number }) => r.openedSeq)).toEqual([12, 32]);
 	expect(other.comparison.onlyReplay).toEqual([1]);
 
-	const bad = await observer(`/api/runs/${runId}/replay`, { method: 'POST', body: JSON.stringify({ rules: { lock_lost: { threshold: -1 } } }) });
+	const bad = await observer(`/api/runs/${runId}/replay`, {
+		method: 'POST',
+		body: JSON.stringify({ rules: { lock_lost: { threshold: -1 } } })
+	});
 	expect(bad.status).toBe(400);
 	expect((await bad.json()).message).toMatch(/lock_lost\.threshold/);
 

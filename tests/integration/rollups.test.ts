@@ -96,10 +96,7 @@ function plan(s: Stream): { distinct: WireFrame[]; messages: WireFrame[][] } {
 		return f;
 	});
 	// On time first, then the held-back gap frames (newest first, so each arrives after higher seqs).
-	const order: WireFrame[] = [
-		...distinct.filter((_, i) => !s.frames[i].late),
-		...distinct.filter((_, i) => s.frames[i].late).reverse()
-	];
+	const order: WireFrame[] = [...distinct.filter((_, i) => !s.frames[i].late), ...distinct.filter((_, i) => s.frames[i].late).reverse()];
 	// Re-sends go in after the frame's first delivery.
 	distinct.forEach((f, i) => {
 		for (let r = 0; r < s.frames[i].resends; r++) {
@@ -225,11 +222,26 @@ function closeTo(actual: number | null, expected: number | null, what: string) {
 }
 
 function compare(actual: Bucket[], expected: Bucket[], resolution_s: number) {
-	expect(actual.map((r) => r.bucket_t), `${resolution_s} s buckets`).toEqual(expected.map((r) => r.bucket_t));
+	expect(
+		actual.map((r) => r.bucket_t),
+		`${resolution_s} s buckets`
+	).toEqual(expected.map((r) => r.bucket_t));
 	actual.forEach((a, i) => {
 		const e = expected[i];
 		const at = `${resolution_s} s bucket ${e.bucket_t}`;
-		const exact = ['frames', 'firstSeq', 'lastSeq', 'shots', 'vacuum', 'counts', 'switches', 'escapes', 'transitions', 'lockMin', 'lockMax'] as const;
+		const exact = [
+			'frames',
+			'firstSeq',
+			'lastSeq',
+			'shots',
+			'vacuum',
+			'counts',
+			'switches',
+			'escapes',
+			'transitions',
+			'lockMin',
+			'lockMax'
+		] as const;
 		for (const key of exact) expect(a[key], `${at} ${key}`).toEqual(e[key]);
 		for (const key of ['window_s', 'dwell_s', 'vacuum_s', 'lockSum', 'expectedSwitches'] as const) closeTo(a[key], e[key], `${at} ${key}`);
 		expect(a.expectedEscapes, `${at} expectedEscapes (no escape model)`).toBeNull();
@@ -251,7 +263,7 @@ async function getJson(api: Api, path: string) {
 
 async function storedFrames(api: Api, runId: string, lastSeq: number): Promise<WireFrame[]> {
 	const out: WireFrame[] = [];
-	for (let from = 1; from <= lastSeq; ) {
+	for (let from = 1; from <= lastSeq;) {
 		const { frames } = await getJson(api, `/api/runs/${runId}/frames?from=${from}&to=${lastSeq}&limit=5000`);
 		if (frames.length === 0) break;
 		out.push(...frames);

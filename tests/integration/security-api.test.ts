@@ -28,7 +28,10 @@ describe('writes to the API', () => {
 		expect(evil.status).toBe(403);
 		expect((await evil.json()).message).toMatch(/cross-origin write refused: Origin https:\/\/evil\.example/);
 
-		const resolve = await admin('/api/incidents/any-id/resolve', { method: 'POST', headers: { origin: 'https://evil.example', 'content-type': '' } });
+		const resolve = await admin('/api/incidents/any-id/resolve', {
+			method: 'POST',
+			headers: { origin: 'https://evil.example', 'content-type': '' }
+		});
 		expect(resolve.status).toBe(403);
 
 		const noOrigin = await fetch(`${server.url}/api/setups`, { method: 'POST', body, headers: { 'content-type': 'application/json' } });
@@ -42,7 +45,10 @@ describe('writes to the API', () => {
 		const plain = await admin('/api/setups', { method: 'POST', body: '{"name":"x"}', headers: { 'content-type': 'text/plain' } });
 		expect(plain.status).toBe(415);
 		expect((await plain.json()).message).toMatch(/Content-Type must be application\/json, not text\/plain/);
-		const ok = await admin('/api/setups', { method: 'POST', body: JSON.stringify({ name: 'Same origin', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 }) });
+		const ok = await admin('/api/setups', {
+			method: 'POST',
+			body: JSON.stringify({ name: 'Same origin', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 })
+		});
 		expect(ok.status).toBe(201);
 	});
 
@@ -105,7 +111,10 @@ describe("better-auth's admin routes", () => {
 describe('text the database cannot hold', () => {
 	it('gets a 400 naming the field instead of a 500', async () => {
 		const admin = await signIn(server, 'admin');
-		const nul = await admin('/api/setups', { method: 'POST', body: JSON.stringify({ name: 'a\u0000b', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 }) });
+		const nul = await admin('/api/setups', {
+			method: 'POST',
+			body: JSON.stringify({ name: 'a\u0000b', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 })
+		});
 		expect(nul.status).toBe(400);
 		expect((await nul.json()).message).toBe('name: must not contain NUL (U+0000)');
 		// JSON.stringify escapes a lone surrogate as \ud800, which JSON.parse turns back into one.
@@ -134,7 +143,11 @@ describe('oversized bodies', () => {
 			['/api/setups', 'application/json'],
 			['/signin?/signIn', 'application/x-www-form-urlencoded']
 		] as const) {
-			const res = await fetch(`${server.url}${path}`, { method: 'POST', headers: { 'content-type': type, origin: server.url }, body: big(50) });
+			const res = await fetch(`${server.url}${path}`, {
+				method: 'POST',
+				headers: { 'content-type': type, origin: server.url },
+				body: big(50)
+			});
 			expect(res.status, path).toBe(413);
 			expect((await res.json()).message, path).toMatch(/request body too large: \d+ bytes; the limit is \d+ bytes/);
 		}

@@ -18,7 +18,10 @@ afterAll(async () => {
 describe('revoking an agent token', () => {
 	it('closes its live socket with 4001 and refuses the reconnect', async () => {
 		const operator = await signIn(server, 'operator');
-		const created = await operator(`/api/setups/${seeded.setupId}/tokens`, { method: 'POST', body: JSON.stringify({ label: 'to revoke' }) });
+		const created = await operator(`/api/setups/${seeded.setupId}/tokens`, {
+			method: 'POST',
+			body: JSON.stringify({ label: 'to revoke' })
+		});
 		expect(created.status).toBe(201);
 		const { token, secret } = (await created.json()) as { token: { id: string }; secret: string };
 

@@ -26,12 +26,20 @@ describe('a rota shared by a group of setups', () => {
 		const [adminId, operatorId] = [await id(admin), await id(operator)];
 		expect((await admin('/api/dev/escalations/clock', { method: 'POST', body: JSON.stringify({ now_ms: T0 }) })).status).toBe(200);
 
-		const created = await operator('/api/setups', { method: 'POST', body: JSON.stringify({ name: 'Second fridge · doubler', order: 2, states: 2, mode_GHz: 6.8, nominal_mK: 15 }) });
+		const created = await operator('/api/setups', {
+			method: 'POST',
+			body: JSON.stringify({ name: 'Second fridge · doubler', order: 2, states: 2, mode_GHz: 6.8, nominal_mK: 15 })
+		});
 		expect(created.status).toBe(201);
 		const second: string = (await created.json()).setup.id;
-		const { secret } = await (await operator(`/api/setups/${second}/tokens`, { method: 'POST', body: JSON.stringify({ label: 'second PC' }) })).json();
+		const { secret } = await (
+			await operator(`/api/setups/${second}/tokens`, { method: 'POST', body: JSON.stringify({ label: 'second PC' }) })
+		).json();
 		for (const setupId of [seeded.setupId, second])
-			for (const userId of [adminId, operatorId]) expect((await admin(`/api/setups/${setupId}/members`, { method: 'POST', body: JSON.stringify({ userId }) })).status).toBeLessThan(300);
+			for (const userId of [adminId, operatorId])
+				expect((await admin(`/api/setups/${setupId}/members`, { method: 'POST', body: JSON.stringify({ userId }) })).status).toBeLessThan(
+					300
+				);
 		const rota = { members: [operatorId, adminId], handoverWeekday: 1, handoverTime: '09:00', startsOn: '2026-03-16' };
 		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify(rota) })).status).toBe(200);
 
@@ -46,7 +54,9 @@ describe('a rota shared by a group of setups', () => {
 		const view = await (await observer(`/api/setups/${second}/rota`)).json();
 		expect(view.now).toEqual({ primary: operatorId, secondary: adminId });
 		expect(view.sharedFrom.id).toBe(seeded.setupId);
-		expect((await (await observer(`/api/setups/${seeded.setupId}/rota`)).json()).followers.map((f: { id: string }) => f.id)).toEqual([second]);
+		expect((await (await observer(`/api/setups/${seeded.setupId}/rota`)).json()).followers.map((f: { id: string }) => f.id)).toEqual([
+			second
+		]);
 		// The rota is edited where it lives; the follower's own rota and overrides are refused.
 		const own = await operator(`/api/setups/${second}/rota`, { method: 'PUT', body: JSON.stringify(rota) });
 		expect(own.status).toBe(400);

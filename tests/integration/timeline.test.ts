@@ -18,10 +18,13 @@ beforeAll(async () => {
 	server = await startServer(seeded.dataDir);
 	// ~3 h of agent time: 1 s windows with seq gaps, pauses of minutes and one of over an hour.
 	const [steps] = fc.sample(
-		fc.array(fc.record({ seqStep: fc.constantFrom(1, 1, 1, 1, 2, 5), dt_ms: fc.oneof(fc.integer({ min: 200, max: 3000 }), fc.constant(400_000)) }), {
-			minLength: 2500,
-			maxLength: 2500
-		}),
+		fc.array(
+			fc.record({ seqStep: fc.constantFrom(1, 1, 1, 1, 2, 5), dt_ms: fc.oneof(fc.integer({ min: 200, max: 3000 }), fc.constant(400_000)) }),
+			{
+				minLength: 2500,
+				maxLength: 2500
+			}
+		),
 		{ seed: 9, numRuns: 1 }
 	);
 	let seq = 0;
@@ -42,14 +45,28 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-type Bucket = { from_ms: number; to_ms: number; frames: number; shots: number; switches: number; escapes: number; counts: number[]; dwell_s: number; lock: { min: number; max: number; mean: number } | null };
+type Bucket = {
+	from_ms: number;
+	to_ms: number;
+	frames: number;
+	shots: number;
+	switches: number;
+	escapes: number;
+	counts: number[];
+	dwell_s: number;
+	lock: { min: number; max: number; mean: number } | null;
+};
 
 it('sums each bucket exactly over the stored frames in it, at any span and N', async () => {
 	const observer = await signIn(server, 'observer');
 	const first = stored[0].t;
 	const last = stored.at(-1)!.t;
 	const cases = fc.sample(
-		fc.record({ a: fc.integer({ min: -60_000, max: last - first }), len: fc.integer({ min: 1000, max: last - first + 120_000 }), points: fc.integer({ min: 1, max: 3000 }) }),
+		fc.record({
+			a: fc.integer({ min: -60_000, max: last - first }),
+			len: fc.integer({ min: 1000, max: last - first + 120_000 }),
+			points: fc.integer({ min: 1, max: 3000 })
+		}),
 		{ seed: 11, numRuns: 25 }
 	);
 	cases.push({ a: 0, len: last - first + 1, points: 1000 }); // whole run, explicitly

@@ -35,7 +35,11 @@ async function postImport(fetcher: Fetcher, text: string, runKey?: string, query
 	// Encode the multipart body once so the signed-in fetcher can send it with its boundary.
 	const encoded = new Request('http://encode.invalid/', { method: 'POST', body: form });
 	const body = await encoded.arrayBuffer();
-	return fetcher(`/api/setups/${seeded.setupId}/import${query}`, { method: 'POST', body, headers: { 'content-type': encoded.headers.get('content-type')! } });
+	return fetcher(`/api/setups/${seeded.setupId}/import${query}`, {
+		method: 'POST',
+		body,
+		headers: { 'content-type': encoded.headers.get('content-type')! }
+	});
 }
 
 const lines = (text: string) => text.split('\n').filter((l) => l !== '');
@@ -70,7 +74,9 @@ describe('export', () => {
 		expect(res.headers.get('x-phasewarden-frames')).toBe(String(SENT.length));
 		const rows = csvParse(await res.text());
 		expect(rows.length).toBe(SENT.length);
-		expect(rows.columns).toEqual(expect.arrayContaining(['count_0', 'count_5', 'transition_0_1', 'transition_5_5', 'aux_mxc_mK', 'aux_pump_dBm']));
+		expect(rows.columns).toEqual(
+			expect.arrayContaining(['count_0', 'count_5', 'transition_0_1', 'transition_5_5', 'aux_mxc_mK', 'aux_pump_dBm'])
+		);
 		expect(rows.columns).not.toContain('count_6');
 		expect(rows.map((r) => Number(r.seq))).toEqual(SENT);
 		const row9 = rows.find((r) => r.seq === '9')!;
@@ -154,7 +160,16 @@ describe('import', () => {
 		const res = await postImport(operator, text, 'transfer-src');
 		expect(res.status).toBe(200);
 		const outcome = await res.json();
-		expect(outcome).toMatchObject({ runId, created: false, stored: 50, filledGaps: 50, duplicates: 2, duplicateRanges: [[299, 300]], gapsBefore: 1, gapsAfter: 1 });
+		expect(outcome).toMatchObject({
+			runId,
+			created: false,
+			stored: 50,
+			filledGaps: 50,
+			duplicates: 2,
+			duplicateRanges: [[299, 300]],
+			gapsBefore: 1,
+			gapsAfter: 1
+		});
 		const detail = await (await observer(`/api/runs/${runId}`)).json();
 		expect(detail.gaps.map((g: { fromSeq: number; toSeq: number }) => [g.fromSeq, g.toSeq])).toEqual([[351, 400]]);
 		expect(detail.run.frameCount).toBe(SENT.length + 50);
@@ -166,7 +181,9 @@ describe('import', () => {
 
 		const ahead = await postImport(operator, JSON.stringify(richFrame(1201)), 'transfer-src');
 		expect(ahead.status).toBe(400);
-		expect((await ahead.json()).lines).toEqual([{ line: 1, message: expect.stringMatching(/seq 1201 is above 1200: run "transfer-src" is still open/) }]);
+		expect((await ahead.json()).lines).toEqual([
+			{ line: 1, message: expect.stringMatching(/seq 1201 is above 1200: run "transfer-src" is still open/) }
+		]);
 	});
 
 	it('with ?progress=1 streams the checking and storing phases, then the outcome or the refusal', async () => {
@@ -179,7 +196,9 @@ describe('import', () => {
 		expect(events.at(-1).outcome).toMatchObject({ runKey: 'transfer-progress', created: true, stored: 1200 });
 
 		const bad = await postImport(operator, 'nope', undefined, '?progress=1');
-		const last = lines(await bad.text()).map((l) => JSON.parse(l)).at(-1);
+		const last = lines(await bad.text())
+			.map((l) => JSON.parse(l))
+			.at(-1);
 		expect(last.refused).toMatchObject({ status: 400, lines: [{ line: 1, message: expect.stringMatching(/not valid JSON/) }] });
 	});
 

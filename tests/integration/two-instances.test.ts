@@ -88,7 +88,10 @@ async function storedSeqs(databaseUrl: string, runId: string): Promise<Map<numbe
 	const client = new pg.Client({ connectionString: databaseUrl });
 	await client.connect();
 	try {
-		const { rows } = await client.query<{ seq: number; n: string }>('SELECT seq, count(*) AS n FROM frames WHERE run_id = $1 GROUP BY seq', [runId]);
+		const { rows } = await client.query<{ seq: number; n: string }>(
+			'SELECT seq, count(*) AS n FROM frames WHERE run_id = $1 GROUP BY seq',
+			[runId]
+		);
 		return new Map(rows.map((r) => [Number(r.seq), Number(r.n)]));
 	} finally {
 		await client.end();
@@ -181,7 +184,8 @@ describe.skipIf(!testPgUrl)(`two instances on one PostgreSQL server${testPgUrl ?
 		expect(await closedOnA).toBe(4002);
 
 		// The agent resends everything above lastSeq, as the real agent does, and goes on to 200.
-		for (let s = lastSeq + 1; s <= 200; s += 10) second.send({ type: 'frames', frames: range(s, Math.min(s + 9, 200)).map((q) => frame(q)) });
+		for (let s = lastSeq + 1; s <= 200; s += 10)
+			second.send({ type: 'frames', frames: range(s, Math.min(s + 9, 200)).map((q) => frame(q)) });
 		await second.waitFor((m) => m.type === 'ack' && m.seq === 200, 30_000);
 		await second.close();
 
@@ -201,7 +205,23 @@ describe.skipIf(!testPgUrl)(`two instances on one PostgreSQL server${testPgUrl ?
 		const spool = path.join(mkdtempSync(path.join(os.tmpdir(), 'phasewarden-spool-')), 'run.ndjson');
 		const agent = spawn(
 			path.join(root, 'node_modules/.bin/tsx'),
-			['agent/cli.ts', '--url', proxy.wsUrl, '--token', seeded.token, '--run-key', 'proxy-run', '--order', '3', '--states', '6', '--input', '-', '--spool', spool],
+			[
+				'agent/cli.ts',
+				'--url',
+				proxy.wsUrl,
+				'--token',
+				seeded.token,
+				'--run-key',
+				'proxy-run',
+				'--order',
+				'3',
+				'--states',
+				'6',
+				'--input',
+				'-',
+				'--spool',
+				spool
+			],
 			{ cwd: root, stdio: ['pipe', 'pipe', 'pipe'] }
 		);
 		cleanup.push(async () => agent.kill('SIGKILL'));

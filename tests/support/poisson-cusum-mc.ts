@@ -35,7 +35,10 @@ export function poissonInversionSampler(mu: number, random: () => number): () =>
 }
 
 /** Mean run length and its standard error over `runs` seeded runs from S = 0. */
-export function simulatePoissonCusumArl(o: { h: number; rho: number; mu: number; trueRatio?: number; runs: number; seed: number }): { mean: number; se: number } {
+export function simulatePoissonCusumArl(o: { h: number; rho: number; mu: number; trueRatio?: number; runs: number; seed: number }): {
+	mean: number;
+	se: number;
+} {
 	const sample = poissonInversionSampler((o.trueRatio ?? 1) * o.mu, uniformStream(o.seed));
 	const a = Math.log(o.rho);
 	const b = o.mu * (o.rho - 1);

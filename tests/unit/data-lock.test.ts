@@ -35,7 +35,11 @@ describe('lockDataDir across processes', () => {
 		expect(winners).toHaveLength(1);
 		for (const r of results.filter((r) => r !== winners[0])) {
 			// A process refused in the instant before the winner wrote its pid cannot name it yet.
-			expect([winners[0].proc.pid, '(unknown)'].map((holder) => `refused: the data directory ${dir} is in use by process ${holder}; stop that server first`)).toContain(r.line);
+			expect(
+				[winners[0].proc.pid, '(unknown)'].map(
+					(holder) => `refused: the data directory ${dir} is in use by process ${holder}; stop that server first`
+				)
+			).toContain(r.line);
 		}
 		expect(() => lockDataDir(dir)).toThrow(`the data directory ${dir} is in use by process ${winners[0].proc.pid}`);
 	}, 30_000);

@@ -15,7 +15,13 @@ export type AlertPrefs = {
 	notifyOnClear: boolean;
 };
 
-export const DEFAULT_ALERT_PREFS: AlertPrefs = { channels: [...PERSONAL_CHANNELS], severities: [...ALERT_SEVERITIES], quietStart: null, quietEnd: null, notifyOnClear: true };
+export const DEFAULT_ALERT_PREFS: AlertPrefs = {
+	channels: [...PERSONAL_CHANNELS],
+	severities: [...ALERT_SEVERITIES],
+	quietStart: null,
+	quietEnd: null,
+	notifyOnClear: true
+};
 
 const HHMM = /^([01]\d|2[0-3]):([0-5]\d)$/;
 

@@ -125,14 +125,20 @@ function onValue(ns: NameState, limit: AuxLimit, rule: AuxLimitRule, frame: Fram
 			evidence: { ...ruleEvidence(rule, limit), name: limit.name, side, count: limit.windows, values }
 		};
 	}
-	const side = ns.side ?? (outside(limit, value) ?? 'above');
+	const side = ns.side ?? outside(limit, value) ?? 'above';
 	if (!inside(limit, value)) {
 		ns.streak = 0;
 		ns.recent = [];
 		const further = ns.worst === null || (side === 'above' ? value > ns.worst.value : value < ns.worst.value);
 		if (!further) return null;
 		ns.worst = sample;
-		return { type: 'update', key: limit.name, at_ms: frame.t, seq: frame.seq, evidence: { ...ruleEvidence(rule, limit), name: limit.name, side, worst: sample } };
+		return {
+			type: 'update',
+			key: limit.name,
+			at_ms: frame.t,
+			seq: frame.seq,
+			evidence: { ...ruleEvidence(rule, limit), name: limit.name, side, worst: sample }
+		};
 	}
 	push(ns, sample);
 	if (ns.streak < limit.clearWindows) return null;

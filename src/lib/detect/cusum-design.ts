@@ -78,7 +78,15 @@ function decisionInterval(target: number, rho: number, mu: number): number {
 }
 
 export function designFor(band: number, windowsPerStep: number, inputs: DesignInputs): CusumDesign {
-	const key = [band, windowsPerStep, inputs.ratioUp, inputs.ratioDown, inputs.minExpectedPerStep, inputs.falseAlarmEvery_days, inputs.window_s].join('|');
+	const key = [
+		band,
+		windowsPerStep,
+		inputs.ratioUp,
+		inputs.ratioDown,
+		inputs.minExpectedPerStep,
+		inputs.falseAlarmEvery_days,
+		inputs.window_s
+	].join('|');
 	const known = memo.get(key);
 	if (known) return known;
 	const muStep = Math.min(MU_STEP_MAX, 2 ** (band / BANDS_PER_OCTAVE));

@@ -227,14 +227,12 @@ export class DetectorEngine {
 	}
 
 	/** One context per detector, reused for every call (replay feeds tens of thousands of frames). */
-	#contexts = detectors.map(
-		(d): DetectorContext<RuleKind> => ({
-			rule: undefined as never,
-			run: undefined as never,
-			expected: undefined,
-			isOpen: (key) => isOpen(this.#s.open, d.kind, key)
-		})
-	);
+	#contexts = detectors.map((d): DetectorContext<RuleKind> => ({
+		rule: undefined as never,
+		run: undefined as never,
+		expected: undefined,
+		isOpen: (key) => isOpen(this.#s.open, d.kind, key)
+	}));
 
 	#each(call: (d: AnyDetector, state: unknown, ctx: DetectorContext<RuleKind>) => Signal[], expected?: FrameExpectation): DetectorEvent[] {
 		const events: DetectorEvent[] = [];

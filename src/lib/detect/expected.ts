@@ -50,7 +50,9 @@ export type CompiledRates = {
 export function scaleFor(run: ParsedRunInfo, model: NonNullable<NonNullable<ParsedRunInfo['rateModels']>['escape']>): number {
 	const op = run.operatingPoint;
 	if (!model.reference || op?.detuning === undefined || op.damping === undefined || op.drive === undefined || op.drive === 0) return 1;
-	return operatingPointScale({ detuning: op.detuning, damping: op.damping, drive: op.drive }) / operatingPointScale(model.reference, 'reference');
+	return (
+		operatingPointScale({ detuning: op.detuning, damping: op.damping, drive: op.drive }) / operatingPointScale(model.reference, 'reference')
+	);
 }
 
 export function compileRates(run: ParsedRunInfo): CompiledRates {

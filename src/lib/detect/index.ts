@@ -11,7 +11,14 @@ export { switchingBurst, type SwitchingBurstState } from './switching-burst';
 export { rateDrift, ratioEstimate, type RateDriftState, type RatioEstimate } from './rate-drift';
 export { occupancyImbalance, isSymmetric, type OccupancyImbalanceState } from './occupancy-imbalance';
 export { auxLimit, AUX_EVIDENCE_WINDOWS, type AuxLimitState } from './aux-limit';
-export { expectFrame, compileRates, measuredTemperature, TEMPERATURE_AUX, type FrameExpectation, type ProcessExpectation } from './expected';
+export {
+	expectFrame,
+	compileRates,
+	measuredTemperature,
+	TEMPERATURE_AUX,
+	type FrameExpectation,
+	type ProcessExpectation
+} from './expected';
 export { windowAlpha, budgetWindows } from './budget';
 export {
 	detectorStatus,

@@ -32,7 +32,10 @@ export type BatchMeansTest = {
  * counts: batches × K shot counts (one row per batch). vectors: K − 1 orthonormal directions
  * orthogonal to the constant vector. Returns null when fewer than two batches hold shots.
  */
-export function batchMeansOccupancy(counts: readonly (readonly number[])[], vectors: readonly (readonly number[])[]): BatchMeansTest | null {
+export function batchMeansOccupancy(
+	counts: readonly (readonly number[])[],
+	vectors: readonly (readonly number[])[]
+): BatchMeansTest | null {
 	const K = counts[0]?.length ?? 0;
 	const batches: number[][] = [];
 	const total = new Array<number>(K).fill(0);

@@ -75,7 +75,6 @@ function ruleEvidence(rule: OccupancyImbalanceRule): Evidence {
 	};
 }
 
-
 export const occupancyImbalance: Detector<'occupancy_imbalance', OccupancyImbalanceState> = {
 	kind: 'occupancy_imbalance',
 	stateSchema: occupancyStateSchema,
@@ -144,7 +143,13 @@ type HorizonTest = TransitionsTest | BatchMeansTest;
  * horizon itself (occupancy-batch.ts), once the horizon is full. Null when there is nothing to test.
  * `exact` computes the tail even where the decision does not need it (for evidence).
  */
-function horizonOccupancy(state: OccupancyImbalanceState, h: Sliding, K: number, rule: OccupancyImbalanceRule, exact: boolean): HorizonTest | null {
+function horizonOccupancy(
+	state: OccupancyImbalanceState,
+	h: Sliding,
+	K: number,
+	rule: OccupancyImbalanceRule,
+	exact: boolean
+): HorizonTest | null {
 	const withTransitions = h.sums[K + 4];
 	if (withTransitions === h.len && state.pairSums) {
 		const stat = occupancyStatisticFromModes(h.sums.slice(0, K), observedModes(K, state.pairSums), h.sums[K + 1], exact, true);

@@ -174,7 +174,8 @@ export function occupancyStatistic(
  */
 export function observedModes(states: number, transitions: ArrayLike<number>): SampledModes {
 	const K = states;
-	if (transitions.length !== K * K) throw new RangeError(`observedModes: transitions must have ${K * K} entries (K×K), got ${transitions.length}`);
+	if (transitions.length !== K * K)
+		throw new RangeError(`observedModes: transitions must have ${K * K} entries (K×K), got ${transitions.length}`);
 	const L = Array.from({ length: K }, () => new Array<number>(K).fill(0));
 	let maxDegree = 0;
 	for (let i = 0; i < K; i++) {

@@ -15,7 +15,6 @@ export function budgetShare(rule: RateDriftRule, run: DetectorContext<'rate_drif
 	return Math.max(1, rule.processes.filter((p) => run.rateModels?.[p]).length);
 }
 
-
 /** [lo, hi] bounding ln(true/predicted) at x: the model's band while learning, then the baseline's (file comment). */
 export function referenceInterval(b: Baseline, u: ModelUncertainty, x: number): [number, number] {
 	const band = lnBandHalfWidth(u, x);
@@ -32,7 +31,15 @@ export function referenceInterval(b: Baseline, u: ModelUncertainty, x: number): 
 }
 
 /** Adds one window to the baseline; once baseline_h hours are in, sets it. Returns whether it was set outside the model's band. */
-export function learn(b: Baseline, u: ModelUncertainty, frame: Frame, count: number, chart: number, x: number, baseline_h: number): boolean {
+export function learn(
+	b: Baseline,
+	u: ModelUncertainty,
+	frame: Frame,
+	count: number,
+	chart: number,
+	x: number,
+	baseline_h: number
+): boolean {
 	b.learned_s += frame.window_s;
 	b.count += count;
 	b.expected += chart;
@@ -55,7 +62,13 @@ export function learn(b: Baseline, u: ModelUncertainty, frame: Frame, count: num
 }
 
 /** What the chart compared with over the span: the model's band or the run's baseline. */
-export function referenceEvidence(ps: ProcessState, p: RateProcess, since: Span, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): { [key: string]: JsonValue } {
+export function referenceEvidence(
+	ps: ProcessState,
+	p: RateProcess,
+	since: Span,
+	rule: RateDriftRule,
+	ctx: DetectorContext<'rate_drift'>
+): { [key: string]: JsonValue } {
 	const chart = chartExpected(rule, since);
 	const b = ps.baseline ?? freshBaseline();
 	const u = modelUncertainty(ctx.run, p);

@@ -7,7 +7,20 @@ import type { Evidence, JsonValue } from './events';
 import { compileRates, type RateProcess } from './expected';
 import { referenceEvidence } from './rate-drift-baseline';
 import { chartExpected, ratioEstimate, type RatioEstimate } from './rate-drift-span';
-import { H_COUNT, H_DOWN, H_EXPECTED, H_EXPOSURE, H_MEASURED, H_NOMINAL, H_SEQ, H_T_MS, H_T_SUM, H_UP, type ProcessState, type Span } from './rate-drift-state';
+import {
+	H_COUNT,
+	H_DOWN,
+	H_EXPECTED,
+	H_EXPOSURE,
+	H_MEASURED,
+	H_NOMINAL,
+	H_SEQ,
+	H_T_MS,
+	H_T_SUM,
+	H_UP,
+	type ProcessState,
+	type Span
+} from './rate-drift-state';
 import { finiteOrNull, fmt, rateModelEvidence } from './rate-evidence';
 import type { RateDriftRule } from './rules';
 import { oldest, type Sliding, valueAt } from './sliding';
@@ -28,7 +41,13 @@ export function ruleEvidence(rule: RateDriftRule): Evidence {
 }
 
 function horizonSpan(h: Sliding): { [key: string]: JsonValue } {
-	return { fromSeq: oldest(h, H_SEQ), toSeq: valueAt(h, h.len - 1, H_SEQ), from_ms: oldest(h, H_T_MS), to_ms: valueAt(h, h.len - 1, H_T_MS), windows: h.len };
+	return {
+		fromSeq: oldest(h, H_SEQ),
+		toSeq: valueAt(h, h.len - 1, H_SEQ),
+		from_ms: oldest(h, H_T_MS),
+		to_ms: valueAt(h, h.len - 1, H_T_MS),
+		windows: h.len
+	};
 }
 
 export function horizonEvidence(h: Sliding, confidence: number): { [key: string]: JsonValue } {
@@ -66,7 +85,13 @@ export function horizonEvidence(h: Sliding, confidence: number): { [key: string]
  * constant at the temperatures where the rate still agreed, which the span alone would leave to
  * extrapolation. Windows without a measured temperature are left out of the fit.
  */
-function temperatureFit(h: Sliding, since: Span, p: RateProcess, rule: RateDriftRule, ctx: DetectorContext<'rate_drift'>): TemperatureAttribution {
+function temperatureFit(
+	h: Sliding,
+	since: Span,
+	p: RateProcess,
+	rule: RateDriftRule,
+	ctx: DetectorContext<'rate_drift'>
+): TemperatureAttribution {
 	const model = compileRates(ctx.run)[p];
 	const windows = [];
 	for (let i = 0; i < h.len; i++) {
@@ -92,7 +117,13 @@ function temperatureFit(h: Sliding, since: Span, p: RateProcess, rule: RateDrift
  * The evidence of an opening (or a reversal), with the temperature fit over the span since the
  * signalling statistic last left zero (the windows the chart's evidence comes from).
  */
-export function driftEvidence(ps: ProcessState, p: RateProcess, side: 'up' | 'down', d: CusumDesign, ctx: DetectorContext<'rate_drift'>): Evidence {
+export function driftEvidence(
+	ps: ProcessState,
+	p: RateProcess,
+	side: 'up' | 'down',
+	d: CusumDesign,
+	ctx: DetectorContext<'rate_drift'>
+): Evidence {
 	const { rule, run } = ctx;
 	const h = ps.horizon!;
 	const since = (side === 'up' ? ps.up : ps.down).since!;
@@ -164,8 +195,14 @@ function explain(
 	}
 	const meanT = `${fmt(meanT_mK)} mK`;
 	const seen = `${over[0].toUpperCase()}${over.slice(1)} the ${what} is ${range(r)} × the chart's prediction (mean temperature ${meanT}, nominal ${nominal}).`;
-	const share = fit.temperatureShare === null ? '' : `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the chart's prediction`;
-	const residual = fit.residualRatio === null ? '' : `a constant factor of ${fmt(fit.residualRatio)} (${interval(fit.residualInterval)}) remains at the nominal temperature`;
+	const share =
+		fit.temperatureShare === null
+			? ''
+			: `the temperature term carries ${fmt(100 * fit.temperatureShare)} % (${interval(fit.temperatureShareInterval && [100 * fit.temperatureShareInterval[0], 100 * fit.temperatureShareInterval[1]])} %) of the log excess over the chart's prediction`;
+	const residual =
+		fit.residualRatio === null
+			? ''
+			: `a constant factor of ${fmt(fit.residualRatio)} (${interval(fit.residualInterval)}) remains at the nominal temperature`;
 	const fitted = `a Poisson fit of the ${fit.windowsFitted} windows with a measured temperature on 1/(2n̄+1)`;
 	switch (fit.reason) {
 		case 'temperature_carries_it':

@@ -8,7 +8,20 @@ import { finiteOrNull } from './rate-evidence';
 import type { RateDriftRule } from './rules';
 
 export function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T: number | null, up: number, down: number): Span {
-	const s = span ?? { count: 0, expected: 0, expectedNominal: 0, T_sum: 0, measured: 0, windows: 0, expectedUp: 0, expectedDown: 0, fromSeq: frame.seq, from_ms: frame.t, toSeq: frame.seq, to_ms: frame.t };
+	const s = span ?? {
+		count: 0,
+		expected: 0,
+		expectedNominal: 0,
+		T_sum: 0,
+		measured: 0,
+		windows: 0,
+		expectedUp: 0,
+		expectedDown: 0,
+		fromSeq: frame.seq,
+		from_ms: frame.t,
+		toSeq: frame.seq,
+		to_ms: frame.t
+	};
 	// A block restored from a snapshot from before the band has its windows at the prediction.
 	s.expectedUp = (s.expectedUp ?? s.expected) + up;
 	s.expectedDown = (s.expectedDown ?? s.expected) + down;
@@ -26,7 +39,8 @@ export function extend(span: Span | null, frame: Frame, e: ProcessExpectation, T
 }
 
 /** What the chart compares with: the temperature-following or the nominal prediction. */
-export const chartExpected = (rule: RateDriftRule, span: Span) => (rule.prediction === 'temperature' ? span.expected : span.expectedNominal);
+export const chartExpected = (rule: RateDriftRule, span: Span) =>
+	rule.prediction === 'temperature' ? span.expected : span.expectedNominal;
 export const upperExpected = (rule: RateDriftRule, span: Span) => span.expectedUp ?? chartExpected(rule, span);
 export const lowerExpected = (rule: RateDriftRule, span: Span) => span.expectedDown ?? chartExpected(rule, span);
 
@@ -53,7 +67,13 @@ export function join(a: Span | null, b: Span): Span {
 	};
 }
 
-export type RatioEstimate = { estimate: number | null; lower: number | null; upper: number | null; confidence: number; significant: boolean };
+export type RatioEstimate = {
+	estimate: number | null;
+	lower: number | null;
+	upper: number | null;
+	confidence: number;
+	significant: boolean;
+};
 
 /**
  * Observed/predicted ratio with the exact (Garwood) interval of the observed Poisson count divided

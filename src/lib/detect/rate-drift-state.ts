@@ -107,7 +107,15 @@ export const freshBaseline = (): Baseline => ({
 	lnHi: null,
 	mismatch: false
 });
-export const freshProcess = (): ProcessState => ({ baseline: freshBaseline(), up: freshSide(), down: freshSide(), block: null, horizon: null, openSide: null, steps: 0 });
+export const freshProcess = (): ProcessState => ({
+	baseline: freshBaseline(),
+	up: freshSide(),
+	down: freshSide(),
+	block: null,
+	horizon: null,
+	openSide: null,
+	steps: 0
+});
 
 /** The key of the "operating point does not match its rate model" finding. */
 export const mismatchKey = (p: RateProcess) => `${p}:model`;

@@ -52,7 +52,25 @@ import { activationX, BAND_SIGMAS, type ModelUncertainty, modelUncertainty } fro
 import { baselineEvidence, budgetShare, learn, referenceInterval, uncertaintyEvidence } from './rate-drift-baseline';
 import { driftEvidence, horizonEvidence, range, ruleEvidence, summaryOf } from './rate-drift-evidence';
 import { chartExpected, extend, join, lowerExpected, ratioEstimate, upperExpected } from './rate-drift-span';
-import { type Baseline, freshBaseline, freshProcess, freshSide, H_COUNT, H_DOWN, H_EXPECTED, H_NOMINAL, H_SUMMED, H_UP, H_WIDTH, mismatchKey, type ProcessState, type RateDriftState, rateDriftStateSchema, type Side, type Span } from './rate-drift-state';
+import {
+	type Baseline,
+	freshBaseline,
+	freshProcess,
+	freshSide,
+	H_COUNT,
+	H_DOWN,
+	H_EXPECTED,
+	H_NOMINAL,
+	H_SUMMED,
+	H_UP,
+	H_WIDTH,
+	mismatchKey,
+	type ProcessState,
+	type RateDriftState,
+	rateDriftStateSchema,
+	type Side,
+	type Span
+} from './rate-drift-state';
 import { fmt, rateModelEvidence } from './rate-evidence';
 import type { RateDriftRule } from './rules';
 import { createSliding, pushRow } from './sliding';
@@ -123,7 +141,8 @@ export const rateDrift: Detector<'rate_drift', RateDriftState> = {
 			// A baseline learned against the other prediction does not apply to this one.
 			if (previous.prediction !== next.prediction) ps.baseline = freshBaseline();
 			// Turning the baseline off while learning drops what was learned: a later one starts afresh.
-			if (previous.baseline_h !== next.baseline_h && ps.baseline?.phase === 'learning' && next.baseline_h === 0) ps.baseline = freshBaseline();
+			if (previous.baseline_h !== next.baseline_h && ps.baseline?.phase === 'learning' && next.baseline_h === 0)
+				ps.baseline = freshBaseline();
 			if (previous.horizonWindows !== next.horizonWindows) ps.horizon = null;
 		}
 		if (redesign) state.designs = {};
@@ -173,8 +192,20 @@ function onWindow(
 	const up = chart * Math.exp(hi);
 	const down = chart * Math.exp(lo);
 
-	if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== H_WIDTH) ps.horizon = createSliding(rule.horizonWindows, H_WIDTH, H_SUMMED);
-	pushRow(ps.horizon, [e.count, e.expected, e.expectedNominal, T.measured ? T.T_mK : 0, T.measured ? 1 : 0, e.exposure_s, up, down, frame.seq, frame.t]);
+	if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== H_WIDTH)
+		ps.horizon = createSliding(rule.horizonWindows, H_WIDTH, H_SUMMED);
+	pushRow(ps.horizon, [
+		e.count,
+		e.expected,
+		e.expectedNominal,
+		T.measured ? T.T_mK : 0,
+		T.measured ? 1 : 0,
+		e.exposure_s,
+		up,
+		down,
+		frame.seq,
+		frame.t
+	]);
 
 	ps.block = extend(ps.block, frame, e, T.measured ? T.T_mK : null, up, down);
 	const block = ps.block;
@@ -202,7 +233,6 @@ function onWindow(
 	return signals;
 }
 
-
 function mismatchSignal(
 	p: RateProcess,
 	b: Baseline,
@@ -222,7 +252,15 @@ function mismatchSignal(
 			at_ms: frame.t,
 			seq: frame.seq,
 			summary: early.summary,
-			evidence: { ...ruleEvidence(ctx.rule), process: p, found: 'chart', ...early.evidence, baseline: ev, uncertainty: uncertaintyEvidence(u), rateModel: rateModelEvidence(ctx.run, p) }
+			evidence: {
+				...ruleEvidence(ctx.rule),
+				process: p,
+				found: 'chart',
+				...early.evidence,
+				baseline: ev,
+				uncertainty: uncertaintyEvidence(u),
+				rateModel: rateModelEvidence(ctx.run, p)
+			}
 		};
 	}
 	return {
@@ -232,7 +270,14 @@ function mismatchSignal(
 		at_ms: frame.t,
 		seq: frame.seq,
 		summary: `This operating point does not match its ${what} rate model: over the first ${hours} h the rate was ${fmt(Number(ev.ratio))} × the prediction (${fmt(Number(ev.ratioLower))}–${fmt(Number(ev.ratioUpper))}), outside the model's ${BAND_SIGMAS}σ band ${fmt(Number(ev.modelBandLower))}–${fmt(Number(ev.modelBandUpper))}; drift is judged against this run's own rate from now on`,
-		evidence: { ...ruleEvidence(ctx.rule), process: p, found: 'baseline', baseline: ev, uncertainty: uncertaintyEvidence(u), rateModel: rateModelEvidence(ctx.run, p) }
+		evidence: {
+			...ruleEvidence(ctx.rule),
+			process: p,
+			found: 'baseline',
+			baseline: ev,
+			uncertainty: uncertaintyEvidence(u),
+			rateModel: rateModelEvidence(ctx.run, p)
+		}
 	};
 }
 
@@ -242,7 +287,10 @@ function clearMismatch(p: RateProcess, at_ms: number, ctx: DetectorContext<'rate
 		key: mismatchKey(p),
 		at_ms,
 		...(seq === undefined ? {} : { seq }),
-		summary: reason === 'rate_model_changed' ? `The ${p} rate model changed; its match is judged again over the next baseline` : `The rule no longer watches the ${p} rate`,
+		summary:
+			reason === 'rate_model_changed'
+				? `The ${p} rate model changed; its match is judged again over the next baseline`
+				: `The rule no longer watches the ${p} rate`,
 		evidence: { ...ruleEvidence(ctx.rule), process: p, reason }
 	};
 }
@@ -252,7 +300,14 @@ function clearMismatch(p: RateProcess, at_ms: number, ctx: DetectorContext<'rate
  * the budget is counted in windows of the step's length (window_s may change mid-run) and shared
  * between the processes the rule watches.
  */
-function designSide(state: RateDriftState, rule: RateDriftRule, muStep: number, windowsPerStep: number, share: number, window_s: number): CusumDesign {
+function designSide(
+	state: RateDriftState,
+	rule: RateDriftRule,
+	muStep: number,
+	windowsPerStep: number,
+	share: number,
+	window_s: number
+): CusumDesign {
 	const inputs = designInputs(rule, window_s, share);
 	return designAt(muStep, windowsPerStep, inputs, (band) => {
 		const key = `${designKey(band, windowsPerStep, window_s)}:${share}`;
@@ -261,7 +316,13 @@ function designSide(state: RateDriftState, rule: RateDriftRule, muStep: number, 
 }
 
 /** Each side's h comes from the band of its own reference count. */
-function designOf(state: RateDriftState, rule: RateDriftRule, block: Span, run: DetectorContext<'rate_drift'>['run'], window_s: number): CusumDesign {
+function designOf(
+	state: RateDriftState,
+	rule: RateDriftRule,
+	block: Span,
+	run: DetectorContext<'rate_drift'>['run'],
+	window_s: number
+): CusumDesign {
 	const share = budgetShare(rule, run);
 	const up = designSide(state, rule, upperExpected(rule, block), block.windows, share, window_s);
 	const down = designSide(state, rule, lowerExpected(rule, block), block.windows, share, window_s);
@@ -273,7 +334,14 @@ function advance(side: Side, S: number, block: Span): void {
 	side.since = S === 0 ? null : join(side.since, block);
 }
 
-function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Span, frame: Frame, ctx: DetectorContext<'rate_drift'>): Signal | null {
+function step(
+	state: RateDriftState,
+	ps: ProcessState,
+	p: RateProcess,
+	block: Span,
+	frame: Frame,
+	ctx: DetectorContext<'rate_drift'>
+): Signal | null {
 	const { rule } = ctx;
 	const d = designOf(state, rule, block, ctx.run, frame.window_s);
 	ps.steps += 1;
@@ -296,7 +364,19 @@ function step(state: RateDriftState, ps: ProcessState, p: RateProcess, block: Sp
 		const r = ratioEstimate(since.count, chartExpected(rule, since), rule.confidence);
 		return mismatchSignal(p, baseline, modelUncertainty(ctx.run, p)!, frame, ctx, {
 			summary: `So far this operating point does not match its ${p} rate model: the rate is ${range(r)} × the prediction over ${since.windows} windows, beyond the model's ${BAND_SIGMAS}σ band (CUSUM ${fmt(statistic)} ≥ h = ${fmt(side === 'up' ? d.hUp : d.hDown)}); the run's own baseline is still being learned`,
-			evidence: { direction: side, statistic, decisionInterval: side === 'up' ? d.hUp : d.hDown, ratio: { ...r }, sinceChange: { fromSeq: since.fromSeq, toSeq: since.toSeq, windows: since.windows, observed: since.count, expected: chartExpected(rule, since) } }
+			evidence: {
+				direction: side,
+				statistic,
+				decisionInterval: side === 'up' ? d.hUp : d.hDown,
+				ratio: { ...r },
+				sinceChange: {
+					fromSeq: since.fromSeq,
+					toSeq: since.toSeq,
+					windows: since.windows,
+					observed: since.count,
+					expected: chartExpected(rule, since)
+				}
+			}
 		});
 	}
 

@@ -198,7 +198,10 @@ export type ReplayComparison = {
  * [opened, cleared] (an interval without a clear runs to the end). Each incident matches at most
  * once, earliest first, so the result does not depend on the order the lists come in.
  */
-export function compareReplay(actual: readonly ActualIncident[], replayEvents: readonly DetectorEvent[] | readonly ReplayIncident[]): ReplayComparison {
+export function compareReplay(
+	actual: readonly ActualIncident[],
+	replayEvents: readonly DetectorEvent[] | readonly ReplayIncident[]
+): ReplayComparison {
 	const replay = isIncidentList(replayEvents) ? [...replayEvents] : replayIncidents(replayEvents as readonly DetectorEvent[]);
 	const byTime = <T extends { openedAt_ms: number }>(list: readonly T[]) => [...list].sort((a, b) => a.openedAt_ms - b.openedAt_ms);
 	const actualSorted = byTime(actual);
@@ -209,7 +212,12 @@ export function compareReplay(actual: readonly ActualIncident[], replayEvents: r
 	for (const a of actualSorted) {
 		const aEnd = a.clearedAt_ms ?? Infinity;
 		const match = replaySorted.find(
-			(r) => !used.has(r) && r.kind === a.kind && r.key === (a.key ?? '') && r.openedAt_ms <= aEnd && a.openedAt_ms <= (r.clearedAt_ms ?? Infinity)
+			(r) =>
+				!used.has(r) &&
+				r.kind === a.kind &&
+				r.key === (a.key ?? '') &&
+				r.openedAt_ms <= aEnd &&
+				a.openedAt_ms <= (r.clearedAt_ms ?? Infinity)
 		);
 		if (match) {
 			used.add(match);
@@ -224,4 +232,3 @@ export function compareReplay(actual: readonly ActualIncident[], replayEvents: r
 function isIncidentList(list: readonly DetectorEvent[] | readonly ReplayIncident[]): list is readonly ReplayIncident[] {
 	return list.length > 0 && 'openedAt_ms' in list[0];
 }
-

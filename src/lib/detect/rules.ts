@@ -44,7 +44,11 @@ export const lockLostRuleSchema = z
 export const agentSilentRuleSchema = z.strictObject({
 	...ruleBase,
 	/** Seconds of server clock without a frame, while the run is open, before the incident opens. */
-	after_s: z.number().positive().max(7 * 86_400).default(60)
+	after_s: z
+		.number()
+		.positive()
+		.max(7 * 86_400)
+		.default(60)
 });
 
 export const switchingBurstRuleSchema = z.strictObject({
@@ -66,50 +70,49 @@ export const switchingBurstRuleSchema = z.strictObject({
 	clearWindows: windowCount.default(30)
 });
 
-export const rateDriftRuleSchema = z
-	.strictObject({
-		...ruleBase,
-		/** In-control average run length of the two-sided chart, in days of frames. */
-		falseAlarmEvery_days,
-		/** Rate ratio the upper CUSUM is tuned to detect (> 1). */
-		ratioUp: z.number().gt(1, 'must be greater than 1').max(100).default(2),
-		/** Rate ratio the lower CUSUM is tuned to detect (between 0 and 1). */
-		ratioDown: z.number().gt(0, 'must lie strictly between 0 and 1').lt(1, 'must lie strictly between 0 and 1').default(0.5),
-		/**
-		 * Windows are pooled into one CUSUM step until their predicted count reaches this, so that
-		 * slow rates still give steps whose run length the Markov-chain design describes well.
-		 */
-		minExpectedPerStep: z.number().min(0.05).max(20).default(0.5),
-		/** Recent windows over which the incident reports the observed/predicted ratio, and clears. */
-		horizonWindows: windowCount.default(300),
-		/** Two-sided confidence of the exact ratio intervals in the evidence. */
-		confidence: openProbability.default(0.95),
-		/**
-		 * 'temperature': the chart compares with the prediction at each window's mixing-chamber
-		 * temperature, so a warmer fridge alone does not open it (aux_limit watches the fridge).
-		 * 'nominal': it compares with the prediction at the nominal temperature, so a temperature
-		 * excursion opens it too. Either way the evidence's temperature fit says whether the measured
-		 * temperature explains the excess (temperature-attribution.ts).
-		 */
-		prediction: z.enum(['temperature', 'nominal']).default('temperature'),
-		/**
-		 * Hours of the run's first windows from which its own baseline rate is learned. Until then
-		 * the chart compares with the edges of the rate model's 2σ band and a rate beyond it is an
-		 * info finding (the operating point does not match its model), not a page; after it the
-		 * chart compares with the baseline, within its own uncertainty. 0: never learn, compare with
-		 * the model's band for the whole run and page on it.
-		 */
-		baseline_h: z.number().min(0, 'must not be negative').max(168, 'must be at most 168 hours (a week)').default(2),
-		/**
-		 * Rates the chart watches, each with its own incident (key = the process). They share the
-		 * rule's budget: each chart's run length is the budget × the number watched (Bonferroni).
-		 */
-		processes: z
-			.array(z.enum(['switching', 'escape']))
-			.min(1, 'must name at least one process')
-			.refine((p) => new Set(p).size === p.length, 'must not repeat a process')
-			.default(['switching'])
-	});
+export const rateDriftRuleSchema = z.strictObject({
+	...ruleBase,
+	/** In-control average run length of the two-sided chart, in days of frames. */
+	falseAlarmEvery_days,
+	/** Rate ratio the upper CUSUM is tuned to detect (> 1). */
+	ratioUp: z.number().gt(1, 'must be greater than 1').max(100).default(2),
+	/** Rate ratio the lower CUSUM is tuned to detect (between 0 and 1). */
+	ratioDown: z.number().gt(0, 'must lie strictly between 0 and 1').lt(1, 'must lie strictly between 0 and 1').default(0.5),
+	/**
+	 * Windows are pooled into one CUSUM step until their predicted count reaches this, so that
+	 * slow rates still give steps whose run length the Markov-chain design describes well.
+	 */
+	minExpectedPerStep: z.number().min(0.05).max(20).default(0.5),
+	/** Recent windows over which the incident reports the observed/predicted ratio, and clears. */
+	horizonWindows: windowCount.default(300),
+	/** Two-sided confidence of the exact ratio intervals in the evidence. */
+	confidence: openProbability.default(0.95),
+	/**
+	 * 'temperature': the chart compares with the prediction at each window's mixing-chamber
+	 * temperature, so a warmer fridge alone does not open it (aux_limit watches the fridge).
+	 * 'nominal': it compares with the prediction at the nominal temperature, so a temperature
+	 * excursion opens it too. Either way the evidence's temperature fit says whether the measured
+	 * temperature explains the excess (temperature-attribution.ts).
+	 */
+	prediction: z.enum(['temperature', 'nominal']).default('temperature'),
+	/**
+	 * Hours of the run's first windows from which its own baseline rate is learned. Until then
+	 * the chart compares with the edges of the rate model's 2σ band and a rate beyond it is an
+	 * info finding (the operating point does not match its model), not a page; after it the
+	 * chart compares with the baseline, within its own uncertainty. 0: never learn, compare with
+	 * the model's band for the whole run and page on it.
+	 */
+	baseline_h: z.number().min(0, 'must not be negative').max(168, 'must be at most 168 hours (a week)').default(2),
+	/**
+	 * Rates the chart watches, each with its own incident (key = the process). They share the
+	 * rule's budget: each chart's run length is the budget × the number watched (Bonferroni).
+	 */
+	processes: z
+		.array(z.enum(['switching', 'escape']))
+		.min(1, 'must name at least one process')
+		.refine((p) => new Set(p).size === p.length, 'must not repeat a process')
+		.default(['switching'])
+});
 
 const stateIndex = z.number().int('must be a whole state index').min(0).max(63);
 const statePair = z.tuple([stateIndex, stateIndex]).refine(([i, j]) => i !== j, 'a pair must join two different states');

@@ -14,7 +14,14 @@ import type { DetectorRules, RuleKind } from './rules';
 import { KIND_LABELS } from '../incidents/kinds';
 
 /** The fixed detector order, the same as the engine's. */
-export const DETECTOR_KINDS: readonly RuleKind[] = ['lock_lost', 'agent_silent', 'switching_burst', 'rate_drift', 'occupancy_imbalance', 'aux_limit'];
+export const DETECTOR_KINDS: readonly RuleKind[] = [
+	'lock_lost',
+	'agent_silent',
+	'switching_burst',
+	'rate_drift',
+	'occupancy_imbalance',
+	'aux_limit'
+];
 
 /** The rules' titles: the kinds' labels ($lib/incidents/kinds), the aux rule in the plural as it holds several limits. */
 export const DETECTOR_TITLES: Record<RuleKind, string> = { ...KIND_LABELS, aux_limit: 'Aux limits' };
@@ -89,7 +96,8 @@ export type StatusOptions = {
 
 // ---- defensive reads of detector state -------------------------------------------------------
 
-const rec = (x: unknown): Record<string, unknown> | null => (x !== null && typeof x === 'object' && !Array.isArray(x) ? (x as Record<string, unknown>) : null);
+const rec = (x: unknown): Record<string, unknown> | null =>
+	x !== null && typeof x === 'object' && !Array.isArray(x) ? (x as Record<string, unknown>) : null;
 const num = (x: unknown): number | null => (typeof x === 'number' && Number.isFinite(x) ? x : null);
 const numArray = (x: unknown): number[] | null => (Array.isArray(x) && x.every((v) => typeof v === 'number') ? (x as number[]) : null);
 
@@ -198,7 +206,10 @@ function configNotes(kind: RuleKind, rules: DetectorRules, run: StatusRun): Stat
 	if (kind === 'occupancy_imbalance') {
 		const rule = rules.occupancy_imbalance;
 		if (rule.symmetric === false) {
-			notes.push({ code: 'states_test_off', text: 'States are set as not symmetric: only the unexpected-pairs test runs (needs frames with transitions).' });
+			notes.push({
+				code: 'states_test_off',
+				text: 'States are set as not symmetric: only the unexpected-pairs test runs (needs frames with transitions).'
+			});
 		}
 	}
 	return notes;
@@ -255,7 +266,12 @@ function temperatureNote(run: StatusRun, processes: RateProcess[], options: Stat
 	};
 }
 
-function switchingBurstStatus(engine: EngineView, state: Record<string, unknown> | null, notes: StatusNote[], options: StatusOptions): DetectorStatus {
+function switchingBurstStatus(
+	engine: EngineView,
+	state: Record<string, unknown> | null,
+	notes: StatusNote[],
+	options: StatusOptions
+): DetectorStatus {
 	const { rules, run } = engine;
 	const rule = rules.switching_burst;
 	const { modelled } = rateProcesses('switching_burst', rules, run);
@@ -278,7 +294,12 @@ function switchingBurstStatus(engine: EngineView, state: Record<string, unknown>
 	return active('switching_burst', notes, detail);
 }
 
-function rateDriftStatus(engine: EngineView, state: Record<string, unknown> | null, notes: StatusNote[], options: StatusOptions): DetectorStatus {
+function rateDriftStatus(
+	engine: EngineView,
+	state: Record<string, unknown> | null,
+	notes: StatusNote[],
+	options: StatusOptions
+): DetectorStatus {
 	const { rules, run } = engine;
 	const { modelled } = rateProcesses('rate_drift', rules, run);
 	const T = temperatureNote(run, modelled, options);
@@ -310,7 +331,8 @@ function occupancyStatus(engine: EngineView, state: Record<string, unknown> | nu
 	// The layout occupancy-imbalance.ts writes: K counts, switches, escapes, unexpected, pair switches,
 	// windows that carried transitions, then seq and t.
 	if (!h || h.width !== K + 7 || h.sums.length < K + 5) {
-		if (state && state.horizon === null) return inactive('occupancy_imbalance', 'no_frames', `Waiting for the first frame with ${K} state counts.`);
+		if (state && state.horizon === null)
+			return inactive('occupancy_imbalance', 'no_frames', `Waiting for the first frame with ${K} state counts.`);
 		return active('occupancy_imbalance', notes);
 	}
 	const switches = h.sums[K] + h.sums[K + 1];
@@ -339,9 +361,17 @@ function occupancyStatus(engine: EngineView, state: Record<string, unknown> | nu
 			: `${plural(pairSwitches, 'switch', 'switches')} with a known pair ${over}: the unexpected-pairs test needs ${minPairSwitches ?? 1}.`;
 	if (!statesRuns && !pairsRuns) {
 		if (!symmetric) {
-			return inactive('occupancy_imbalance', 'not_symmetric', `The states are not symmetric here, so equal occupancy is not expected. ${pairsWhy}`, detail);
+			return inactive(
+				'occupancy_imbalance',
+				'not_symmetric',
+				`The states are not symmetric here, so equal occupancy is not expected. ${pairsWhy}`,
+				detail
+			);
 		}
-		return inactive('occupancy_imbalance', 'too_few_switches', `Too few switches: ${tooFew}`, { ...detail, needed: minSwitches! - switches });
+		return inactive('occupancy_imbalance', 'too_few_switches', `Too few switches: ${tooFew}`, {
+			...detail,
+			needed: minSwitches! - switches
+		});
 	}
 	if (!statesRuns) {
 		notes.push(
@@ -362,7 +392,10 @@ function auxStatus(engine: EngineView, notes: StatusNote[], options: StatusOptio
 	const aux = frame.aux ?? {};
 	const absent = names.filter((n) => typeof aux[n] !== 'number');
 	if (absent.length === names.length) {
-		return inactive('aux_limit', 'aux_absent', `The latest frame carries none of the watched aux values (${names.join(', ')}).`, { watched: names, absent });
+		return inactive('aux_limit', 'aux_absent', `The latest frame carries none of the watched aux values (${names.join(', ')}).`, {
+			watched: names,
+			absent
+		});
 	}
 	if (absent.length) notes.push({ code: 'aux_partly_absent', text: `The latest frame does not carry ${absent.join(', ')}.` });
 	return active('aux_limit', notes, { watched: names, absent });

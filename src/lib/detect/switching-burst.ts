@@ -166,7 +166,8 @@ export const switchingBurst: Detector<'switching_burst', SwitchingBurstState> = 
 				pValue: tail(e.count, tested, exact)
 			});
 			if (rule.horizonWindows >= 2) {
-				if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== WIDTH) ps.horizon = createSliding(rule.horizonWindows, WIDTH, SUMMED);
+				if (!ps.horizon || ps.horizon.size !== rule.horizonWindows || ps.horizon.width !== WIDTH)
+					ps.horizon = createSliding(rule.horizonWindows, WIDTH, SUMMED);
 				const h = ps.horizon;
 				pushRow(h, [e.count, e.expected, tested, e.exposure_s, frame.seq, frame.t]);
 				if (h.len >= 2) {
@@ -257,7 +258,8 @@ function judge(
 		ps.quiet = 0;
 		ps.worstP = worst.pValue;
 		ps.windowsOpen = 0;
-		const span = worst.scope === 'window' ? `in window ${frame.seq}` : `over ${worst.windows} windows (seq ${worst.fromSeq}–${worst.toSeq})`;
+		const span =
+			worst.scope === 'window' ? `in window ${frame.seq}` : `over ${worst.windows} windows (seq ${worst.fromSeq}–${worst.toSeq})`;
 		return {
 			type: 'open',
 			key: p,

@@ -141,7 +141,8 @@ const TOLERANCE = 1e-10;
  */
 export function fitPoissonGlm(y: readonly number[], offset: readonly number[], X: readonly (readonly number[])[]): PoissonFit | null {
 	const n = y.length;
-	if (offset.length !== n || X.length !== n) throw new RangeError(`y, offset and X must have the same length, got ${n}, ${offset.length}, ${X.length}`);
+	if (offset.length !== n || X.length !== n)
+		throw new RangeError(`y, offset and X must have the same length, got ${n}, ${offset.length}, ${X.length}`);
 	if (n === 0) throw new RangeError('the fit needs at least one window');
 	const p = X[0].length;
 	for (let i = 0; i < n; i++) {
@@ -201,7 +202,13 @@ export function fitPoissonGlm(y: readonly number[], offset: readonly number[], X
 }
 
 /** U = Xᵀ(y − μ) and the Fisher information XᵀWX with W = diag(μ) (canonical link). */
-function scoreAndInformation(y: readonly number[], offset: readonly number[], X: readonly (readonly number[])[], b: readonly number[], eta: (b: readonly number[], i: number) => number) {
+function scoreAndInformation(
+	y: readonly number[],
+	offset: readonly number[],
+	X: readonly (readonly number[])[],
+	b: readonly number[],
+	eta: (b: readonly number[], i: number) => number
+) {
 	const p = b.length;
 	const score = new Float64Array(p);
 	const information = new Float64Array(p * p);
@@ -230,7 +237,9 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 	const span = fitted.filter((w) => w.inSpan);
 	const before = fitted.filter((w) => !w.inSpan);
 	const slope = input.modelSlope > 0 ? input.modelSlope : 1;
-	let xMin = Infinity, xMax = -Infinity, departure = 0;
+	let xMin = Infinity,
+		xMax = -Infinity,
+		departure = 0;
 	for (const w of fitted) {
 		xMin = Math.min(xMin, w.x);
 		xMax = Math.max(xMax, w.x);
@@ -337,7 +346,8 @@ export function attributeToTemperature(input: AttributionInput): TemperatureAttr
 	const alternative = excess;
 	const alternativeExcluded = !(residualLog - z * seR <= alternative && alternative <= residualLog + z * seR);
 	if (excludesOne(residualInterval)) return { ...result, explainedByTemperature: false, reason: 'residual_constant' };
-	if (shareInterval && shareInterval[1] < largeShare) return { ...result, explainedByTemperature: false, reason: 'temperature_share_small' };
+	if (shareInterval && shareInterval[1] < largeShare)
+		return { ...result, explainedByTemperature: false, reason: 'temperature_share_small' };
 	if (shareInterval && shareInterval[0] > 0 && share! >= largeShare && alternativeExcluded) {
 		return { ...result, explainedByTemperature: true, reason: 'temperature_carries_it' };
 	}

@@ -23,17 +23,25 @@ export function describeLockLost(f: IncidentFacts): Description {
 		};
 	}
 	if (values.length === 0 && lowest) {
-		return { what: `Phase lock${where(f)} fell further: ${num(lockOf(lowest), 2)} at ${utcClock(numAt(lowest, 't_ms') ?? 0)}.`, details: [] };
+		return {
+			what: `Phase lock${where(f)} fell further: ${num(lockOf(lowest), 2)} at ${utcClock(numAt(lowest, 't_ms') ?? 0)}.`,
+			details: []
+		};
 	}
 	const n = numAt(ev, 'count') ?? values.length;
 	const what = `Phase lock${where(f)} fell below ${num(threshold, 2)} for ${count(n, WINDOWS)} in a row${first ? `, since ${utcClock(numAt(first, 't_ms') ?? 0)}` : ''}.`;
 	const details: string[] = [];
-	if (last) details.push(`The latest lock quality was ${num(lockOf(last), 2)} at ${utcClock(numAt(last, 't_ms') ?? 0)}, against ${num(threshold, 2)} required; 1 means every shot sits exactly on its phase state.`);
+	if (last)
+		details.push(
+			`The latest lock quality was ${num(lockOf(last), 2)} at ${utcClock(numAt(last, 't_ms') ?? 0)}, against ${num(threshold, 2)} required; 1 means every shot sits exactly on its phase state.`
+		);
 	const lowestSeen = values.reduce<number | null>((m, v) => (lockOf(v) !== null && (m === null || lockOf(v)! < m) ? lockOf(v) : m), null);
-	if (lowestSeen !== null && values.length > 1) details.push(`The lowest of these ${count(values.length, WINDOWS)} was ${num(lowestSeen, 2)}.`);
+	if (lowestSeen !== null && values.length > 1)
+		details.push(`The lowest of these ${count(values.length, WINDOWS)} was ${num(lowestSeen, 2)}.`);
 	const skipped = numAt(ev, 'skippedWindows');
 	if (skipped) details.push(`${count(skipped, WINDOWS)} without phase-state shots were passed over.`);
-	if (clearThreshold !== null) details.push(`It clears once lock stays at or above ${num(clearThreshold, 2)} for ${count(numAt(ev, 'clearWindows') ?? 1, WINDOWS)}.`);
+	if (clearThreshold !== null)
+		details.push(`It clears once lock stays at or above ${num(clearThreshold, 2)} for ${count(numAt(ev, 'clearWindows') ?? 1, WINDOWS)}.`);
 	return { what, details };
 }
 
@@ -48,7 +56,10 @@ export function describeAgentSilent(f: IncidentFacts): Description {
 	if (resumed_ms !== null) {
 		return {
 			what: `Frames from the agent${where(f)} arrive again since ${utcClock(resumed_ms)}, after ${duration(silence_s ?? 0)} of silence.`,
-			details: lastSeq === null ? [] : [`The last frame before the silence was number ${lastSeq}; the first after it was number ${num(numAt(ev, 'resumedSeq'))}.`]
+			details:
+				lastSeq === null
+					? []
+					: [`The last frame before the silence was number ${lastSeq}; the first after it was number ${num(numAt(ev, 'resumedSeq'))}.`]
 		};
 	}
 	if (ended_ms !== null) {
@@ -76,7 +87,11 @@ export function describeAuxLimit(f: IncidentFacts): Description {
 			details: [`While out of limits it went as far as ${withUnit(numAt(worst, 'value'), unit)} at ${utcClock(numAt(worst, 't_ms') ?? 0)}.`]
 		};
 	}
-	if (worst) return { what: `The ${name}${where(f)} moved further ${sideWord} its limit: ${withUnit(numAt(worst, 'value'), unit)} at ${utcClock(numAt(worst, 't_ms') ?? 0)}.`, details: [] };
+	if (worst)
+		return {
+			what: `The ${name}${where(f)} moved further ${sideWord} its limit: ${withUnit(numAt(worst, 'value'), unit)} at ${utcClock(numAt(worst, 't_ms') ?? 0)}.`,
+			details: []
+		};
 	const n = numAt(ev, 'count') ?? values.length;
 	const what = `The ${name}${where(f)} stayed ${sideWord} ${withUnit(bound, unit)} for ${count(n, WINDOWS)} in a row${first ? `, since ${utcClock(numAt(first, 't_ms') ?? 0)}` : ''}.`;
 	const far = values.reduce<Json | null>((m, v) => {
@@ -87,9 +102,12 @@ export function describeAuxLimit(f: IncidentFacts): Description {
 	const details: string[] = [];
 	if (far && bound !== null) {
 		const off = (numAt(far, 'value') ?? 0) - bound;
-		details.push(`The furthest was ${withUnit(numAt(far, 'value'), unit)} at ${utcClock(numAt(far, 't_ms') ?? 0)}, ${withUnit(Math.abs(off), unit)} ${sideWord} the limit.`);
+		details.push(
+			`The furthest was ${withUnit(numAt(far, 'value'), unit)} at ${utcClock(numAt(far, 't_ms') ?? 0)}, ${withUnit(Math.abs(off), unit)} ${sideWord} the limit.`
+		);
 	}
 	const last = values.at(-1);
-	if (last && last !== far) details.push(`The latest was ${withUnit(numAt(last, 'value'), unit)} at ${utcClock(numAt(last, 't_ms') ?? 0)}.`);
+	if (last && last !== far)
+		details.push(`The latest was ${withUnit(numAt(last, 'value'), unit)} at ${utcClock(numAt(last, 't_ms') ?? 0)}.`);
 	return { what, details };
 }

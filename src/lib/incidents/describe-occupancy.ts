@@ -22,12 +22,16 @@ export function describeOccupancy(f: IncidentFacts): Description {
 		const switches = numAt(ev, 'switches') ?? 0;
 		const tolerated = numAt(ev, 'maxUnexpectedFraction');
 		if (clearing) return { what: `Switching${where(f)} is back on the expected pairs of states.`, details: [] };
-		const details = [`That is more than the tolerated ${percent(tolerated)}; the chance of so many at the tolerated share is ${chance(numAt(ev, 'pValue'))}.`];
+		const details = [
+			`That is more than the tolerated ${percent(tolerated)}; the chance of so many at the tolerated share is ${chance(numAt(ev, 'pValue'))}.`
+		];
 		const K = f.states ?? 0;
 		const top = listAt(ev, 'topPairs').slice(0, 3);
 		if (top.length > 0) {
 			const name = (i: number) => (K > 0 ? stateName(i, K) : `state ${i}`);
-			details.push(`Most went ${top.map((p) => `from ${name(numAt(p, 'from') ?? 0)} to ${name(numAt(p, 'to') ?? 0)} (${count(numAt(p, 'count') ?? 0, SWITCHES)})`).join(', ')}.`);
+			details.push(
+				`Most went ${top.map((p) => `from ${name(numAt(p, 'from') ?? 0)} to ${name(numAt(p, 'to') ?? 0)} (${count(numAt(p, 'count') ?? 0, SWITCHES)})`).join(', ')}.`
+			);
 		}
 		return {
 			what: `${num(unexpected)} of ${count(switches, SWITCHES)}${where(f)} ${spanWords(ev)} went between states the setup does not expect (${percent(switches > 0 ? unexpected / switches : null)}).`,
@@ -48,7 +52,12 @@ export function describeOccupancy(f: IncidentFacts): Description {
 		);
 	}
 	const shots = numAt(ev, 'shots');
-	if (shots !== null) details.push(`The test counted ${num(shots)} shots and ${count(numAt(ev, 'switches') ?? 0, SWITCHES)}; the switches set how many of the shots are independent.`);
-	details.push(`The chance of an imbalance this large if the states filled equally is ${chance(numAt(ev, 'pValue'))}, against a limit of ${chance(numAt(ev, 'alpha'))}.`);
+	if (shots !== null)
+		details.push(
+			`The test counted ${num(shots)} shots and ${count(numAt(ev, 'switches') ?? 0, SWITCHES)}; the switches set how many of the shots are independent.`
+		);
+	details.push(
+		`The chance of an imbalance this large if the states filled equally is ${chance(numAt(ev, 'pValue'))}, against a limit of ${chance(numAt(ev, 'alpha'))}.`
+	);
 	return { what: `The phase states${where(f)} fill unequally ${spanWords(ev)}.`, details };
 }

@@ -23,7 +23,10 @@ function sinceWords(span: Json | null): string {
 	const from_ms = numAt(span, 'from_ms');
 	const to_ms = numAt(span, 'to_ms');
 	const windows = numAt(span, 'windows');
-	const w = windows === null ? '' : ` (${count(windows, WINDOWS)}${from_ms !== null && to_ms !== null ? `, ${duration((to_ms - from_ms) / 1000)}` : ''})`;
+	const w =
+		windows === null
+			? ''
+			: ` (${count(windows, WINDOWS)}${from_ms !== null && to_ms !== null ? `, ${duration((to_ms - from_ms) / 1000)}` : ''})`;
 	return from_ms === null ? `over the last ${windows === null ? 'windows' : count(windows, WINDOWS)}` : `since ${utcClock(from_ms)}${w}`;
 }
 
@@ -60,7 +63,10 @@ export function describeRateDrift(f: IncidentFacts): Description {
 		// The clearing: back within the reference band.
 		const details: string[] = [];
 		if (horizon) details.push(horizonSentence(horizon, noun));
-		return { what: `The ${rateName(process)}${where(f)} is back within its reference band and the drift statistic is back at zero.`, details };
+		return {
+			what: `The ${rateName(process)}${where(f)} is back within its reference band and the drift statistic is back at zero.`,
+			details
+		};
 	}
 	const what = `The ${rateName(process)}${where(f)} drifted ${direction === 'down' ? 'below' : 'above'} its prediction ${sinceWords(since)}.`;
 	const details: string[] = [];
@@ -73,12 +79,16 @@ export function describeRateDrift(f: IncidentFacts): Description {
 	// A model that states no uncertainty allows only its prediction: nothing to say about a range.
 	if (ref && numAt(ref, 'ratioLower') !== null && Math.abs((numAt(ref, 'ratioUpper') ?? 1) - numAt(ref, 'ratioLower')!) > 1e-6) {
 		const basis = strAt(ref, 'basis') === 'baseline' ? 'this run’s own baseline' : 'the rate model’s uncertainty';
-		details.push(`Given ${basis}, anything from ${num(numAt(ref, 'ratioLower'), 2)} to ${num(numAt(ref, 'ratioUpper'), 2)} times the prediction would have been normal.`);
+		details.push(
+			`Given ${basis}, anything from ${num(numAt(ref, 'ratioLower'), 2)} to ${num(numAt(ref, 'ratioUpper'), 2)} times the prediction would have been normal.`
+		);
 	}
 	if (horizon) details.push(horizonSentence(horizon, noun));
 	if (statistic !== null) {
 		const h = numAt(ev, 'decisionInterval');
-		details.push(`The drift statistic reached ${num(statistic, 3)} against its decision limit of ${num(h, 3)}, set so that a false alarm comes about once in ${num(numAt(ev, 'falseAlarmEvery_days'), 3)} days.`);
+		details.push(
+			`The drift statistic reached ${num(statistic, 3)} against its decision limit of ${num(h, 3)}, set so that a false alarm comes about once in ${num(numAt(ev, 'falseAlarmEvery_days'), 3)} days.`
+		);
 	}
 	const explanation = strAt(ev, 'explanation');
 	if (explanation) details.push(explanation);

@@ -22,7 +22,8 @@ function groupBars(rows: PerWindow[], focus: ChartInput['focus']): CountBar[] {
 	for (let i = 0; i < rows.length; i += size) {
 		const g = rows.slice(i, i + size);
 		// Per window (the group's mean), so a short last group reads on the same scale as the rest.
-		const sum = (f: (r: PerWindow) => number | null) => (g.every((r) => f(r) !== null) ? g.reduce((a, r) => a + f(r)!, 0) / g.length : null);
+		const sum = (f: (r: PerWindow) => number | null) =>
+			g.every((r) => f(r) !== null) ? g.reduce((a, r) => a + f(r)!, 0) / g.length : null;
 		const first = g[0].w;
 		const last = g.at(-1)!.w;
 		bars.push({
@@ -47,7 +48,13 @@ const noun = (p: Process) => (p === 'escape' ? 'escapes' : 'switches');
  * detector recorded for them: it absorbs an operating-point scale of escape models the evidence
  * does not carry, and is 1 when the model is the one recomputed here.
  */
-function calibration(windows: EvidenceWindow[], fromSeq: number, toSeq: number, recorded: number | null, predict: (w: EvidenceWindow) => number): number {
+function calibration(
+	windows: EvidenceWindow[],
+	fromSeq: number,
+	toSeq: number,
+	recorded: number | null,
+	predict: (w: EvidenceWindow) => number
+): number {
 	if (recorded === null) return 1;
 	const sum = windows.filter((w) => w.seq >= fromSeq && w.seq <= toSeq).reduce((a, w) => a + predict(w), 0);
 	return sum > 0 && recorded > 0 ? recorded / sum : 1;
@@ -112,7 +119,13 @@ function cusumPath(input: ChartInput, rows: PerWindow[], fromSeq: number, toSeq:
 	for (const r of rows) {
 		const { w } = r;
 		if (w.seq >= fromSeq && exposureOf(w, p) > 0) {
-			block = { count: block.count + r.observed, chart: block.chart + r.expected!, lower: block.lower + r.lower!, upper: block.upper + r.upper!, n: block.n + 1 };
+			block = {
+				count: block.count + r.observed,
+				chart: block.chart + r.expected!,
+				lower: block.lower + r.lower!,
+				upper: block.upper + r.upper!,
+				n: block.n + 1
+			};
 			if (Math.min(block.chart, block.lower) >= minStep) {
 				S = poissonCusumStep(S, block.count, up ? block.upper : block.lower, rho);
 				// While open the detector holds the statistic at most at h.

@@ -110,7 +110,9 @@ function auxChart(input: ChartInput): Chart[] {
 		return typeof v === 'number' && Number.isFinite(v) ? [{ seq: w.seq, t_ms: w.t_ms, value: v }] : [];
 	});
 	// Without stored windows the evidence's own values still show the excursion.
-	const fallback = points.length ? points : listAt(ev, 'values').map((v) => ({ seq: numAt(v, 'seq') ?? 0, t_ms: numAt(v, 't_ms') ?? 0, value: numAt(v, 'value') ?? 0 }));
+	const fallback = points.length
+		? points
+		: listAt(ev, 'values').map((v) => ({ seq: numAt(v, 'seq') ?? 0, t_ms: numAt(v, 't_ms') ?? 0, value: numAt(v, 'value') ?? 0 }));
 	const title = `${name.charAt(0).toUpperCase()}${name.slice(1)} per window`;
 	return [
 		{
@@ -132,5 +134,13 @@ function occupancyCharts(input: ChartInput): Chart[] {
 	const K = fractions.length;
 	const expected = numAt(ev, 'expectedFraction') ?? 1 / K;
 	const words = fractions.map((f, i) => `${stateName(i, K)} ${percent(f)}`).join(', ');
-	return [{ type: 'shares', title: 'Share of shots per phase state against equal filling', shares: fractions, expected, alt: `Shares per phase state: ${words}; equal filling is ${percent(expected)} each.` }];
+	return [
+		{
+			type: 'shares',
+			title: 'Share of shots per phase state against equal filling',
+			shares: fractions,
+			expected,
+			alt: `Shares per phase state: ${words}; equal filling is ${percent(expected)} each.`
+		}
+	];
 }

@@ -79,8 +79,12 @@ export function rateAgainst(
 	const per = (n: number) => n / exposure_s;
 	const { factor, unit } = rateUnit([per(observed), per(expected)]);
 	// A model that states no uncertainty allows only its prediction: no range to show.
-	const hasRange = allowed && allowed.lower != null && allowed.upper != null && Math.abs(allowed.upper - allowed.lower) > 1e-9 * Math.max(1, expected);
-	const band = hasRange && allowed ? ` ${interval(allowed.lower == null ? null : per(allowed.lower) * factor, allowed.upper == null ? null : per(allowed.upper) * factor)}` : '';
+	const hasRange =
+		allowed && allowed.lower != null && allowed.upper != null && Math.abs(allowed.upper - allowed.lower) > 1e-9 * Math.max(1, expected);
+	const band =
+		hasRange && allowed
+			? ` ${interval(allowed.lower == null ? null : per(allowed.lower) * factor, allowed.upper == null ? null : per(allowed.upper) * factor)}`
+			: '';
 	return `${num(per(observed) * factor, 2)} ${noun.many} per ${unit}, expected ${num(per(expected) * factor, 2)}${band}`;
 }
 
@@ -94,14 +98,41 @@ const AUX_NAMES: Record<string, string> = {
 	bias_uV: 'bias voltage',
 	still_mK: 'still temperature'
 };
-const UNITS: Record<string, string> = { mK: 'mK', K: 'K', uV: 'µV', mV: 'mV', V: 'V', dBm: 'dBm', dB: 'dB', mW: 'mW', uW: 'µW', nW: 'nW', GHz: 'GHz', MHz: 'MHz', Hz: 'Hz', mbar: 'mbar', bar: 'bar', s: 's', ms: 'ms', A: 'A', mA: 'mA', uA: 'µA', pct: '%' };
+const UNITS: Record<string, string> = {
+	mK: 'mK',
+	K: 'K',
+	uV: 'µV',
+	mV: 'mV',
+	V: 'V',
+	dBm: 'dBm',
+	dB: 'dB',
+	mW: 'mW',
+	uW: 'µW',
+	nW: 'nW',
+	GHz: 'GHz',
+	MHz: 'MHz',
+	Hz: 'Hz',
+	mbar: 'mbar',
+	bar: 'bar',
+	s: 's',
+	ms: 'ms',
+	A: 'A',
+	mA: 'mA',
+	uA: 'µA',
+	pct: '%'
+};
 
 /** An aux value's name and unit for sentences: "mxc_mK" → { name: "mixing-chamber temperature", unit: "mK" }. */
 export function auxName(raw: string): { name: string; unit: string } {
 	const m = /^(.*?)[_-]([A-Za-z]+)$/.exec(raw);
 	const unit = m && UNITS[m[2]] ? UNITS[m[2]] : '';
 	const base = unit ? m![1] : raw;
-	const name = AUX_NAMES[raw] ?? base.replace(/[_-]+/g, ' ').replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase();
+	const name =
+		AUX_NAMES[raw] ??
+		base
+			.replace(/[_-]+/g, ' ')
+			.replace(/([a-z0-9])([A-Z])/g, '$1 $2')
+			.toLowerCase();
 	return { name, unit };
 }
 

@@ -80,7 +80,12 @@ export function lobeCentres(h: IqHistogram, K: number): Lobe[] {
 			sums[k].r += c * r;
 		}
 	}
-	const outerR = sums.reduce((a, s) => a + s.r, 0) / Math.max(1, sums.reduce((a, s) => a + s.w, 0));
+	const outerR =
+		sums.reduce((a, s) => a + s.r, 0) /
+		Math.max(
+			1,
+			sums.reduce((a, s) => a + s.w, 0)
+		);
 	return sums.map((s, k) => {
 		const nominal = (2 * Math.PI * k) / K;
 		if (s.w === 0) return { state: k, angle_rad: nominal, i: outerR * Math.cos(nominal), q: outerR * Math.sin(nominal), counts: 0 };

@@ -30,7 +30,12 @@ export function stepLevel(step: number): 'primary' | 'secondary' | 'operators' {
  * ends here. Repeats of the last level get step numbers of their own (lastStep + 1, + 2, …) so each
  * repeat is a new notice rather than a duplicate of the one before.
  */
-export function nextEscalation(policy: EscalationPolicy, severity: Severity, step: number, sentAt_ms: number): { step: number; dueAt_ms: number } | null {
+export function nextEscalation(
+	policy: EscalationPolicy,
+	severity: Severity,
+	step: number,
+	sentAt_ms: number
+): { step: number; dueAt_ms: number } | null {
 	const p = policy[severity];
 	if (p.ackWithin_min === null || p.ackWithin_min <= 0) return null;
 	if (step >= p.lastStep && !p.repeat) return null;

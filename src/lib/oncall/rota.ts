@@ -35,7 +35,15 @@ const formatters = new Map<string, Intl.DateTimeFormat>();
 function formatterFor(timeZone: string): Intl.DateTimeFormat {
 	let f = formatters.get(timeZone);
 	if (!f) {
-		f = new Intl.DateTimeFormat('en-US', { timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
+		f = new Intl.DateTimeFormat('en-US', {
+			timeZone,
+			year: 'numeric',
+			month: '2-digit',
+			day: '2-digit',
+			hour: '2-digit',
+			minute: '2-digit',
+			hourCycle: 'h23'
+		});
 		formatters.set(timeZone, f);
 	}
 	return f;
@@ -92,7 +100,9 @@ export function rotationAt(rota: WeeklyRota, at: Date, timeZone: string): OnCall
  */
 export function onCallAt(rota: WeeklyRota | null, overrides: RotaOverride[], at: Date, timeZone: string): OnCall {
 	const regular = rota ? rotationAt(rota, at, timeZone) : { primary: null, secondary: null };
-	const active = overrides.filter((o) => o.from.getTime() <= at.getTime() && at.getTime() < o.until.getTime()).sort((a, b) => b.from.getTime() - a.from.getTime())[0];
+	const active = overrides
+		.filter((o) => o.from.getTime() <= at.getTime() && at.getTime() < o.until.getTime())
+		.sort((a, b) => b.from.getTime() - a.from.getTime())[0];
 	if (!active) return regular;
 	const secondary = regular.primary !== active.userId ? regular.primary : regular.secondary !== active.userId ? regular.secondary : null;
 	return { primary: active.userId, secondary };
@@ -104,10 +114,18 @@ export interface OnCallSpan extends OnCall {
 }
 
 /** Who is on call between two instants, as spans where nobody changes (5-minute resolution plus exact override edges). */
-export function onCallSpans(rota: WeeklyRota | null, overrides: RotaOverride[], from: Date, until: Date, timeZone: string, step_ms = 5 * 60_000): OnCallSpan[] {
+export function onCallSpans(
+	rota: WeeklyRota | null,
+	overrides: RotaOverride[],
+	from: Date,
+	until: Date,
+	timeZone: string,
+	step_ms = 5 * 60_000
+): OnCallSpan[] {
 	const points = new Set<number>();
 	for (let t = Math.ceil(from.getTime() / step_ms) * step_ms; t < until.getTime(); t += step_ms) points.add(t);
-	for (const o of overrides) for (const t of [o.from.getTime(), o.until.getTime()]) if (t > from.getTime() && t < until.getTime()) points.add(t);
+	for (const o of overrides)
+		for (const t of [o.from.getTime(), o.until.getTime()]) if (t > from.getTime() && t < until.getTime()) points.add(t);
 	const sorted = [from.getTime(), ...[...points].filter((t) => t > from.getTime()).sort((a, b) => a - b)];
 	const spans: OnCallSpan[] = [];
 	for (const t of sorted) {

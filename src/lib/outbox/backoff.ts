@@ -16,7 +16,8 @@ export const DEFAULT_BACKOFF: BackoffPolicy = { base_ms: 5_000, cap_ms: 10 * 60_
  * still grows with each failure but two rows that failed together drift apart.
  */
 export function retryDelay_ms(attempts: number, policy: BackoffPolicy = DEFAULT_BACKOFF, random: () => number = Math.random): number {
-	if (!Number.isInteger(attempts) || attempts < 1) throw new RangeError(`retryDelay_ms: attempts must be a whole number ≥ 1, got ${attempts}`);
+	if (!Number.isInteger(attempts) || attempts < 1)
+		throw new RangeError(`retryDelay_ms: attempts must be a whole number ≥ 1, got ${attempts}`);
 	const step = Math.min(policy.cap_ms, policy.base_ms * 2 ** Math.min(attempts - 1, 30));
 	return Math.round(step / 2 + random() * (step / 2));
 }

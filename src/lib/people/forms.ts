@@ -3,10 +3,7 @@ import { z } from 'zod';
 import { safeText } from '../protocol/safe-text';
 import { ROLES, hasRole, type Role } from '../roles';
 
-const password = z
-	.string()
-	.min(8, 'password must have at least 8 characters')
-	.max(128, 'password must have at most 128 characters');
+const password = z.string().min(8, 'password must have at least 8 characters').max(128, 'password must have at most 128 characters');
 
 const samePassword = { path: ['confirm'], message: 'the two passwords differ' };
 const matches = (v: { password: string; confirm: string }) => v.password === v.confirm;

@@ -50,9 +50,7 @@ export function fitActivation(points: CalibrationPoint[], options: ActivationFit
 	let reference = options.reference;
 	if (!reference && withOp.length > 0) {
 		if (withOp.length < points.length) {
-			throw new RangeError(
-				'some points have an operating point and some do not: give a reference operating point for the others'
-			);
+			throw new RangeError('some points have an operating point and some do not: give a reference operating point for the others');
 		}
 		reference = points[0].operatingPoint;
 	}

@@ -1,6 +1,13 @@
 // The rate model's prediction W = W0·exp(−A·s/(2n̄+1)) at a temperature and operating point, with
 // its band from the stated uncertainties and warnings outside the calibrated range.
-import { DEFAULT_CONFIDENCE, type OperatingPoint, RANGE_MARGIN, type RateConditions, type RateModel, type RatePrediction } from './activation-model';
+import {
+	DEFAULT_CONFIDENCE,
+	type OperatingPoint,
+	RANGE_MARGIN,
+	type RateConditions,
+	type RateModel,
+	type RatePrediction
+} from './activation-model';
 import { fmt } from './activation-regression';
 import { noiseFactor } from './occupation';
 import jStat from 'jstat';
@@ -63,11 +70,7 @@ function validateModel(model: RateModel): void {
  * normal band of ln W; the band on W is its exponential. confidence is two-sided, 0.95 unless
  * given.
  */
-export function predictRate(
-	model: RateModel,
-	conditions: RateConditions,
-	confidence = DEFAULT_CONFIDENCE
-): RatePrediction {
+export function predictRate(model: RateModel, conditions: RateConditions, confidence = DEFAULT_CONFIDENCE): RatePrediction {
 	validateModel(model);
 	requireConfidence(confidence);
 	const warnings: string[] = [];
@@ -79,9 +82,7 @@ export function predictRate(
 		warnings.push('operating point ignored: the switching model does not scale with it');
 	} else if (op) {
 		if (!model.reference) {
-			throw new RangeError(
-				'the escape model has no reference operating point, so it cannot be scaled to the requested one'
-			);
+			throw new RangeError('the escape model has no reference operating point, so it cannot be scaled to the requested one');
 		}
 		ratio = scaleRatio(op, model.reference);
 		const scaleRange = model.fittedRange?.scale;
@@ -90,9 +91,7 @@ export function predictRate(
 				`operating-point scale ${fmt(ratio)} lies more than ${RANGE_MARGIN * 100} % outside the fitted range ${fmt(scaleRange[0])}–${fmt(scaleRange[1])}`
 			);
 		} else if (!scaleRange && Math.abs(ratio - 1) > RANGE_MARGIN) {
-			warnings.push(
-				`operating-point scale ${fmt(ratio)} was not calibrated: A is scaled by theory, (γ²+δ²)/ε²`
-			);
+			warnings.push(`operating-point scale ${fmt(ratio)} was not calibrated: A is scaled by theory, (γ²+δ²)/ε²`);
 		}
 	}
 

@@ -43,9 +43,7 @@ export function fitLogLinear(x: number[], count: number[], exposure: number[], x
 	}
 	if (!hasTwoDistinct(x.filter((_, i) => count[i] > 0))) {
 		// With events at one x only, the likelihood keeps rising as the slope runs off to infinity.
-		throw new RangeError(
-			`counts are non-zero at a single value of ${xLabel}: W0 and A cannot both be determined`
-		);
+		throw new RangeError(`counts are non-zero at a single value of ${xLabel}: W0 and A cannot both be determined`);
 	}
 	const xBar = x.reduce((acc, xi, i) => acc + xi * count[i], 0) / total;
 	const u = x.map((xi) => xi - xBar);

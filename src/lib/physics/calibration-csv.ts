@@ -5,9 +5,7 @@ import { csvParseRows } from 'd3-dsv';
 import type { CalibrationPoint } from './activation';
 
 export type CsvError = { line: number; message: string };
-export type CalibrationCsvResult =
-	| { ok: true; points: CalibrationPoint[] }
-	| { ok: false; errors: CsvError[] };
+export type CalibrationCsvResult = { ok: true; points: CalibrationPoint[] } | { ok: false; errors: CsvError[] };
 
 type Field = 'T_mK' | 'count' | 'exposure_s' | 'detuning' | 'damping' | 'drive';
 
@@ -58,9 +56,7 @@ export function parseCalibrationCsv(text: string): CalibrationCsvResult {
 
 const lineBreaks = (cells: string[]) => cells.reduce((n, cell) => n + (cell.match(/\r\n|\n|\r/g)?.length ?? 0), 0);
 
-function parseHeader(
-	cells: string[]
-): { ok: true; columns: Field[] } | { ok: false; errors: CsvError[] } {
+function parseHeader(cells: string[]): { ok: true; columns: Field[] } | { ok: false; errors: CsvError[] } {
 	const fail = (message: string) => ({ ok: false as const, errors: [{ line: 1, message }] });
 	if (cells.every((cell) => cell.trim() === '')) return fail('the first line must be a header row naming the columns');
 
@@ -71,9 +67,7 @@ function parseHeader(
 		const field = ALIASES[name.toLowerCase()];
 		if (name === '') problems.push(`column ${index + 1} has an empty name`);
 		else if (!field) {
-			problems.push(
-				`unknown column "${name}" (expected T_mK or temperature_mK, count or switches, exposure_s, detuning, damping, drive)`
-			);
+			problems.push(`unknown column "${name}" (expected T_mK or temperature_mK, count or switches, exposure_s, detuning, damping, drive)`);
 		} else if (columns.includes(field)) problems.push(`column "${name}" repeats ${field}`);
 		columns.push(field);
 	}

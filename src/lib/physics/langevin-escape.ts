@@ -60,15 +60,15 @@ export function* escapeRateRun(params: ModelParams, options: EscapeOptions): Run
 	const vacuum = s.points[0];
 	if (vacuum.stability !== 'attracting') {
 		throw new RangeError(
-			'the vacuum is not stable at this operating point (it is a ' +
-				vacuum.stability +
-				' point), so there is no escape from it to estimate'
+			'the vacuum is not stable at this operating point (it is a ' + vacuum.stability + ' point), so there is no escape from it to estimate'
 		);
 	}
 	const states = s.points.filter((p) => p.kind === 'stable');
 	const useRadius = options.escapeRadius !== undefined;
 	if (states.length === 0 && !useRadius) {
-		throw new RangeError('there are no phase states to escape to at this operating point (give escapeRadius to time the exit from the vacuum alone)');
+		throw new RangeError(
+			'there are no phase states to escape to at this operating point (give escapeRadius to time the exit from the vacuum alone)'
+		);
 	}
 	const escapeR = useRadius ? positive('escapeRadius', options.escapeRadius) : 0;
 	const rc = captureRadii(states, s.points, options.captureFraction ?? 0.3);

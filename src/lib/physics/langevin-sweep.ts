@@ -1,6 +1,6 @@
 // A λ sweep of the escape or switching rate (ln W against 1/λ), one seeded stream per point.
 import { type EscapeOptions, type EscapeResult, escapeRateRun } from './langevin-escape';
-import { type RateInterval, type Run, count, positive, runToCompletion, scaled } from './langevin-run';
+import { type RateInterval, type Run, positive, runToCompletion, scaled } from './langevin-run';
 import { type SwitchingOptions, type SwitchingResult, switchingRateRun } from './langevin-switching';
 import type { ModelParams } from './model';
 import { deriveSeed } from './random';

@@ -94,9 +94,7 @@ export function modelCoefficients(params: ModelParams): ModelCoefficients {
 		eta = finite('nonlinearity.eta', nl.eta);
 		K = nl.K === undefined ? 0 : finite('nonlinearity.K', nl.K);
 	} else {
-		throw new RangeError(
-			`nonlinearity.kind must be 'kerr' or 'junction', got ${String((nl as { kind?: unknown }).kind)}`
-		);
+		throw new RangeError(`nonlinearity.kind must be 'kerr' or 'junction', got ${String((nl as { kind?: unknown }).kind)}`);
 	}
 	return { M, g: driveWeight(M), gamma, delta, eps, eta, K };
 }

@@ -1,6 +1,5 @@
 // Messages of wire protocol v1, agent → server and server → agent.
 import { z } from 'zod';
-import { frameSchema } from './frame';
 import { safeText } from './safe-text';
 
 export const PROTOCOL_VERSION = 1;
@@ -86,8 +85,6 @@ export function describeZodError(error: z.ZodError, prefix = ''): string {
 	if (issue.code === 'invalid_key' && issue.issues?.[0]) {
 		issue = { ...issue.issues[0], path: [...issue.path, ...issue.issues[0].path] } as typeof issue;
 	}
-	const path = [prefix, ...issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`))]
-		.join('')
-		.replace(/^\./, '');
+	const path = [prefix, ...issue.path.map((p) => (typeof p === 'number' ? `[${p}]` : `.${String(p)}`))].join('').replace(/^\./, '');
 	return `${path || '(message)'}: ${issue.message}`;
 }

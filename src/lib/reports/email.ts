@@ -21,7 +21,12 @@ export function reportSubject(r: MorningReport): string {
 
 function incidentWords(i: MorningReport['incidents'][number], tz: string): string {
 	const ack = i.acknowledgedBy ? `acknowledged by ${i.acknowledgedBy} after ${formatDuration(i.toAcknowledge_s)}` : 'not acknowledged';
-	const res = i.toResolve_s !== null ? `, resolved by ${i.resolvedBy} after ${formatDuration(i.toResolve_s)}` : i.state === 'resolved' ? ', resolved' : ', still open';
+	const res =
+		i.toResolve_s !== null
+			? `, resolved by ${i.resolvedBy} after ${formatDuration(i.toResolve_s)}`
+			: i.state === 'resolved'
+				? ', resolved'
+				: ', still open';
 	return `${kindLabel(i.kind)} (${i.severity}) on ${i.runName} at ${formatInZone(i.opened_ms, tz)}: ${i.summary}. ${ack[0].toUpperCase()}${ack.slice(1)}${res}.`;
 }
 
@@ -34,11 +39,18 @@ export function reportText(r: MorningReport, origin: string): string {
 	for (const run of r.runs) {
 		const s = run.summary;
 		lines.push(`== ${run.name} (${run.setupName}, ${run.status === 'open' ? 'running' : 'ended'})`);
-		lines.push(`Data: ${formatDuration(s.exposure.data_s)} in ${s.exposure.frames} frames; locked ${lockedWords(run)} of the time (lock at or above ${s.timeLocked.threshold}).`);
+		lines.push(
+			`Data: ${formatDuration(s.exposure.data_s)} in ${s.exposure.frames} frames; locked ${lockedWords(run)} of the time (lock at or above ${s.timeLocked.threshold}).`
+		);
 		lines.push(rateSentence('switching', s.switching, formatRate));
 		lines.push(rateSentence('escape', s.escape, formatRate));
-		if (s.occupancy.test) lines.push(`Equal filling of the ${s.states} states: ${pText(s.occupancy.test.pValue)}${s.occupancy.test.pValue < 0.05 ? ', they do not fill equally' : ''}.`);
-		lines.push(s.lost.seconds > 0 ? `Lost data: ${formatDuration(s.lost.seconds)} (${s.lost.frames} frames never arrived).` : 'No data lost.');
+		if (s.occupancy.test)
+			lines.push(
+				`Equal filling of the ${s.states} states: ${pText(s.occupancy.test.pValue)}${s.occupancy.test.pValue < 0.05 ? ', they do not fill equally' : ''}.`
+			);
+		lines.push(
+			s.lost.seconds > 0 ? `Lost data: ${formatDuration(s.lost.seconds)} (${s.lost.frames} frames never arrived).` : 'No data lost.'
+		);
 		lines.push(`Incidents: ${s.incidents.length}.`);
 		lines.push(`Timeline: ${origin}${run.timelinePath}`, '');
 	}
@@ -49,7 +61,8 @@ export function reportText(r: MorningReport, origin: string): string {
 	}
 	if (r.annotations.length) {
 		lines.push('== Annotations');
-		for (const a of r.annotations) lines.push(`- ${formatInZone(a.at_ms, tz)} on ${a.runName}: ${a.text}${a.author ? ` (${a.author})` : ''}`);
+		for (const a of r.annotations)
+			lines.push(`- ${formatInZone(a.at_ms, tz)} on ${a.runName}: ${a.text}${a.author ? ` (${a.author})` : ''}`);
 		lines.push('');
 	}
 	return lines.join('\n');

@@ -115,7 +115,8 @@ function single(frame: Frame, expected: FrameExpected, resolution_s: number): Ro
  */
 export function mergeRollups(a: Rollup, b: Rollup): Rollup {
 	const key = rollupKey(a);
-	if (key !== rollupKey(b)) throw new RangeError(`rollup: cannot merge bucket ${key} with bucket ${rollupKey(b)} (resolution_s:bucket_t differ)`);
+	if (key !== rollupKey(b))
+		throw new RangeError(`rollup: cannot merge bucket ${key} with bucket ${rollupKey(b)} (resolution_s:bucket_t differ)`);
 	let transitions: number[] | null;
 	if (a.transitions && b.transitions) transitions = addElementwise(a.transitions, b.transitions, 'transitions', key);
 	else transitions = a.transitions ? [...a.transitions] : b.transitions ? [...b.transitions] : null;

@@ -67,6 +67,7 @@ function positiveSeconds(env: NodeJS.ProcessEnv, name: string, fallback: number)
 
 function databaseUrl(raw: string | undefined): string | undefined {
 	if (!raw) return undefined;
-	if (!/^postgres(ql)?:\/\//.test(raw)) throw new Error(`DATABASE_URL must start with postgres:// or postgresql://, got "${raw.slice(0, 40)}"`);
+	if (!/^postgres(ql)?:\/\//.test(raw))
+		throw new Error(`DATABASE_URL must start with postgres:// or postgresql://, got "${raw.slice(0, 40)}"`);
 	return raw;
 }

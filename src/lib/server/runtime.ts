@@ -96,7 +96,11 @@ async function start(): Promise<Runtime> {
 		cluster
 	);
 	const stopMaintenance = scheduleMaintenance(db, config.maintenanceEveryMs, databaseKind, console.log, isLeader);
-	const reports = startReportScheduler({ db, mailer, origin: () => config.origin ?? 'http://localhost:5173', now: reportNow }, undefined, isLeader);
+	const reports = startReportScheduler(
+		{ db, mailer, origin: () => config.origin ?? 'http://localhost:5173', now: reportNow },
+		undefined,
+		isLeader
+	);
 	if (process.env.PHASEWARDEN_REPORTS === '0') reports.stop();
 	return {
 		config,

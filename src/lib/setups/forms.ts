@@ -8,7 +8,9 @@ import { safeText } from '../protocol/safe-text';
  * otherwise fills in 0) and is refused as missing rather than as out of range.
  */
 function requiredNumber(name: string, checks: (n: z.ZodNumber) => z.ZodNumber) {
-	const base = z.number({ error: (issue) => (issue.input === undefined || issue.input === null ? `${name} is required` : `${name} must be a number`) });
+	const base = z.number({
+		error: (issue) => (issue.input === undefined || issue.input === null ? `${name} is required` : `${name} must be a number`)
+	});
 	// The cast only tells TypeScript what the refine guarantees: the output is never null.
 	return checks(base)
 		.nullable()
@@ -19,8 +21,12 @@ export const newSetupSchema = z
 	.object({
 		name: safeText(z.string().trim().min(1, 'name is required').max(80, 'name is at most 80 characters')),
 		description: safeText(z.string().trim().max(500, 'description is at most 500 characters')).default(''),
-		order: requiredNumber('order (M)', (n) => n.int('order (M) is a whole number').min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8')),
-		states: requiredNumber('states', (n) => n.int('states is a whole number').min(2, 'states is at least 2').max(16, 'states is at most 16')),
+		order: requiredNumber('order (M)', (n) =>
+			n.int('order (M) is a whole number').min(2, 'order (M) is at least 2').max(8, 'order (M) is at most 8')
+		),
+		states: requiredNumber('states', (n) =>
+			n.int('states is a whole number').min(2, 'states is at least 2').max(16, 'states is at most 16')
+		),
 		mode_GHz: requiredNumber('mode_GHz', (n) => n.positive('mode_GHz must be positive').max(100, 'mode_GHz is at most 100')),
 		nominal_mK: requiredNumber('nominal_mK', (n) => n.min(0, 'nominal_mK must not be negative').max(4000, 'nominal_mK is at most 4000'))
 	})
@@ -35,9 +41,7 @@ export const agentTokenSchema = z.object({
 });
 
 export const newWebhookSchema = z.object({
-	url: z
-		.url({ message: 'url must be a URL' })
-		.refine((u) => /^https?:\/\//.test(u), 'url must start with http:// or https://'),
+	url: z.url({ message: 'url must be a URL' }).refine((u) => /^https?:\/\//.test(u), 'url must start with http:// or https://'),
 	label: z.string().trim().max(80, 'label is at most 80 characters').default('')
 });
 

@@ -186,7 +186,9 @@ function followCycle(start: number, H: number, k: number, mu: number, upward: bo
 	let pSignal = 0;
 	for (let j = 0; ; j++) {
 		if (j >= MAX_CYCLE_STEPS) {
-			throw new RangeError(`the Poisson CUSUM's run length did not settle within ${MAX_CYCLE_STEPS} steps of one cycle (h = ${H} counts, k = ${k})`);
+			throw new RangeError(
+				`the Poisson CUSUM's run length did not settle within ${MAX_CYCLE_STEPS} steps of one cycle (h = ${H} counts, k = ${k})`
+			);
 		}
 		meanSteps += alive;
 		const [nextLo, nextHi] = liveRange(j + 1);
@@ -245,13 +247,7 @@ function followCycle(start: number, H: number, k: number, mu: number, upward: bo
  * constant expected counts the ARL is a step function of h, jumping where h equals a value the
  * statistic can take. An ARL that is infinite (no count can ever signal) is returned as Infinity.
  */
-export function poissonCusumArl(
-	h: number,
-	rho: number,
-	muPerStep: number,
-	trueRatio = 1,
-	options: PoissonCusumArlOptions = {}
-): number {
+export function poissonCusumArl(h: number, rho: number, muPerStep: number, trueRatio = 1, options: PoissonCusumArlOptions = {}): number {
 	requirePositive('h', h);
 	requireRatio('rho', rho);
 	requirePositive('muPerStep', muPerStep);
@@ -283,11 +279,7 @@ export function poissonCusumArl(
  * {@link poissonCusumArl} to a relative width of 1e-4. Because counts are discrete, the ARL is a
  * step function of h; the h returned is at or just above the step that reaches the target.
  */
-export function poissonCusumDecisionInterval(
-	targetArl: number,
-	rho: number,
-	muPerStep: number
-): number {
+export function poissonCusumDecisionInterval(targetArl: number, rho: number, muPerStep: number): number {
 	requireTargetArl(targetArl);
 	requireRatio('rho', rho);
 	requirePositive('muPerStep', muPerStep);
@@ -402,11 +394,7 @@ export function normalCusumArl(params: NormalCusumArlParams): number {
  * targetArl (two-sided unless `twoSided: false`), found by false position on ln ARL
  * ({@link normalCusumArl}) to a relative width of 1e-8.
  */
-export function normalCusumDecisionInterval(
-	targetArl: number,
-	k: number,
-	options: { twoSided?: boolean } = {}
-): number {
+export function normalCusumDecisionInterval(targetArl: number, k: number, options: { twoSided?: boolean } = {}): number {
 	requireTargetArl(targetArl);
 	requireNonNegative('k', k);
 	const twoSided = options.twoSided ?? true;

@@ -40,11 +40,7 @@ export interface EwmaLimitOptions {
  * σ_Z = √(λ/(2−λ)) asymptotically, or √(λ/(2−λ)·(1 − (1−λ)^{2t})) after t observations from
  * Z₀ = 0 (the exact variance, narrower at the start).
  */
-export function ewmaLimits(
-	lambda: number,
-	L: number,
-	options: EwmaLimitOptions = {}
-): { lower: number; upper: number } {
+export function ewmaLimits(lambda: number, L: number, options: EwmaLimitOptions = {}): { lower: number; upper: number } {
 	requireLambda(lambda);
 	requirePositive('L', L);
 	const asymptotic = options.asymptotic ?? true;

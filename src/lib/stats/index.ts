@@ -25,11 +25,4 @@ export {
 	type NormalCusumState,
 	type NormalCusumArlParams
 } from './cusum';
-export {
-	ewmaStep,
-	ewmaLimits,
-	ewmaArl,
-	ewmaLimitForArl,
-	type EwmaLimitOptions,
-	type EwmaArlParams
-} from './ewma';
+export { ewmaStep, ewmaLimits, ewmaArl, ewmaLimitForArl, type EwmaLimitOptions, type EwmaArlParams } from './ewma';

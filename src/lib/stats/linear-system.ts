@@ -89,12 +89,7 @@ function solveWithPartialPivoting(a0: Float64Array, b0: Float64Array, n: number)
 	return backSubstitute(a, x, n, null);
 }
 
-function backSubstitute(
-	a: Float64Array,
-	x: Float64Array,
-	n: number,
-	rowEnd: Int32Array | null
-): Float64Array {
+function backSubstitute(a: Float64Array, x: Float64Array, n: number, rowEnd: Int32Array | null): Float64Array {
 	for (let r = n - 1; r >= 0; r--) {
 		let s = x[r];
 		const end = rowEnd ? rowEnd[r] : n;

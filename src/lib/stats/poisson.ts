@@ -168,13 +168,7 @@ export interface RateRatioResult {
  * ρ = (p/(1−p))·(t2/t1). It needs n ≥ 1: with no events at all the ratio is undetermined.
  * Tail probabilities and quantiles come from jstat's incomplete beta (about 1e-8 relative).
  */
-export function rateRatioTest(
-	x1: number,
-	t1: number,
-	x2: number,
-	t2: number,
-	confidence = 0.95
-): RateRatioResult {
+export function rateRatioTest(x1: number, t1: number, x2: number, t2: number, confidence = 0.95): RateRatioResult {
 	requireCount('x1', x1);
 	requireCount('x2', x2);
 	requirePositive('t1', t1);

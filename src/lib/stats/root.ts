@@ -39,9 +39,7 @@ export function solveIncreasing(
 	} else {
 		for (let i = 0; ga >= 0; i++) {
 			if (i > 60) {
-				throw new RangeError(
-					`every ${what} > 0 already gives a run length of at least ${target}: ask for a longer target run length`
-				);
+				throw new RangeError(`every ${what} > 0 already gives a run length of at least ${target}: ask for a longer target run length`);
 			}
 			b = a;
 			gb = ga;

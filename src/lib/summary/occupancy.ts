@@ -55,7 +55,14 @@ export function occupancySummary(input: OccupancyInput): OccupancySummary {
 	const shots = input.counts.reduce((a, b) => a + b, 0);
 	const counts = [...input.counts];
 	const fractions = counts.map((c) => (shots > 0 ? c / shots : 0));
-	const result = (test: OccupancyTestResult | null, untested: string | null): OccupancySummary => ({ states: K, shots, counts, fractions, test, untested });
+	const result = (test: OccupancyTestResult | null, untested: string | null): OccupancySummary => ({
+		states: K,
+		shots,
+		counts,
+		fractions,
+		test,
+		untested
+	});
 	if (K < 2) return result(null, 'a single state has no occupancy to compare');
 	if (shots === 0) return result(null, 'no shots landed in a phase state');
 	if (!input.symmetric) return result(null, 'the operating point is not symmetric, so equal filling is not expected');
@@ -63,7 +70,13 @@ export function occupancySummary(input: OccupancyInput): OccupancySummary {
 		const stat = occupancyStatisticFromModes(counts, observedModes(K, input.transitions), input.escapes, true, true);
 		if (!stat || stat.dof === 0) return result(null, 'no switches between states, so the shots are one long dwell');
 		return result(
-			{ method: 'observed transitions', statistic: stat.statistic, dof: stat.dof, pValue: chiSquareUpperTail(stat.statistic, stat.dof), residuals: stat.residuals },
+			{
+				method: 'observed transitions',
+				statistic: stat.statistic,
+				dof: stat.dof,
+				pValue: chiSquareUpperTail(stat.statistic, stat.dof),
+				residuals: stat.residuals
+			},
 			null
 		);
 	}

@@ -25,10 +25,19 @@ export type RateComparison = {
 export function compareRate(count: number, exposure_s: number, expected: number | null, confidence = 0.95): RateComparison {
 	if (!Number.isInteger(count) || count < 0) throw new RangeError(`rate: count must be a whole number ≥ 0, got ${count}`);
 	if (!Number.isFinite(exposure_s) || exposure_s < 0) throw new RangeError(`rate: exposure_s must be ≥ 0 seconds, got ${exposure_s}`);
-	if (expected !== null && (!Number.isFinite(expected) || expected < 0)) throw new RangeError(`rate: expected count must be ≥ 0, got ${expected}`);
+	if (expected !== null && (!Number.isFinite(expected) || expected < 0))
+		throw new RangeError(`rate: expected count must be ≥ 0, got ${expected}`);
 	const base = { count, exposure_s, confidence, expected };
 	if (exposure_s === 0) {
-		return { ...base, rate_per_s: null, interval_per_s: null, expected_rate_per_s: null, ratio: null, pValue: null, verdict: 'no exposure' };
+		return {
+			...base,
+			rate_per_s: null,
+			interval_per_s: null,
+			expected_rate_per_s: null,
+			ratio: null,
+			pValue: null,
+			verdict: 'no exposure'
+		};
 	}
 	const limits = poissonInterval(count, confidence);
 	const interval_per_s = { lower: limits.lower / exposure_s, upper: limits.upper / exposure_s };

@@ -7,7 +7,8 @@ export type CoverPiece = { resolution_s: number; from_ms: number; to_ms: number 
 export type SpanCover = { from_ms: number; to_ms: number; pieces: CoverPiece[] };
 
 export function coverSpan(from_ms: number, to_ms: number, resolutions_s: readonly number[]): SpanCover {
-	if (!Number.isFinite(from_ms) || !Number.isFinite(to_ms)) throw new RangeError(`span: from_ms ${from_ms} and to_ms ${to_ms} must be finite ms`);
+	if (!Number.isFinite(from_ms) || !Number.isFinite(to_ms))
+		throw new RangeError(`span: from_ms ${from_ms} and to_ms ${to_ms} must be finite ms`);
 	if (to_ms <= from_ms) throw new RangeError(`span: to_ms (${to_ms}) must be after from_ms (${from_ms})`);
 	const sorted = [...resolutions_s].sort((a, b) => a - b);
 	if (sorted.length === 0) throw new RangeError('span: at least one resolution is needed');

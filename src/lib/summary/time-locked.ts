@@ -33,7 +33,8 @@ export function straddles(b: Pick<LockBucket, 'lockMin' | 'lockMax'>, threshold:
 }
 
 export function timeLocked(buckets: readonly LockBucket[], threshold: number): TimeLocked {
-	if (!Number.isFinite(threshold) || threshold < 0 || threshold > 1) throw new RangeError(`time locked: threshold must lie in [0, 1], got ${threshold}`);
+	if (!Number.isFinite(threshold) || threshold < 0 || threshold > 1)
+		throw new RangeError(`time locked: threshold must lie in [0, 1], got ${threshold}`);
 	let data_s = 0;
 	let min = 0;
 	let max = 0;

@@ -84,7 +84,7 @@ export function bucketsFromRollups(rows: readonly Rollup[], plan: TimelinePlan, 
 	const width_ms = plan.width_s * 1000;
 	const merged = new Map<number, Rollup>();
 	for (const row of rows) {
-		if ((width_ms % (row.resolution_s * 1000)) !== 0) {
+		if (width_ms % (row.resolution_s * 1000) !== 0) {
 			throw new RangeError(`timeline: a ${row.resolution_s} s rollup cannot be split into ${plan.width_s} s buckets`);
 		}
 		if (row.bucket_t < plan.from_ms || row.bucket_t >= plan.to_ms) continue;

@@ -12,7 +12,13 @@ export type RatePoint = {
 };
 
 /** Null when the bucket had no exposure (nothing to divide by). */
-export function ratePoint(count: number, exposure_s: number, expected: number | null, band: CountBand | null, confidence = 0.95): RatePoint | null {
+export function ratePoint(
+	count: number,
+	exposure_s: number,
+	expected: number | null,
+	band: CountBand | null,
+	confidence = 0.95
+): RatePoint | null {
 	if (!(exposure_s > 0)) return null;
 	const ci = poissonInterval(count, confidence);
 	return {

@@ -7,7 +7,28 @@ const S = 1000;
 const M = 60 * S;
 const H = 60 * M;
 const D = 24 * H;
-const STEPS_MS = [S, 2 * S, 5 * S, 10 * S, 15 * S, 30 * S, M, 2 * M, 5 * M, 10 * M, 15 * M, 30 * M, H, 2 * H, 3 * H, 6 * H, 12 * H, D, 2 * D, 7 * D];
+const STEPS_MS = [
+	S,
+	2 * S,
+	5 * S,
+	10 * S,
+	15 * S,
+	30 * S,
+	M,
+	2 * M,
+	5 * M,
+	10 * M,
+	15 * M,
+	30 * M,
+	H,
+	2 * H,
+	3 * H,
+	6 * H,
+	12 * H,
+	D,
+	2 * D,
+	7 * D
+];
 
 export type Tick = { t_ms: number; label: string };
 

@@ -27,7 +27,12 @@ export interface LineRules {
 export type CheckedLine = { line: number; frame: Frame } | { line: number; problem: string } | { line: number; blank: true };
 
 /** Parses and checks one line; `prev` is the last good frame's seq and line (order is checked against it). */
-export function checkFrameLine(text: string | null, line: number, rules: LineRules, prev: { seq: number; line: number } | null): CheckedLine {
+export function checkFrameLine(
+	text: string | null,
+	line: number,
+	rules: LineRules,
+	prev: { seq: number; line: number } | null
+): CheckedLine {
 	if (text === null) return { line, problem: `longer than ${MAX_LINE_CHARS} characters (one frame per line)` };
 	if (text.trim() === '') return { line, blank: true };
 	let json: unknown;
@@ -42,7 +47,10 @@ export function checkFrameLine(text: string | null, line: number, rules: LineRul
 	const mismatch = checkFrameAgainstRun(frame, rules.states);
 	if (mismatch) return { line, problem: `${mismatch.path}: ${mismatch.message}` };
 	if (prev && frame.seq <= prev.seq) {
-		return { line, problem: `seq ${frame.seq} does not come after seq ${prev.seq} (line ${prev.line}): frames go one per seq, in increasing seq order` };
+		return {
+			line,
+			problem: `seq ${frame.seq} does not come after seq ${prev.seq} (line ${prev.line}): frames go one per seq, in increasing seq order`
+		};
 	}
 	if (rules.maxSeq !== null && frame.seq > rules.maxSeq) {
 		return { line, problem: `seq ${frame.seq} is above ${rules.maxSeq}${rules.maxSeqReason ? `: ${rules.maxSeqReason}` : ''}` };

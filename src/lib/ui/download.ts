@@ -18,7 +18,12 @@ export function fileNameOf(res: Response, fallback: string): string {
 }
 
 /** Fetches `url` and saves it as a file, reporting progress; throws with the server's message on failure. */
-export async function downloadWithProgress(url: string, fallbackName: string, onProgress: (p: DownloadProgress) => void, signal?: AbortSignal) {
+export async function downloadWithProgress(
+	url: string,
+	fallbackName: string,
+	onProgress: (p: DownloadProgress) => void,
+	signal?: AbortSignal
+) {
 	const res = await fetch(url, { signal });
 	if (!res.ok || !res.body) {
 		const body = await res.json().catch(() => null);

@@ -14,8 +14,26 @@ export function vapidKeyBytes(base64url: string): Uint8Array<ArrayBuffer> {
 
 /** A short name for this browser, so the device list tells phone from laptop. */
 export function deviceLabel(userAgent: string): string {
-	const os = /Android/.test(userAgent) ? 'Android' : /iPhone|iPad/.test(userAgent) ? 'iOS' : /Mac OS X/.test(userAgent) ? 'macOS' : /Windows/.test(userAgent) ? 'Windows' : /Linux/.test(userAgent) ? 'Linux' : 'device';
-	const browser = /Edg\//.test(userAgent) ? 'Edge' : /Firefox\//.test(userAgent) ? 'Firefox' : /Chrome\//.test(userAgent) ? 'Chrome' : /Safari\//.test(userAgent) ? 'Safari' : 'browser';
+	const os = /Android/.test(userAgent)
+		? 'Android'
+		: /iPhone|iPad/.test(userAgent)
+			? 'iOS'
+			: /Mac OS X/.test(userAgent)
+				? 'macOS'
+				: /Windows/.test(userAgent)
+					? 'Windows'
+					: /Linux/.test(userAgent)
+						? 'Linux'
+						: 'device';
+	const browser = /Edg\//.test(userAgent)
+		? 'Edge'
+		: /Firefox\//.test(userAgent)
+			? 'Firefox'
+			: /Chrome\//.test(userAgent)
+				? 'Chrome'
+				: /Safari\//.test(userAgent)
+					? 'Safari'
+					: 'browser';
 	return `${browser} on ${os}`;
 }
 

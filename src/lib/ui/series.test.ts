@@ -75,7 +75,11 @@ describe('mergeFrames', () => {
 				fc.integer({ min: 1, max: 100 }),
 				(a, b, cap) => {
 					const existing = [...a].sort((x, y) => x - y).map((s) => frame(s));
-					const merged = mergeFrames(existing, b.map((s) => frame(s)), cap);
+					const merged = mergeFrames(
+						existing,
+						b.map((s) => frame(s)),
+						cap
+					);
 					const union = [...new Set([...a, ...b])].sort((x, y) => x - y);
 					expect(merged.map((f) => f.seq)).toEqual(union.slice(Math.max(0, union.length - cap)));
 				}

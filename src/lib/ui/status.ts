@@ -1,7 +1,20 @@
 // The status vocabulary: every state has a word, a shape and a tone, so none depends on colour.
 import type { IncidentState, Run, Severity } from './types';
 
-export type Shape = 'dot' | 'ring' | 'square' | 'diamond' | 'half-diamond' | 'check' | 'triangle' | 'triangle-outline' | 'circle-i' | 'bars-3' | 'bars-2' | 'bars-1' | 'bars-0';
+export type Shape =
+	| 'dot'
+	| 'ring'
+	| 'square'
+	| 'diamond'
+	| 'half-diamond'
+	| 'check'
+	| 'triangle'
+	| 'triangle-outline'
+	| 'circle-i'
+	| 'bars-3'
+	| 'bars-2'
+	| 'bars-1'
+	| 'bars-0';
 export type Tone = 'steady' | 'caution' | 'alarm' | 'accent' | 'muted';
 
 export interface StatusLook {
@@ -63,4 +76,3 @@ export function feedLook(status: 'connecting' | 'live' | 'retrying' | 'closed'):
 			return { word: 'Paused', shape: 'square', tone: 'muted', hint: 'Live updates closed' };
 	}
 }
-

@@ -32,7 +32,8 @@ const formatters = new Map<string, Intl.DateTimeFormat>();
 export function zonedParts(ms: number, timeZone: string = displayZone): ZonedParts {
 	let f = formatters.get(timeZone);
 	if (!f) {
-		if (!isTimeZone(timeZone)) throw new RangeError(`unknown time zone ${JSON.stringify(timeZone)} (use an IANA name such as Europe/Vienna)`);
+		if (!isTimeZone(timeZone))
+			throw new RangeError(`unknown time zone ${JSON.stringify(timeZone)} (use an IANA name such as Europe/Vienna)`);
 		f = new Intl.DateTimeFormat('en-GB', {
 			timeZone,
 			year: 'numeric',

@@ -3,11 +3,14 @@
 // tells a person neither which field nor what to do.
 import { z } from 'zod';
 
-const missing = (input: unknown) => input === undefined || input === null || input === '' || (typeof input === 'number' && Number.isNaN(input));
+const missing = (input: unknown) =>
+	input === undefined || input === null || input === '' || (typeof input === 'number' && Number.isNaN(input));
 
 /** A finite number called `name`: "mode_GHz is required" when absent, "mode_GHz must be a number" when not one. */
 export function numberField(name: string) {
-	return z.number({ error: (issue) => (missing(issue.input) ? `${name} is required` : `${name} must be a number`) }).finite(`${name} must be a finite number`);
+	return z
+		.number({ error: (issue) => (missing(issue.input) ? `${name} is required` : `${name} must be a number`) })
+		.finite(`${name} must be a finite number`);
 }
 
 /**

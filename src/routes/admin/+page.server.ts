@@ -13,7 +13,10 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ locals }) => {
 	if (locals.user?.role !== 'admin') error(403, 'Managing people needs the admin role.');
 	const { db } = await getRuntime();
-	const [users, form] = await Promise.all([listUsers(db), superValidate({ role: 'observer' as const }, zod4(newUserSchema), { errors: false })]);
+	const [users, form] = await Promise.all([
+		listUsers(db),
+		superValidate({ role: 'observer' as const }, zod4(newUserSchema), { errors: false })
+	]);
 	return { users, form };
 };
 

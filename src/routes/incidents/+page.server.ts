@@ -12,7 +12,14 @@ export const load: PageServerLoad = async (event) => {
 	const q = parseQuery(event.url.searchParams);
 	const { db } = await getRuntime();
 	const [list, setups] = await Promise.all([
-		listIncidents(db, { sort: q.sort, order: q.order, page: q.page, pageSize: q.pageSize, state: q.state || undefined, setup: q.setup || undefined }),
+		listIncidents(db, {
+			sort: q.sort,
+			order: q.order,
+			page: q.page,
+			pageSize: q.pageSize,
+			state: q.state || undefined,
+			setup: q.setup || undefined
+		}),
 		listSetups(db)
 	]);
 	return {

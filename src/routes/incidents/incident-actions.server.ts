@@ -13,12 +13,14 @@ async function act({ request, locals }: RequestEvent, verb: IncidentVerb) {
 	const parsed = noteSchema.safeParse({ note: typeof rawNote === 'string' && rawNote.trim() ? rawNote : undefined });
 	if (!parsed.success) return fail(400, { message: parsed.error.issues[0].message, incidentId: id });
 	const user = locals.user;
-	if (!user || !hasRole(user.role, 'operator')) return fail(403, { message: 'Your role may not change incidents; an operator can.', incidentId: id });
+	if (!user || !hasRole(user.role, 'operator'))
+		return fail(403, { message: 'Your role may not change incidents; an operator can.', incidentId: id });
 	try {
 		await changeIncidentState(verb, id, user.id, parsed.data.note);
 	} catch (err) {
 		if (!(err instanceof IncidentActionError)) throw err;
-		const why = err.status === 409 ? `${err.message} (someone may have done it already; the page now shows the current state).` : err.message;
+		const why =
+			err.status === 409 ? `${err.message} (someone may have done it already; the page now shows the current state).` : err.message;
 		return fail(err.status, { message: why, incidentId: id });
 	}
 	return { done: verb, incidentId: id, message: null as string | null };

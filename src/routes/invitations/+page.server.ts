@@ -23,7 +23,11 @@ export const actions: Actions = {
 		if (!form.valid) return fail(400, { form });
 		const { db, mailer, config } = await getRuntime();
 		try {
-			const invitation = await inviteAndMail({ db, mailer, origin: config.origin ?? event.url.origin, ttl_s: config.inviteTtl_s }, me, form.data);
+			const invitation = await inviteAndMail(
+				{ db, mailer, origin: config.origin ?? event.url.origin, ttl_s: config.inviteTtl_s },
+				me,
+				form.data
+			);
 			return message(form, `Invitation sent to ${invitation.email}.`);
 		} catch (err) {
 			if (!(err instanceof InvitationError)) throw err;
@@ -37,7 +41,8 @@ export const actions: Actions = {
 		const { db } = await getRuntime();
 		const found = await findInvitation(db, id);
 		if (!found) error(404, 'no invitation with this id');
-		if (!isRole(found.role) || !mayInvite(me.role, found.role)) return kitFail(403, { withdrawError: `only an admin can withdraw an invitation as ${found.role}` });
+		if (!isRole(found.role) || !mayInvite(me.role, found.role))
+			return kitFail(403, { withdrawError: `only an admin can withdraw an invitation as ${found.role}` });
 		await revokeInvitation(db, id);
 		return { withdrawn: id };
 	}

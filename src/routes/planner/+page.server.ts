@@ -141,7 +141,12 @@ export const actions: Actions = {
 		if ('failure' in read) return read.failure;
 		const { outcome, setup } = read;
 		if (!outcome.ok) {
-			return fail(400, { intent: 'fitCalibration', fileName: read.fileName, csvErrors: outcome.errors, message: 'The table was refused; nothing was stored.' });
+			return fail(400, {
+				intent: 'fitCalibration',
+				fileName: read.fileName,
+				csvErrors: outcome.errors,
+				message: 'The table was refused; nothing was stored.'
+			});
 		}
 		return {
 			intent: 'fitCalibration' as const,
@@ -168,7 +173,11 @@ export const actions: Actions = {
 		if ('failure' in read) return read.failure;
 		// The same fit as shown: the table is re-read and re-fitted here, never taken from the page.
 		if (!read.outcome.ok) {
-			return fail(400, { intent: 'saveCalibration', csvErrors: read.outcome.errors, message: 'The table was refused; nothing was stored.' });
+			return fail(400, {
+				intent: 'saveCalibration',
+				csvErrors: read.outcome.errors,
+				message: 'The table was refused; nothing was stored.'
+			});
 		}
 		const put = await putModel(event, read.setup.id, read.outcome.fit.model, field(form, 'note'));
 		if (!put.ok) return fail(put.status, { intent: 'saveCalibration', message: put.message });

@@ -29,8 +29,7 @@ export interface CalibrationOptions {
 }
 
 export type CalibrationOutcome =
-	| { ok: true; fit: ActivationFit; points: CalibrationPlotPoint[]; hasOperatingPoints: boolean }
-	| { ok: false; errors: CsvError[] };
+	{ ok: true; fit: ActivationFit; points: CalibrationPlotPoint[]; hasOperatingPoints: boolean } | { ok: false; errors: CsvError[] };
 
 /** Parses and fits; a table that parses but cannot be fitted comes back as one error on line 1. */
 export function fitCalibrationTable(text: string, options: CalibrationOptions): CalibrationOutcome {
@@ -54,7 +53,12 @@ export function fitCalibrationTable(text: string, options: CalibrationOptions): 
 	if (!(fit.model.A >= 0)) {
 		return {
 			ok: false,
-			errors: [{ line: 1, message: `the fit gives a negative activation exponent (A = ${fit.model.A.toPrecision(3)}): the rate falls as the temperature rises, which this law cannot describe` }]
+			errors: [
+				{
+					line: 1,
+					message: `the fit gives a negative activation exponent (A = ${fit.model.A.toPrecision(3)}): the rate falls as the temperature rises, which this law cannot describe`
+				}
+			]
 		};
 	}
 	const ref = fit.model.reference;

@@ -35,4 +35,3 @@ export function collectErrors<F extends string>(error: z.ZodError): Partial<Reco
 	}
 	return errors;
 }
-

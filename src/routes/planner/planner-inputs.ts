@@ -174,10 +174,7 @@ export function queryFromForm(form: PlannerForm, setupId: string | null, base: P
 }
 
 /** What a setup decides: M, the mode frequency, the base temperature, and K = M or 2M states. */
-export function formForSetup(
-	form: PlannerForm,
-	setup: { order: number; states: number; modeGHz: number; nominalMK: number }
-): PlannerForm {
+export function formForSetup(form: PlannerForm, setup: { order: number; states: number; modeGHz: number; nominalMK: number }): PlannerForm {
 	const order = setup.order === 2 || setup.order === 3 || setup.order === 4 ? String(setup.order) : form.order;
 	return {
 		...form,

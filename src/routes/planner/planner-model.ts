@@ -8,13 +8,7 @@
 // enter only as the product λ(2n̄+1). A sweep at 2n̄+1 = 1 over several λ gives
 // ln W = ln W0 − R/λ; at the device's own λ_q and a temperature T the same law reads
 // W = W0·exp(−(R/λ_q)/(2n̄(f,T)+1)), which is the monitor's W0·exp(−A/(2n̄+1)) with A = R/λ_q.
-import {
-	predictRate,
-	type RateModel,
-	type RatePrediction,
-	type SimulatedRate,
-	type SimulationFit
-} from '$lib/physics/activation';
+import { predictRate, type RateModel, type RatePrediction, type SimulatedRate, type SimulationFit } from '$lib/physics/activation';
 import { MK_PER_GHZ } from '$lib/physics/constants';
 import type { ModelParams } from '$lib/physics/model';
 import type { SweepResult, SwitchingResult } from '$lib/physics/langevin';
@@ -98,9 +92,7 @@ export interface CurvePoint {
 	upper: number;
 }
 
-export type Forecast =
-	| { ok: true; prediction: RatePrediction; scaled: boolean }
-	| { ok: false; message: string };
+export type Forecast = { ok: true; prediction: RatePrediction; scaled: boolean } | { ok: false; message: string };
 
 /**
  * predictRate at a temperature, scaling an escape model to the operating point when it has a

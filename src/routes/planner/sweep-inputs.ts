@@ -33,32 +33,30 @@ export interface SweepValues {
 
 const sweepSchema = z.object({
 	process: z.enum(['escape', 'switching'], { message: 'Choose escape or switching' }),
-	lambdas: z
-		.string()
-		.transform((s, ctx) => {
-			const parts = s
-				.split(/[,;\s]+/)
-				.map((p) => p.trim())
-				.filter(Boolean);
-			const values: number[] = [];
-			for (const p of parts) {
-				const x = Number(p);
-				if (!NUMBER.test(p) || !(x > 0) || x > 5) {
-					ctx.addIssue({ code: 'custom', message: `λ values must be numbers between 0 and 5; "${p}" is not` });
-					return z.NEVER;
-				}
-				values.push(x);
-			}
-			if (values.length < 2 || values.length > 8) {
-				ctx.addIssue({ code: 'custom', message: 'Give 2 to 8 λ values, separated by commas' });
+	lambdas: z.string().transform((s, ctx) => {
+		const parts = s
+			.split(/[,;\s]+/)
+			.map((p) => p.trim())
+			.filter(Boolean);
+		const values: number[] = [];
+		for (const p of parts) {
+			const x = Number(p);
+			if (!NUMBER.test(p) || !(x > 0) || x > 5) {
+				ctx.addIssue({ code: 'custom', message: `λ values must be numbers between 0 and 5; "${p}" is not` });
 				return z.NEVER;
 			}
-			if (new Set(values).size < 2) {
-				ctx.addIssue({ code: 'custom', message: 'The λ values must not all be equal: the fit needs a spread in 1/λ' });
-				return z.NEVER;
-			}
-			return values;
-		}),
+			values.push(x);
+		}
+		if (values.length < 2 || values.length > 8) {
+			ctx.addIssue({ code: 'custom', message: 'Give 2 to 8 λ values, separated by commas' });
+			return z.NEVER;
+		}
+		if (new Set(values).size < 2) {
+			ctx.addIssue({ code: 'custom', message: 'The λ values must not all be equal: the fit needs a spread in 1/λ' });
+			return z.NEVER;
+		}
+		return values;
+	}),
 	trajectories: integerField('Trajectories', 1, 2000),
 	maxTime: numberField('Time limit').pipe(z.number().gt(0, 'Time limit must be positive').max(1e6, 'Time limit must be at most 10⁶')),
 	duration: numberField('Duration').pipe(z.number().gt(0, 'Duration must be positive').max(1e6, 'Duration must be at most 10⁶')),

@@ -27,7 +27,8 @@ export const actions: Actions = {
 		const person = requireRole(event, 'observer');
 		const form = Object.fromEntries(await event.request.formData());
 		const parsed = spanForm.safeParse(form);
-		if (!parsed.success) return fail(400, { message: describeZodError(parsed.error), since: String(form.since ?? ''), until: String(form.until ?? '') });
+		if (!parsed.success)
+			return fail(400, { message: describeZodError(parsed.error), since: String(form.since ?? ''), until: String(form.until ?? '') });
 		const { db } = await getRuntime();
 		const now_ms = reportNow();
 		const { effectiveTimeZone } = await getReportSettings(db, person.id, now_ms);

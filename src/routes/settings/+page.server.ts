@@ -32,7 +32,11 @@ export const load: PageServerLoad = async (event) => {
 		alertPrefs,
 		push: { devices, publicKey: delivery.vapid.publicKey, catcher: Boolean(delivery.pushCatcher) },
 		phone,
-		reportSettings: settings, setups: allSetups, memberOf: member.map((m) => m.id), labTimeZone: labTimeZone() };
+		reportSettings: settings,
+		setups: allSetups,
+		memberOf: member.map((m) => m.id),
+		labTimeZone: labTimeZone()
+	};
 };
 
 export const actions: Actions = {

@@ -12,7 +12,10 @@ export async function loadAlertPrefs(event: Pick<RequestEvent, 'locals'>) {
 	const { db } = await getRuntime();
 	const prefs = (await prefsOf(db, [person.id])).get(person.id)!;
 	// The stored zone (empty when following the lab's), not the resolved one, so the form shows the choice.
-	const [row] = await db.select({ timeZone: alertPreferences.timeZone }).from(alertPreferences).where(eq(alertPreferences.userId, person.id));
+	const [row] = await db
+		.select({ timeZone: alertPreferences.timeZone })
+		.from(alertPreferences)
+		.where(eq(alertPreferences.userId, person.id));
 	return { ...prefs, timeZone: row?.timeZone ?? '' };
 }
 

@@ -23,7 +23,8 @@ export const actions: Actions = {
 		if (!user || !hasRole(user.role, 'operator')) return message(form, 'Only operators can add setups.', { status: 403 });
 		if (!form.valid) return fail(400, { form });
 		const { db } = await getRuntime();
-		if (await setupNameTaken(db, form.data.name)) return setError(form, 'name', `a setup called "${form.data.name}" exists already`, { status: 409 });
+		if (await setupNameTaken(db, form.data.name))
+			return setError(form, 'name', `a setup called "${form.data.name}" exists already`, { status: 409 });
 		const setup = await createSetup(db, form.data, user.id);
 		redirect(303, `/setups/${setup.id}`);
 	}

@@ -17,10 +17,20 @@ export const load: PageServerLoad = async ({ locals, url }) => {
 	const [list, setupRows, openRuns] = await Promise.all([
 		listSilences(db),
 		db.select({ id: setups.id, name: setups.name }).from(setups).orderBy(asc(setups.name)),
-		db.select({ id: runs.id, name: runs.name, setupId: runs.setupId }).from(runs).where(eq(runs.status, 'open')).orderBy(desc(runs.startedAt))
+		db
+			.select({ id: runs.id, name: runs.name, setupId: runs.setupId })
+			.from(runs)
+			.where(eq(runs.status, 'open'))
+			.orderBy(desc(runs.startedAt))
 	]);
 	const form = await superValidate(
-		{ setupId: url.searchParams.get('setup') ?? setupRows[0]?.id ?? '', runId: url.searchParams.get('run') ?? '', kind: '', duration_min: 60, reason: '' },
+		{
+			setupId: url.searchParams.get('setup') ?? setupRows[0]?.id ?? '',
+			runId: url.searchParams.get('run') ?? '',
+			kind: '',
+			duration_min: 60,
+			reason: ''
+		},
 		zod4(silenceSchema),
 		{ errors: false }
 	);

@@ -75,7 +75,15 @@ export class BenchAgent {
 	ackOf(seq: number, timeout_ms = 120_000): Promise<number> {
 		if (this.lastAck >= seq) return Promise.resolve(performance.now());
 		return new Promise((resolve, reject) => {
-			const timer = setTimeout(() => reject(new Error(`run ${this.runId}: no ack for seq ${seq} within ${timeout_ms} ms (last ack ${this.lastAck}; errors: ${this.errors.slice(0, 3).join('; ')})`)), timeout_ms);
+			const timer = setTimeout(
+				() =>
+					reject(
+						new Error(
+							`run ${this.runId}: no ack for seq ${seq} within ${timeout_ms} ms (last ack ${this.lastAck}; errors: ${this.errors.slice(0, 3).join('; ')})`
+						)
+					),
+				timeout_ms
+			);
 			timer.unref();
 			this.waiters.push({
 				seq,

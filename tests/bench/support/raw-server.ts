@@ -17,13 +17,31 @@ if (insertKind !== 'values' && insertKind !== 'jsonb') throw new Error(`insert k
 
 const { client: pg, close } = await openDatabase(dataDir, migrationsDir);
 
-const COLUMNS = ['run_id', 'seq', 't', 'window_s', 'shots', 'vacuum', 'counts', 'lock', 'switches', 'dwell_s', 'escapes', 'vacuum_s', 'transitions', 'amp', 'aux', 'iq'];
+const COLUMNS = [
+	'run_id',
+	'seq',
+	't',
+	'window_s',
+	'shots',
+	'vacuum',
+	'counts',
+	'lock',
+	'switches',
+	'dwell_s',
+	'escapes',
+	'vacuum_s',
+	'transitions',
+	'amp',
+	'aux',
+	'iq'
+];
 
 type WireFrame = Frame;
 
 const json = (v: unknown) => (v === undefined ? null : JSON.stringify(v));
 
-const RECORD_TYPES = 'seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
+const RECORD_TYPES =
+	'seq integer, t bigint, window_s float8, shots integer, vacuum integer, counts jsonb, lock float8, switches integer, dwell_s float8, escapes integer, vacuum_s float8, transitions jsonb, amp float8, aux jsonb, iq jsonb';
 
 async function insertFrames(runId: string, frames: WireFrame[]) {
 	if (insertKind === 'jsonb') {
@@ -38,7 +56,24 @@ async function insertFrames(runId: string, frames: WireFrame[]) {
 	const tuples: string[] = [];
 	for (const f of frames) {
 		const base = params.length;
-		params.push(runId, f.seq, Math.round(f.t), f.window_s, f.shots, f.vacuum, json(f.counts), f.lock, f.switches, f.dwell_s, f.escapes, f.vacuum_s, json(f.transitions), f.amp ?? null, json(f.aux), json(f.iq));
+		params.push(
+			runId,
+			f.seq,
+			Math.round(f.t),
+			f.window_s,
+			f.shots,
+			f.vacuum,
+			json(f.counts),
+			f.lock,
+			f.switches,
+			f.dwell_s,
+			f.escapes,
+			f.vacuum_s,
+			json(f.transitions),
+			f.amp ?? null,
+			json(f.aux),
+			json(f.iq)
+		);
 		tuples.push(`(${COLUMNS.map((_, i) => `$${base + i + 1}`).join(',')})`);
 	}
 	await pg.query(`INSERT INTO frames (${COLUMNS.join(',')}) VALUES ${tuples.join(',')} ON CONFLICT DO NOTHING`, params);
@@ -51,7 +86,15 @@ async function runFor(key: string, run: { name: string; order: number; states: n
 	);
 	if (found.rows[0]) return { id: found.rows[0].id, lastSeq: found.rows[0].last ?? 0 };
 	const id = randomUUID();
-	await pg.query('INSERT INTO runs (id, setup_id, key, name, "order", states, mode_ghz) VALUES ($1, $2, $3, $4, $5, $6, $7)', [id, setupId, key, run.name, run.order, run.states, run.mode_GHz]);
+	await pg.query('INSERT INTO runs (id, setup_id, key, name, "order", states, mode_ghz) VALUES ($1, $2, $3, $4, $5, $6, $7)', [
+		id,
+		setupId,
+		key,
+		run.name,
+		run.order,
+		run.states,
+		run.mode_GHz
+	]);
 	return { id, lastSeq: 0 };
 }
 
@@ -62,19 +105,21 @@ wss.on('connection', (ws) => {
 	let chain: Promise<unknown> = Promise.resolve();
 	ws.on('message', (data) => {
 		const msg = JSON.parse(String(data));
-		chain = chain.then(async () => {
-			if (msg.type === 'hello') {
-				const run = await runFor(msg.run.key, msg.run);
-				runId = run.id;
-				ws.send(JSON.stringify({ type: 'welcome', run: run.id, lastSeq: run.lastSeq }));
-			} else if (msg.type === 'frames' && runId) {
-				await insertFrames(runId, msg.frames);
-				ws.send(JSON.stringify({ type: 'ack', seq: msg.frames[msg.frames.length - 1].seq }));
-			}
-		}).catch((err) => {
-			console.error('raw server: message failed', err);
-			ws.close(1011);
-		});
+		chain = chain
+			.then(async () => {
+				if (msg.type === 'hello') {
+					const run = await runFor(msg.run.key, msg.run);
+					runId = run.id;
+					ws.send(JSON.stringify({ type: 'welcome', run: run.id, lastSeq: run.lastSeq }));
+				} else if (msg.type === 'frames' && runId) {
+					await insertFrames(runId, msg.frames);
+					ws.send(JSON.stringify({ type: 'ack', seq: msg.frames[msg.frames.length - 1].seq }));
+				}
+			})
+			.catch((err) => {
+				console.error('raw server: message failed', err);
+				ws.close(1011);
+			});
 	});
 });
 wss.on('listening', () => console.log(`listening ${(wss.address() as { port: number }).port}`));

@@ -56,7 +56,12 @@ export async function startAppServer(dataDir: string, env: Record<string, string
 	child.stdout!.on('data', (d) => (log = (log + d).slice(-20_000)));
 	child.stderr!.on('data', (d) => (log = (log + d).slice(-20_000)));
 	const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
-	await waitUntil(child, () => log, async () => (await fetch(`${url}/api/health`)).ok, 'app server');
+	await waitUntil(
+		child,
+		() => log,
+		async () => (await fetch(`${url}/api/health`)).ok,
+		'app server'
+	);
 	return {
 		url,
 		wsUrl: `ws://127.0.0.1:${port}/api/agent/stream`,

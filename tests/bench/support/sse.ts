@@ -9,7 +9,11 @@ export interface SseConnection {
 	ready: Promise<void>;
 }
 
-export function openEventStream(url: string, cookie: string, onEvent: (event: string, data: unknown, at_ms: number) => void): SseConnection {
+export function openEventStream(
+	url: string,
+	cookie: string,
+	onEvent: (event: string, data: unknown, at_ms: number) => void
+): SseConnection {
 	const abort = new AbortController();
 	let markReady: () => void = () => {};
 	let failReady: (err: Error) => void = () => {};

@@ -33,7 +33,8 @@ function fmt(x: number): string {
 function judge(row: BenchRow, ratio: number): { target: string; verdict: string } {
 	const t = row.target;
 	if (t.on === 'none') return { target: '(reference)', verdict: '' };
-	if (t.on === 'difference') return { target: `app − baseline ≤ ${fmt(t.atMost)} ${t.unit}`, verdict: row.app - row.baseline <= t.atMost ? 'pass' : 'FAIL' };
+	if (t.on === 'difference')
+		return { target: `app − baseline ≤ ${fmt(t.atMost)} ${t.unit}`, verdict: row.app - row.baseline <= t.atMost ? 'pass' : 'FAIL' };
 	if (t.on === 'app') return { target: `≤ ${fmt(t.atMost)} ${t.unit}`, verdict: row.app <= t.atMost ? 'pass' : 'FAIL' };
 	if ('atLeast' in t) return { target: `ratio ≥ ${t.atLeast}`, verdict: ratio >= t.atLeast ? 'pass' : 'FAIL' };
 	return { target: `ratio ≤ ${t.atMost}`, verdict: ratio <= t.atMost ? 'pass' : 'FAIL' };
@@ -47,7 +48,9 @@ export function printTable(title: string, rows: BenchRow[], notes: string[] = []
 		const ratio = row.ratio ?? row.app / row.baseline;
 		const { target, verdict } = judge(row, ratio);
 		if (verdict === 'FAIL') failed++;
-		lines.push(`| ${row.measure} | ${fmt(row.app)} ${row.unit} | ${fmt(row.baseline)} ${row.unit} | ${fmt(ratio)} | ${target} | ${verdict} |`);
+		lines.push(
+			`| ${row.measure} | ${fmt(row.app)} ${row.unit} | ${fmt(row.baseline)} ${row.unit} | ${fmt(ratio)} | ${target} | ${verdict} |`
+		);
 	}
 	if (notes.length) lines.push('', ...notes.map((n) => `- ${n}`));
 	console.log(lines.join('\n') + '\n');

@@ -23,9 +23,13 @@ const T0_MS = 1_798_761_600_000; // 2027-01-01T00:00Z
 
 export type TimelineData = { dataDir: string; setupId: string; weekRunId: string; hourRunId: string };
 
-async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId: string, frames: number, lostSeqs: [number, number] | null) {
+async function fillRun(
+	db: Awaited<ReturnType<typeof openDatabase>>['db'],
+	runId: string,
+	frames: number,
+	lostSeqs: [number, number] | null
+) {
 	const cache = new RollupCache();
-	let lastSeq = 0;
 	let stored = 0;
 	for (let first = 1; first <= frames; first += FRAMES_PER_STATEMENT) {
 		const batch = [];
@@ -34,7 +38,12 @@ async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId
 			batch.push(benchFrame(seq, T0_MS + seq * 1000));
 		}
 		if (batch.length === 0) continue;
-		const merged = await mergeWithStored(db, runId, rollupFrames(batch, () => null), cache);
+		const merged = await mergeWithStored(
+			db,
+			runId,
+			rollupFrames(batch, () => null),
+			cache
+		);
 		const last = batch[batch.length - 1];
 		await writeBatch(
 			db,
@@ -42,11 +51,17 @@ async function fillRun(db: Awaited<ReturnType<typeof openDatabase>>['db'], runId
 			new Date(),
 			batch.map((frame) => ({ frame, late: false })),
 			merged,
-			{ lastSeq: last.seq, lastFrameT: last.t, lastFrameAt: new Date(), lastLock: last.lock, frameCount: stored += batch.length, gapCount: lostSeqs ? 1 : 0 }
+			{
+				lastSeq: last.seq,
+				lastFrameT: last.t,
+				lastFrameAt: new Date(),
+				lastLock: last.lock,
+				frameCount: (stored += batch.length),
+				gapCount: lostSeqs ? 1 : 0
+			}
 		);
 		for (const r of merged) cache.remember(r);
-		lastSeq = last.seq;
-		if (first % 60_000 === 1) process.stderr.write(`  ${runId.slice(0, 8)}: ${lastSeq} / ${frames} frames\r`);
+		if (first % 60_000 === 1) process.stderr.write(`  ${runId.slice(0, 8)}: ${last.seq} / ${frames} frames\r`);
 	}
 	if (lostSeqs) await db.insert(frameGaps).values({ runId, fromSeq: lostSeqs[0], toSeq: lostSeqs[1] });
 	// Ended, so a server opened on the folder has no live run to restore and replay.

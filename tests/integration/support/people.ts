@@ -7,7 +7,12 @@ export function postForm(server: RunningServer, pathname: string, fields: Record
 	return fetch(`${server.url}${pathname}`, {
 		method: 'POST',
 		redirect: 'manual',
-		headers: { 'content-type': 'application/x-www-form-urlencoded', accept: 'text/html', origin: server.url, ...(cookie ? { cookie } : {}) },
+		headers: {
+			'content-type': 'application/x-www-form-urlencoded',
+			accept: 'text/html',
+			origin: server.url,
+			...(cookie ? { cookie } : {})
+		},
 		body: new URLSearchParams(fields).toString()
 	});
 }
@@ -37,7 +42,13 @@ export function call(server: RunningServer, pathname: string, auth: { cookie: st
 }
 
 /** Waits for the newest message to `to` whose text holds a link to `pathPrefix`, and returns that path. */
-export async function linkFromMail(server: RunningServer, readerCookie: string, to: string, pathPrefix: string, seen = new Set<string>()): Promise<string> {
+export async function linkFromMail(
+	server: RunningServer,
+	readerCookie: string,
+	to: string,
+	pathPrefix: string,
+	seen = new Set<string>()
+): Promise<string> {
 	const pattern = new RegExp(`${server.url.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}(${pathPrefix}[A-Za-z0-9_%-]+)`);
 	for (let i = 0; i < 100; i++) {
 		const res = await call(server, '/api/dev/mail', { cookie: readerCookie });

@@ -9,7 +9,11 @@ export function urlOf(adminUrl: string, name: string): string {
 	return url.toString();
 }
 
-const safeName = (raw: string) => raw.toLowerCase().replace(/[^a-z0-9_]/g, '_').slice(0, 60);
+const safeName = (raw: string) =>
+	raw
+		.toLowerCase()
+		.replace(/[^a-z0-9_]/g, '_')
+		.slice(0, 60);
 
 async function admin<T>(adminUrl: string, work: (client: pg.Client) => Promise<T>): Promise<T> {
 	const client = new pg.Client({ connectionString: adminUrl });

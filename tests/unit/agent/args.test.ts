@@ -13,7 +13,16 @@ describe('parseAgentArgs', () => {
 		expect(c).not.toBe('help');
 		if (c === 'help') return;
 		expect(c.run).toEqual({ key: 'sim-20260102T030405Z', name: 'sim-20260102T030405Z', order: 3, states: 6, mode_GHz: 5 });
-		expect(c.simulate).toEqual({ window_s: 1, speed: 1, seed: 1, loseLockAtMin: 1, lockLossMin: 1.5, durationMin: null, shots: 2000, iqBins: 0 });
+		expect(c.simulate).toEqual({
+			window_s: 1,
+			speed: 1,
+			seed: 1,
+			loseLockAtMin: 1,
+			lockLossMin: 1.5,
+			durationMin: null,
+			shots: 2000,
+			iqBins: 0
+		});
 		expect(c.spoolPath).toBe('/home/op/.phasewarden-agent/sim-20260102T030405Z.spool.ndjson');
 		expect(c.sendEnd).toBe(true);
 	});
@@ -28,9 +37,31 @@ describe('parseAgentArgs', () => {
 	});
 
 	test('run description flags, with an operating point', () => {
-		const c = parse(['--token', 't', '--input', '-', '--run-key', 'cd14/run 7', '--order', '2', '--states', '2', '--mode-ghz', '7.25', '--operating-point', '{"bias_uV":18.2}']);
+		const c = parse([
+			'--token',
+			't',
+			'--input',
+			'-',
+			'--run-key',
+			'cd14/run 7',
+			'--order',
+			'2',
+			'--states',
+			'2',
+			'--mode-ghz',
+			'7.25',
+			'--operating-point',
+			'{"bias_uV":18.2}'
+		]);
 		if (c === 'help') throw new Error('unexpected help');
-		expect(c.run).toEqual({ key: 'cd14/run 7', name: 'cd14/run 7', order: 2, states: 2, mode_GHz: 7.25, operatingPoint: { bias_uV: 18.2 } });
+		expect(c.run).toEqual({
+			key: 'cd14/run 7',
+			name: 'cd14/run 7',
+			order: 2,
+			states: 2,
+			mode_GHz: 7.25,
+			operatingPoint: { bias_uV: 18.2 }
+		});
 		expect(c.spoolPath).toBe('/home/op/.phasewarden-agent/cd14_run_7.spool.ndjson');
 	});
 

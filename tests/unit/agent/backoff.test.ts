@@ -36,7 +36,7 @@ describe('createBackoff', () => {
 	test('jitter spreads many clients over the interval', () => {
 		// Seeded linear congruential source (Numerical Recipes constants, from memory).
 		let x = 12345;
-		const random = () => ((x = (1664525 * x + 1013904223) >>> 0) / 2 ** 32);
+		const random = () => (x = (1664525 * x + 1013904223) >>> 0) / 2 ** 32;
 		const firsts = Array.from({ length: 200 }, () => createBackoff({ random }).next());
 		expect(Math.min(...firsts)).toBeLessThan(300);
 		expect(Math.max(...firsts)).toBeGreaterThan(450);

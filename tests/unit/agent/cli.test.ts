@@ -47,7 +47,19 @@ async function server(options: ConstructorParameters<typeof FakeServer>[0] = {})
 }
 
 const frameLine = (seq: number, counts = [16, 16, 16, 16, 16, 16]) =>
-	JSON.stringify({ seq, t: 1_780_000_000_000 + seq * 1000, window_s: 1, shots: 100, vacuum: 4, counts, lock: 0.9, switches: 0, dwell_s: 0.96, escapes: 0, vacuum_s: 0.04 });
+	JSON.stringify({
+		seq,
+		t: 1_780_000_000_000 + seq * 1000,
+		window_s: 1,
+		shots: 100,
+		vacuum: 4,
+		counts,
+		lock: 0.9,
+		switches: 0,
+		dwell_s: 0.96,
+		escapes: 0,
+		vacuum_s: 0.04
+	});
 
 describe('phasewarden-agent CLI', { timeout: 20_000 }, () => {
 	test('--input FILE: bad lines reported by number and skipped, the rest sent, the run ended, exit 0', async () => {

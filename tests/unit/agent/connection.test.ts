@@ -138,7 +138,11 @@ describe('server errors', () => {
 		conn.enqueue(frames(10));
 		await until(() => !spool.has(5), 'seq 5 to leave the spool');
 		expect(spool.size).toBe(9);
-		expect(Spool.open(spoolPath).pending().map((f) => f.seq)).toEqual([1, 2, 3, 4, 6, 7, 8, 9, 10]);
+		expect(
+			Spool.open(spoolPath)
+				.pending()
+				.map((f) => f.seq)
+		).toEqual([1, 2, 3, 4, 6, 7, 8, 9, 10]);
 		expect(s.committed).toEqual([1, 2, 3, 4, 6, 7, 8, 9, 10]);
 		expect(log.some((l) => l.includes('invalid_frame (seq 5)'))).toBe(true);
 	});

@@ -45,7 +45,10 @@ describe('parseFrameLine', () => {
 
 	test('rejections say what is wrong and where (DESIGN.md frame table)', () => {
 		expect(parseFrameLine('{"seq":1,', 6)).toMatchObject({ ok: false, message: expect.stringMatching(/^not valid JSON/) });
-		expect(parseFrameLine(JSON.stringify({ ...frame(1), lock: 1.2 }), 6)).toMatchObject({ ok: false, message: expect.stringMatching(/^lock: /) });
+		expect(parseFrameLine(JSON.stringify({ ...frame(1), lock: 1.2 }), 6)).toMatchObject({
+			ok: false,
+			message: expect.stringMatching(/^lock: /)
+		});
 		const { seq: _seq, ...noSeq } = frame(1);
 		expect(parseFrameLine(JSON.stringify(noSeq), 6)).toMatchObject({ ok: false, message: expect.stringMatching(/^seq: /) });
 		// Run-dependent: six counts do not fit a run with three phase states.

@@ -21,7 +21,11 @@ const frames = (count: number, startSeq = 1) => [...simulateFrames({ seed: 3, st
 const seqs = (s: Spool) => s.pending().map((f) => f.seq);
 const range = (a: number, b: number) => Array.from({ length: b - a + 1 }, (_, i) => a + i);
 const fileSeqs = (file: string) =>
-	fs.readFileSync(file, 'utf8').split('\n').filter(Boolean).map((l) => JSON.parse(l).seq as number);
+	fs
+		.readFileSync(file, 'utf8')
+		.split('\n')
+		.filter(Boolean)
+		.map((l) => JSON.parse(l).seq as number);
 
 describe('Spool', () => {
 	test('frames written are there after a reload, field for field as sent', () => {

@@ -40,7 +40,9 @@ describe('prepareDemoFolder on disk', () => {
 		const dir = path.join(tmp, 'production');
 		mkdirSync(dir);
 		writeFileSync(path.join(dir, 'PG_VERSION'), '17');
-		expect(() => prepareDemoFolder(dir)).toThrow(new RegExp(`${dir.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')} exists and has no ${DEMO_MARKER}`));
+		expect(() => prepareDemoFolder(dir)).toThrow(
+			new RegExp(`${dir.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')} exists and has no ${DEMO_MARKER}`)
+		);
 		expect(readFileSync(path.join(dir, 'PG_VERSION'), 'utf8')).toBe('17');
 		expect(existsSync(path.join(dir, DEMO_MARKER))).toBe(false);
 	});

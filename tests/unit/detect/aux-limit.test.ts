@@ -81,18 +81,31 @@ describe('aux_limit rules', () => {
 		const engine = new DetectorEngine({}, run6());
 		feed(engine, mxc(1, [31, 31, 31]));
 		engine.setRules({ aux_limit: { version: 2, limits: [{ name: 'bias_uV', above: 50 }] } }, 0);
-		expect(aux(feed(engine, [withAux(4)]))).toMatchObject([{ type: 'clear', key: 'mxc_mK', evidence: { reason: 'limit_removed', version: 2 } }]);
+		expect(aux(feed(engine, [withAux(4)]))).toMatchObject([
+			{ type: 'clear', key: 'mxc_mK', evidence: { reason: 'limit_removed', version: 2 } }
+		]);
 	});
 
 	it('bad limits are refused with the field named', () => {
-		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'mxc_mK' }] } })).toThrow(/aux_limit\.limits\.0\.above: needs above, below or both/);
+		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'mxc_mK' }] } })).toThrow(
+			/aux_limit\.limits\.0\.above: needs above, below or both/
+		);
 		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'mxc_mK', above: 30, clearBelow: 31 }] } })).toThrow(
 			/aux_limit\.limits\.0\.clearBelow: must be at most above/
 		);
 		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'bad name', above: 1 }] } })).toThrow(/aux_limit\.limits\.0\.name/);
 		expect(() =>
-			parseDetectorRules({ aux_limit: { limits: [{ name: 'mxc_mK', above: 30 }, { name: 'mxc_mK', below: 5 }] } })
+			parseDetectorRules({
+				aux_limit: {
+					limits: [
+						{ name: 'mxc_mK', above: 30 },
+						{ name: 'mxc_mK', below: 5 }
+					]
+				}
+			})
 		).toThrow(/aux_limit\.limits: one limit per aux name/);
-		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'x', above: 1, below: 2 }] } })).toThrow(/limits\.0\.below: must be less than above/);
+		expect(() => parseDetectorRules({ aux_limit: { limits: [{ name: 'x', above: 1, below: 2 }] } })).toThrow(
+			/limits\.0\.below: must be less than above/
+		);
 	});
 });

@@ -53,7 +53,13 @@ describe('decision interval at the actual counts per step', () => {
 });
 
 describe('window length changing mid-run', () => {
-	const win = (seq: number, window_s: number, switches: number, t_ms: number): Frame => ({ ...frame(seq, 0.95), window_s, dwell_s: window_s, switches, t: t_ms });
+	const win = (seq: number, window_s: number, switches: number, t_ms: number): Frame => ({
+		...frame(seq, 0.95),
+		window_s,
+		dwell_s: window_s,
+		switches,
+		t: t_ms
+	});
 	const noBurst = { switching_burst: { enabled: false }, rate_drift: {} };
 
 	it('rate_drift counts the budget in windows of each step’s own length', () => {
@@ -75,7 +81,7 @@ describe('window length changing mid-run', () => {
 		let t = frame(1, 0).t;
 		engine.onFrame(win(1, 1, 1, (t += 1000)));
 		engine.onFrame(win(2, 1, 1, (t += 1000)));
-		const events = engine.onFrame(win(3, 10, 80, (t += 10_000))).filter((e) => e.kind === 'switching_burst');
+		const events = engine.onFrame(win(3, 10, 80, t + 10_000)).filter((e) => e.kind === 'switching_burst');
 		expect(events).toHaveLength(1);
 		const ev = events[0].evidence as any;
 		expect(ev.alphaWindow).toBeCloseTo(10 / (DAYS * 86_400), 15);

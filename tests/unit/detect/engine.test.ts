@@ -40,13 +40,7 @@ describe('determinism', () => {
 		const kinds = play(new DetectorEngine({}, run), script())
 			.filter((e) => e.type !== 'update')
 			.map((e) => `${e.type}:${e.kind}`);
-		expect(kinds).toEqual([
-			'open:lock_lost',
-			'clear:lock_lost',
-			'open:agent_silent',
-			'clear:agent_silent',
-			'open:lock_lost'
-		]);
+		expect(kinds).toEqual(['open:lock_lost', 'clear:lock_lost', 'open:agent_silent', 'clear:agent_silent', 'open:lock_lost']);
 	});
 
 	it('the same steps twice give identical events', () => {
@@ -76,19 +70,15 @@ describe('determinism', () => {
 
 	it('random lock streams: snapshot/restore at a random cut changes nothing (property, seeded)', () => {
 		fc.assert(
-			fc.property(
-				fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 1, maxLength: 80 }),
-				fc.nat(),
-				(locks, cutSeed) => {
-					const fs = locks.map((lock, i) => frame(i + 1, lock));
-					const cut = cutSeed % (fs.length + 1);
-					const a = new DetectorEngine({ lock_lost: { windows: 2, clearWindows: 2 } }, run);
-					const head = fs.slice(0, cut).flatMap((f) => a.onFrame(f));
-					const b = DetectorEngine.restore(JSON.parse(JSON.stringify(a.snapshot())));
-					const tail = fs.slice(cut).flatMap((f) => b.onFrame(f));
-					expect([...head, ...tail]).toEqual(detectAll({ lock_lost: { windows: 2, clearWindows: 2 } }, run, fs));
-				}
-			),
+			fc.property(fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 1, maxLength: 80 }), fc.nat(), (locks, cutSeed) => {
+				const fs = locks.map((lock, i) => frame(i + 1, lock));
+				const cut = cutSeed % (fs.length + 1);
+				const a = new DetectorEngine({ lock_lost: { windows: 2, clearWindows: 2 } }, run);
+				const head = fs.slice(0, cut).flatMap((f) => a.onFrame(f));
+				const b = DetectorEngine.restore(JSON.parse(JSON.stringify(a.snapshot())));
+				const tail = fs.slice(cut).flatMap((f) => b.onFrame(f));
+				expect([...head, ...tail]).toEqual(detectAll({ lock_lost: { windows: 2, clearWindows: 2 } }, run, fs));
+			}),
 			{ seed: 7, numRuns: 200 }
 		);
 	});
@@ -98,7 +88,11 @@ describe('one open condition per kind', () => {
 	it('opens and clears alternate per kind over any lock stream (property, seeded)', () => {
 		fc.assert(
 			fc.property(fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { maxLength: 150 }), (locks) => {
-				const events = detectAll({ lock_lost: { windows: 1, clearWindows: 1 } }, run, locks.map((l, i) => frame(i + 1, l)));
+				const events = detectAll(
+					{ lock_lost: { windows: 1, clearWindows: 1 } },
+					run,
+					locks.map((l, i) => frame(i + 1, l))
+				);
 				let open = false;
 				for (const e of events) {
 					if (e.type === 'open') expect(open).toBe(false);

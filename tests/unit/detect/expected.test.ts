@@ -60,7 +60,14 @@ describe('expected switches per window', () => {
 	});
 
 	it('escape predictions scale the exponent by (γ²+δ²)/ε² relative to the model’s reference', () => {
-		const escape = { process: 'escape' as const, W0_per_s: 50, A: 4, mode_GHz: 1, nominal_mK: 20, reference: { detuning: 0, damping: 1, drive: 2 } };
+		const escape = {
+			process: 'escape' as const,
+			W0_per_s: 50,
+			A: 4,
+			mode_GHz: 1,
+			nominal_mK: 20,
+			reference: { detuning: 0, damping: 1, drive: 2 }
+		};
 		const op = { detuning: 0.5, damping: 1, drive: 2 };
 		const r = rates(run6({ escape }, { operatingPoint: op }));
 		const e = expectFrame({ ...frame(1, 0.9), vacuum_s: 0.2, escapes: 1, aux: { mxc_mK: 25 } }, r);
@@ -71,6 +78,8 @@ describe('expected switches per window', () => {
 
 	it('a bad model is refused with the field named', () => {
 		expect(() => parseRunInfo(run6({ switching: { ...warmSwitching, W0_per_s: -1 } }))).toThrow(/rateModels\.switching\.W0_per_s/);
-		expect(() => parseRunInfo(run6({ switching: { ...warmSwitching, process: 'escape' } }))).toThrow(/rateModels\.switching.*switching model/);
+		expect(() => parseRunInfo(run6({ switching: { ...warmSwitching, process: 'escape' } }))).toThrow(
+			/rateModels\.switching.*switching model/
+		);
 	});
 });

@@ -35,9 +35,7 @@ describe('lock_lost opening', () => {
 		const open = events[0];
 		expect(open.type).toBe('open');
 		expect(open.evidence).toMatchObject({ rule: 'lock_lost', version: 3, threshold: 0.5, windows: 5, count: 5 });
-		expect(open.evidence.values).toEqual(
-			[0.45, 0.4, 0.35, 0.3, 0.2].map((lock, i) => ({ seq: i + 1, t_ms: frame(i + 1, 0).t, lock }))
-		);
+		expect(open.evidence.values).toEqual([0.45, 0.4, 0.35, 0.3, 0.2].map((lock, i) => ({ seq: i + 1, t_ms: frame(i + 1, 0).t, lock })));
 		if (open.type === 'open') expect(open.summary).toContain('0.50');
 	});
 
@@ -52,9 +50,7 @@ describe('lock_lost opening', () => {
 	});
 
 	it('opens on a single frame when windows = 1, and a single frame alone does nothing by default', () => {
-		expect(new DetectorEngine({ lock_lost: { windows: 1 } }, run).onFrame(frame(1, 0.1))).toMatchObject([
-			{ type: 'open', seq: 1 }
-		]);
+		expect(new DetectorEngine({ lock_lost: { windows: 1 } }, run).onFrame(frame(1, 0.1))).toMatchObject([{ type: 'open', seq: 1 }]);
 		expect(new DetectorEngine({}, run).onFrame(frame(1, 0.1))).toEqual([]);
 		expect(new DetectorEngine({ lock_lost: { windows: 1 } }, run).onFrame(frame(1, 0.9))).toEqual([]);
 	});
@@ -145,7 +141,12 @@ describe('lock_lost edge cases', () => {
 
 	it('windows with no phase-state shots never open on their own, even with lock 0', () => {
 		const engine = new DetectorEngine({}, run);
-		expect(feed(engine, Array.from({ length: 100 }, (_, i) => frame(i + 1, 0, { shots: 0 })))).toEqual([]);
+		expect(
+			feed(
+				engine,
+				Array.from({ length: 100 }, (_, i) => frame(i + 1, 0, { shots: 0 }))
+			)
+		).toEqual([]);
 	});
 
 	it('a window with shots only in the vacuum state is also empty of lock information', () => {
@@ -198,14 +199,17 @@ describe('lock_lost against the definition read literally (property, seeded)', (
 	it('opens and clears exactly where the reference does', () => {
 		const lockValue = fc.oneof(fc.constant(null), fc.double({ min: 0, max: 1, noNaN: true }), fc.constantFrom(0.5, 0.7));
 		fc.assert(
-			fc.property(fc.array(lockValue, { maxLength: 120 }), fc.integer({ min: 1, max: 6 }), fc.integer({ min: 1, max: 6 }), (locks, N, M) => {
-				const engine = new DetectorEngine({ lock_lost: { windows: N, clearWindows: M } }, run);
-				const events = locks.flatMap((lock, i) =>
-					engine.onFrame(lock === null ? frame(i + 1, 0, { shots: 0 }) : frame(i + 1, lock))
-				);
-				const got = events.filter((e) => e.type !== 'update').map((e) => [e.type, e.seq]);
-				expect(got).toEqual(reference(locks, N, 0.5, M, 0.7));
-			}),
+			fc.property(
+				fc.array(lockValue, { maxLength: 120 }),
+				fc.integer({ min: 1, max: 6 }),
+				fc.integer({ min: 1, max: 6 }),
+				(locks, N, M) => {
+					const engine = new DetectorEngine({ lock_lost: { windows: N, clearWindows: M } }, run);
+					const events = locks.flatMap((lock, i) => engine.onFrame(lock === null ? frame(i + 1, 0, { shots: 0 }) : frame(i + 1, lock)));
+					const got = events.filter((e) => e.type !== 'update').map((e) => [e.type, e.seq]);
+					expect(got).toEqual(reference(locks, N, 0.5, M, 0.7));
+				}
+			),
 			{ seed: 20_240_601, numRuns: 300 }
 		);
 	});

@@ -10,7 +10,17 @@ import { DEFAULT_RATE_MODEL_UNCERTAINTY } from '../../../src/lib/physics/rate-mo
 const TWO_SIGMA = 0.9544997361036416;
 
 describe('model band', () => {
-	const switching = { process: 'switching' as const, W0_per_s: 74.2, A: 6, mode_GHz: 1, nominal_mK: 10, W0_sigma: 0.12, A_sigma: 0.4, covariance: 0.03, source: 'calibration' as const };
+	const switching = {
+		process: 'switching' as const,
+		W0_per_s: 74.2,
+		A: 6,
+		mode_GHz: 1,
+		nominal_mK: 10,
+		W0_sigma: 0.12,
+		A_sigma: 0.4,
+		covariance: 0.03,
+		source: 'calibration' as const
+	};
 	const reference = { detuning: 0.1, damping: 1, drive: 2 };
 	const escape = { ...switching, process: 'escape' as const, W0_per_s: 500, A: 9, reference };
 
@@ -36,7 +46,12 @@ describe('model band', () => {
 	it('a model that states no uncertainty gets the declared default; one that states 0 keeps 0', () => {
 		const { W0_sigma: _s, A_sigma: _a, covariance: _c, ...bare } = switching;
 		const u = modelUncertainty(parseRunInfo({ states: 6, rateModels: { switching: bare } }), 'switching')!;
-		expect(u).toMatchObject({ stated: false, W0_sigma: DEFAULT_RATE_MODEL_UNCERTAINTY.W0_sigma, A_sigma: DEFAULT_RATE_MODEL_UNCERTAINTY.A_sigma_fraction * 6, covariance: 0 });
+		expect(u).toMatchObject({
+			stated: false,
+			W0_sigma: DEFAULT_RATE_MODEL_UNCERTAINTY.W0_sigma,
+			A_sigma: DEFAULT_RATE_MODEL_UNCERTAINTY.A_sigma_fraction * 6,
+			covariance: 0
+		});
 		const exact = modelUncertainty(parseRunInfo({ states: 6, rateModels: { switching: { ...bare, W0_sigma: 0 } } }), 'switching')!;
 		expect(exact).toMatchObject({ stated: true, W0_sigma: 0, A_sigma: 0 });
 		expect(lnBandHalfWidth(exact, 1)).toBe(0);

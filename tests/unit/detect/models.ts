@@ -8,7 +8,14 @@ import type { RunInfo } from '../../../src/lib/detect';
 const exact = { W0_sigma: 0, A_sigma: 0 };
 
 /** Temperature-independent switching at W0 per second (A = 0): μ = W0 × dwell_s exactly. */
-export const flatSwitching = (W0_per_s: number) => ({ process: 'switching' as const, W0_per_s, A: 0, mode_GHz: 5, nominal_mK: 20, ...exact });
+export const flatSwitching = (W0_per_s: number) => ({
+	process: 'switching' as const,
+	W0_per_s,
+	A: 0,
+	mode_GHz: 5,
+	nominal_mK: 20,
+	...exact
+});
 
 /**
  * A low-frequency mode whose rate follows the fridge: hf/k_B = 48 mK at 1 GHz, so between 20 and

@@ -67,7 +67,9 @@ describe('effective samples from observed transitions', () => {
 		for (let i = 0; i < K; i++) ring[i * K + ((i + 1) % K)] = ring[((i + 1) % K) * K + i] = 10;
 		const N = 20 * K;
 		const got = [...observedModes(K, ring).samples].sort((a, b) => a - b);
-		const want = occupancyModes(K, 'neighbours').perSwitch.map((g) => g * N).sort((a, b) => a - b);
+		const want = occupancyModes(K, 'neighbours')
+			.perSwitch.map((g) => g * N)
+			.sort((a, b) => a - b);
 		got.forEach((g, i) => expect(g).toBeCloseTo(want[i], 8));
 	});
 
@@ -109,13 +111,21 @@ describe('false-alarm budget on a 10:1 paired six-state device (seeded)', () => 
 	// 30 000 one-second windows with a budget scaled so that it allows 0.116 false incidents,
 	// the same as 30 days allows over 300 000 windows (the benchmark runs that span).
 	const WINDOWS = 30_000;
-	const budget_days = (WINDOWS / 0.1157) / 86_400;
+	const budget_days = WINDOWS / 0.1157 / 86_400;
 	const allowed = WINDOWS / (budget_days * 86_400);
 	const W25 = predictRate({ ...warmSwitching, source: 'manual' }, { T_mK: 25 }).rate_per_s;
 
 	for (const transitions of [true, false]) {
 		it(`incidents stay within the exact Poisson tail of the budget (${transitions ? 'observed transitions' : 'batch means, no transitions'})`, () => {
-			const fs = pairFrames({ seed: transitions ? 41 : 42, states: K, windows: WINDOWS, withinRate_per_s: (W25 * 10) / 11, crossRate_per_s: W25 / 11, shots: 2000, transitions });
+			const fs = pairFrames({
+				seed: transitions ? 41 : 42,
+				states: K,
+				windows: WINDOWS,
+				withinRate_per_s: (W25 * 10) / 11,
+				crossRate_per_s: W25 / 11,
+				shots: 2000,
+				transitions
+			});
 			const engine = new DetectorEngine({ occupancy_imbalance: { falseAlarmEvery_days: budget_days } }, run6());
 			const events = fs.flatMap((f) => engine.onFrame(f));
 			const count = opens(events);
@@ -135,7 +145,15 @@ describe('out of control at 25 mK (seeded)', () => {
 		expect(W25).toBeLessThan(0.9);
 		for (const seed of [1, 2, 3]) {
 			const onset = 600;
-			const fs = pairFrames({ seed: 500 + seed, states: K, windows: onset + 3600, withinRate_per_s: (W25 * 10) / 11, crossRate_per_s: W25 / 11, excess: 1.7, excessFrom: onset });
+			const fs = pairFrames({
+				seed: 500 + seed,
+				states: K,
+				windows: onset + 3600,
+				withinRate_per_s: (W25 * 10) / 11,
+				crossRate_per_s: W25 / 11,
+				excess: 1.7,
+				excessFrom: onset
+			});
 			const engine = new DetectorEngine({}, run6());
 			let opened: DetectorEvent | undefined;
 			for (const f of fs) {
@@ -156,7 +174,15 @@ describe('unexpected pairs on a paired device (seeded)', () => {
 	it('jumps to the opposite state, a pair the ring does not expect, open key pairs; occupancy stays even and quiet', () => {
 		// 10:1 pairs at 1 switch/s plus 1/s to the opposite state: half of all switches
 		// are unexpected, above the tolerated 25 %; rates stay symmetric, so occupancy is uniform.
-		const fs = pairFrames({ seed: 61, states: K, windows: 3000, withinRate_per_s: 10 / 11, crossRate_per_s: 1 / 11, oppositeRate_per_s: 1, shots: 200 });
+		const fs = pairFrames({
+			seed: 61,
+			states: K,
+			windows: 3000,
+			withinRate_per_s: 10 / 11,
+			crossRate_per_s: 1 / 11,
+			oppositeRate_per_s: 1,
+			shots: 200
+		});
 		const engine = new DetectorEngine({ occupancy_imbalance: { horizonWindows: 600 } }, run6());
 		const events = fs.flatMap((f) => engine.onFrame(f));
 		expect(opens(events, 'pairs')).toBe(1);
@@ -175,6 +201,14 @@ describe('batch means without transitions', () => {
 		const r = batchMeansOccupancy(tilted, vectors)!;
 		expect(r.pValue).toBeLessThan(1e-6);
 		expect(r.dof).toBe(9);
-		expect(() => batchMeansOccupancy([[1, 2], [1, 2, 3]], vectors)).toThrow(/every batch needs 2 counts/);
+		expect(() =>
+			batchMeansOccupancy(
+				[
+					[1, 2],
+					[1, 2, 3]
+				],
+				vectors
+			)
+		).toThrow(/every batch needs 2 counts/);
 	});
 });

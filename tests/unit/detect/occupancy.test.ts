@@ -4,14 +4,22 @@
 // against NIST/SEMATECH tables and direct sums, the statistic's calibration on simulated
 // Markov switching (its mean must be its degrees of freedom), and hand-built windows.
 import { describe, expect, it } from 'vitest';
-import { binomialUpperTail, chiSquareUpperTail, DetectorEngine, occupancyModes, occupancyStatistic, type DetectorEvent } from '../../../src/lib/detect';
+import {
+	binomialUpperTail,
+	chiSquareUpperTail,
+	DetectorEngine,
+	occupancyModes,
+	occupancyStatistic,
+	type DetectorEvent
+} from '../../../src/lib/detect';
 import type { Frame } from '../../../src/lib/protocol/frame';
 import { ringFrames } from './sim';
 import { run6 } from './models';
 import { frame } from './frames';
 
 const feed = (engine: DetectorEngine, fs: Frame[]) => fs.flatMap((f) => engine.onFrame(f));
-const occ = (events: DetectorEvent[], key?: string) => events.filter((e) => e.kind === 'occupancy_imbalance' && (key === undefined || e.key === key));
+const occ = (events: DetectorEvent[], key?: string) =>
+	events.filter((e) => e.kind === 'occupancy_imbalance' && (key === undefined || e.key === key));
 
 describe('graph spectra of the expected pairs', () => {
 	it('ring: n_m per switch is sin²(πm/K) (Laplacian eigenvalues 2 − 2cos(2πm/K), mean degree 2)', () => {
@@ -152,7 +160,9 @@ describe('occupancy_imbalance on windows', () => {
 	it('the same run at a detuned operating point, or with symmetric false, is not tested', () => {
 		const fs = ringFrames({ seed: 5, states: 6, windows: 400, rate_per_s: () => 3, stickiness: [1, 1, 0.25, 1, 1, 1] });
 		expect(occ(feed(new DetectorEngine(rules, run6(undefined, { operatingPoint: { detuning: 0.4 } })), fs), 'states')).toEqual([]);
-		expect(occ(feed(new DetectorEngine({ occupancy_imbalance: { ...rules.occupancy_imbalance, symmetric: false } }, run6()), fs), 'states')).toEqual([]);
+		expect(
+			occ(feed(new DetectorEngine({ occupancy_imbalance: { ...rules.occupancy_imbalance, symmetric: false } }, run6()), fs), 'states')
+		).toEqual([]);
 		// explicit true overrides the detuning
 		const forced = { occupancy_imbalance: { ...rules.occupancy_imbalance, symmetric: true } };
 		expect(occ(feed(new DetectorEngine(forced, run6(undefined, { operatingPoint: { detuning: 0.4 } })), fs), 'states')).not.toEqual([]);
@@ -198,8 +208,19 @@ describe('occupancy_imbalance on windows', () => {
 	});
 
 	it('a pair list naming a state the run does not have is refused with the field named', () => {
-		expect(() => new DetectorEngine({ occupancy_imbalance: { expectedPairs: [[0, 1], [2, 7]] } }, run6())).toThrow(
-			/occupancy_imbalance\.expectedPairs\.1\.1: state 7 does not exist in a 6-state run/
-		);
+		expect(
+			() =>
+				new DetectorEngine(
+					{
+						occupancy_imbalance: {
+							expectedPairs: [
+								[0, 1],
+								[2, 7]
+							]
+						}
+					},
+					run6()
+				)
+		).toThrow(/occupancy_imbalance\.expectedPairs\.1\.1: state 7 does not exist in a 6-state run/);
 	});
 });

@@ -78,7 +78,15 @@ describe('rate_drift opening and clearing', () => {
 	});
 
 	it('a rate that falls by half opens the lower side', () => {
-		const events = drift(feed(new DetectorEngine(rules(), run), windows(1, Array.from({ length: 200 }, (_, i) => (i % 2 === 0 ? 1 : 0)))));
+		const events = drift(
+			feed(
+				new DetectorEngine(rules(), run),
+				windows(
+					1,
+					Array.from({ length: 200 }, (_, i) => (i % 2 === 0 ? 1 : 0))
+				)
+			)
+		);
 		expect(events[0]).toMatchObject({ type: 'open', evidence: { direction: 'down', designRatio: 0.5 } });
 		expect((events[0].evidence as any).ratio.estimate).toBeCloseTo(0.5, 1);
 	});

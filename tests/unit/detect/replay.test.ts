@@ -2,7 +2,15 @@
 // also across a snapshot/restore at any point; the comparison helper matches incidents.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { compareReplay, DetectorEngine, IncidentFold, Replayer, replayIncidents, replayRun, type DetectorEvent } from '../../../src/lib/detect';
+import {
+	compareReplay,
+	DetectorEngine,
+	IncidentFold,
+	Replayer,
+	replayIncidents,
+	replayRun,
+	type DetectorEvent
+} from '../../../src/lib/detect';
 import type { Frame } from '../../../src/lib/protocol/frame';
 import { countFrames, ringFrames, T0_ms } from './sim';
 import { run6, warmSwitching } from './models';
@@ -82,7 +90,10 @@ describe('replay', () => {
 		expect(cmp.both.length).toBe(actual.length - 2);
 		for (const b of cmp.both) expect(b.openShift_ms).toBe(0);
 		// stricter aux limit: the replay raises one the live rules did not
-		const strict = compareReplay(actual, replayRun(frames, { ...rules, aux_limit: { limits: [{ name: 'mxc_mK', above: 20.04, clearBelow: 20.01 }] } }, run));
+		const strict = compareReplay(
+			actual,
+			replayRun(frames, { ...rules, aux_limit: { limits: [{ name: 'mxc_mK', above: 20.04, clearBelow: 20.01 }] } }, run)
+		);
 		expect(strict.onlyReplay.some((r) => r.kind === 'aux_limit')).toBe(true);
 	});
 

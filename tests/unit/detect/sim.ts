@@ -90,7 +90,15 @@ export function ringFrames(o: RingOptions): Frame[] {
 }
 
 /** Frames whose switch counts alone are drawn: Poisson(mean(i)) over dwell_s, no occupancy detail. */
-export function countFrames(o: { seed: number; windows: number; mean: (i: number) => number; T_mK?: (i: number) => number | null; K?: number; dwell_s?: number; firstSeq?: number }): Frame[] {
+export function countFrames(o: {
+	seed: number;
+	windows: number;
+	mean: (i: number) => number;
+	T_mK?: (i: number) => number | null;
+	K?: number;
+	dwell_s?: number;
+	firstSeq?: number;
+}): Frame[] {
 	const u = rng(o.seed);
 	const K = o.K ?? 6;
 	const frames: Frame[] = [];

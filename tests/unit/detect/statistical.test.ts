@@ -84,7 +84,14 @@ describe('in control, with a slow temperature ramp the model explains (seeded)',
 			return covered / (to - from);
 		};
 		const nominal = feed(
-			new DetectorEngine({ ...rules, switching_burst: { enabled: false }, rate_drift: { falseAlarmEvery_days: budget, prediction: 'nominal', ...noBaseline } }, run6({ switching: warmSwitching })),
+			new DetectorEngine(
+				{
+					...rules,
+					switching_burst: { enabled: false },
+					rate_drift: { falseAlarmEvery_days: budget, prediction: 'nominal', ...noBaseline }
+				},
+				run6({ switching: warmSwitching })
+			),
 			frames.slice(0, 50_000)
 		);
 		// windows 30 000–50 000: 23–25 mK, the nominal prediction is 1.5–1.7× too low there
@@ -118,7 +125,11 @@ describe('detection delay of rate_drift at a doubled rate (seeded Monte Carlo)',
 		// The rate is doubled from the first window, so the chart starts from 0 as the Markov-chain
 		// run length assumes; μ = 1 per window, one window per step.
 		const M = 500;
-		const rules = { switching_burst: { enabled: false }, occupancy_imbalance: { enabled: false }, rate_drift: { falseAlarmEvery_days: budgetOf(BUDGET), ...noBaseline } };
+		const rules = {
+			switching_burst: { enabled: false },
+			occupancy_imbalance: { enabled: false },
+			rate_drift: { falseAlarmEvery_days: budgetOf(BUDGET), ...noBaseline }
+		};
 		const run = run6({ switching: flatSwitching(1) });
 		const delays: number[] = [];
 		let hUp = 0;
@@ -167,7 +178,10 @@ describe('what the fridge temperature explains (seeded)', () => {
 			// the rate climbs from 1× to 2× between windows 2000 and 4000, then stays
 			const factor = (i: number) => 1 + Math.min(1, Math.max(0, (i - 2000) / 2000));
 			// the drift begins inside the first two hours: charted against the model, not a baseline
-			const events = feed(new DetectorEngine({ rate_drift: noBaseline }, run6({ switching: warmSwitching })), stream(seed, 6000, (i) => temps[i], factor));
+			const events = feed(
+				new DetectorEngine({ rate_drift: noBaseline }, run6({ switching: warmSwitching })),
+				stream(seed, 6000, (i) => temps[i], factor)
+			);
 			const drifts = opens(events, 'rate_drift');
 			expect(drifts.length).toBeGreaterThan(0);
 			expect(drifts[0].seq!).toBeGreaterThan(2000);
@@ -184,12 +198,18 @@ describe('what the fridge temperature explains (seeded)', () => {
 		for (let seed = 11; seed <= 15; seed++) {
 			// 20 mK, then 32 mK for 3000 windows (the rate rises about 3.6×), then back
 			const T = (i: number) => (i >= 1000 && i < 4000 ? 32 : 20);
-			const events = feed(new DetectorEngine({ rate_drift: noBaseline }, run6({ switching: warmSwitching })), stream(seed, 6000, T, () => 1));
+			const events = feed(
+				new DetectorEngine({ rate_drift: noBaseline }, run6({ switching: warmSwitching })),
+				stream(seed, 6000, T, () => 1)
+			);
 			expect(opens(events, 'rate_drift')).toEqual([]);
 			expect(opens(events, 'switching_burst')).toEqual([]);
 			expect(opens(events, 'aux_limit')).toMatchObject([{ key: 'mxc_mK', seq: 1003 }]);
 			// Against the nominal prediction the same excursion opens the chart, explained by temperature.
-			const nominal = feed(new DetectorEngine({ rate_drift: { prediction: 'nominal', ...noBaseline } }, run6({ switching: warmSwitching })), stream(seed, 6000, T, () => 1));
+			const nominal = feed(
+				new DetectorEngine({ rate_drift: { prediction: 'nominal', ...noBaseline } }, run6({ switching: warmSwitching })),
+				stream(seed, 6000, T, () => 1)
+			);
 			const drifts = opens(nominal, 'rate_drift');
 			expect(drifts.length).toBeGreaterThan(0);
 			expect(drifts[0].seq!).toBeGreaterThan(1000);

@@ -1,7 +1,15 @@
 // Detectors say when they cannot see: each status is checked against seeded frames fed to a real
 // engine, and where a detector could have fired, against what the detector itself did.
 import { describe, expect, it } from 'vitest';
-import { DetectorEngine, defaultRules, detectorStatus, parseRunInfo, ruleStatus, type DetectorStatus, type EngineView } from '../../../src/lib/detect';
+import {
+	DetectorEngine,
+	defaultRules,
+	detectorStatus,
+	parseRunInfo,
+	ruleStatus,
+	type DetectorStatus,
+	type EngineView
+} from '../../../src/lib/detect';
 import { flatSwitching, run6 } from './models';
 import { ringFrames } from './sim';
 
@@ -14,7 +22,14 @@ function feed(engine: DetectorEngine, frames: ReturnType<typeof ringFrames>) {
 describe('detectorStatus on a fed engine', () => {
 	it('lists every detector once, in the engine order', () => {
 		const engine = new DetectorEngine({}, run6());
-		expect(engine.status().map((s) => s.kind)).toEqual(['lock_lost', 'agent_silent', 'switching_burst', 'rate_drift', 'occupancy_imbalance', 'aux_limit']);
+		expect(engine.status().map((s) => s.kind)).toEqual([
+			'lock_lost',
+			'agent_silent',
+			'switching_burst',
+			'rate_drift',
+			'occupancy_imbalance',
+			'aux_limit'
+		]);
 	});
 
 	it('before the first frame, the frame-driven detectors wait; agent_silent counts from the opening', () => {
@@ -52,7 +67,14 @@ describe('detectorStatus on a fed engine', () => {
 	it('occupancy with too few switches is inactive and says how many more it needs; the detector stays silent', () => {
 		const engine = new DetectorEngine({}, run6(undefined, { operatingPoint: { detuning: 0 } }));
 		// State 0 holds on 20× longer than the others: a gross imbalance, but only a handful of switches.
-		const frames = ringFrames({ seed: 5, states: 6, windows: 120, rate_per_s: () => 0.2, stickiness: [0.05, 1, 1, 1, 1, 1], transitions: false });
+		const frames = ringFrames({
+			seed: 5,
+			states: 6,
+			windows: 120,
+			rate_per_s: () => 0.2,
+			stickiness: [0.05, 1, 1, 1, 1, 1],
+			transitions: false
+		});
 		const events = feed(engine, frames);
 		const switches = frames.reduce((a, f) => a + f.switches + f.escapes, 0);
 		expect(switches).toBeLessThan(100);

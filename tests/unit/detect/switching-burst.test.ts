@@ -72,7 +72,15 @@ describe('switching_burst, single window', () => {
 		const ev = events[0].evidence as Record<string, any>;
 		expect(ev).toMatchObject({ rule: 'switching_burst', version: 4, process: 'switching', testsThisWindow: 2, correction: 'bonferroni' });
 		expect(ev.alphaWindow).toBeCloseTo(ALPHA_WINDOW, 15);
-		expect(ev.worst).toMatchObject({ scope: 'window', observed: k + 3, expected: 2, fromSeq: 11, toSeq: 11, windows: 1, thresholdCount: k });
+		expect(ev.worst).toMatchObject({
+			scope: 'window',
+			observed: k + 3,
+			expected: 2,
+			fromSeq: 11,
+			toSeq: 11,
+			windows: 1,
+			thresholdCount: k
+		});
 		expect(ev.worst.pValue / upperTail(k + 3, 2)).toBeCloseTo(1, 6);
 		expect(ev.worst.alpha).toBeCloseTo(alpha, 15);
 		expect(ev.tests[1]).toMatchObject({ scope: 'horizon', observed: 20 + k + 3, expected: 22, fromSeq: 1, toSeq: 11, windows: 11 });
@@ -172,7 +180,12 @@ describe('switching_burst, edges', () => {
 
 	it('a single huge window: judged on its own exposure, and it spends its share of the budget', () => {
 		const run = run6({ switching: flatSwitching(2) });
-		const hour = (seq: number, switches: number): Frame => ({ ...win(seq, switches), window_s: 3600, dwell_s: 3600, t: frame(seq, 0).t + seq * 3_600_000 });
+		const hour = (seq: number, switches: number): Frame => ({
+			...win(seq, switches),
+			window_s: 3600,
+			dwell_s: 3600,
+			t: frame(seq, 0).t + seq * 3_600_000
+		});
 		const alpha = 3600 / (30 * 86_400); // one test: the first window
 		// 7200 expected; a +1.2σ excess is nothing, a +4.7σ one is
 		expect(burstEvents(new DetectorEngine({}, run).onFrame(hour(1, 7300)))).toEqual([]);
@@ -218,7 +231,9 @@ describe('switching_burst, edges', () => {
 		feed(engine, [...calm(1, 10), win(11, 40)]);
 		expect(engine.openConditions().filter((c) => c.kind === 'switching_burst')).toMatchObject([{ key: 'switching' }]);
 		const events = burstEvents(engine.setRun({ rateModels: {} }, 12_000));
-		expect(events).toMatchObject([{ type: 'clear', kind: 'switching_burst', key: 'switching', evidence: { reason: 'rate_model_removed' } }]);
+		expect(events).toMatchObject([
+			{ type: 'clear', kind: 'switching_burst', key: 'switching', evidence: { reason: 'rate_model_removed' } }
+		]);
 		expect(burstEvents(feed(engine, [win(12, 500)]))).toEqual([]);
 	});
 });

@@ -16,7 +16,11 @@ describe('the Poisson fit (IRLS)', () => {
 		const y = [3, 0, 5, 12, 9, 7];
 		const E = [2.1, 1.4, 3.0, 4.2, 3.3, 2.5];
 		const group = [0, 0, 0, 1, 1, 1];
-		const fit = fitPoissonGlm(y, E.map(Math.log), group.map((g) => [1, g]))!;
+		const fit = fitPoissonGlm(
+			y,
+			E.map(Math.log),
+			group.map((g) => [1, g])
+		)!;
 		const sum = (g: number, v: number[]) => v.reduce((s, x, i) => s + (group[i] === g ? x : 0), 0);
 		const r0 = sum(0, y) / sum(0, E);
 		const r1 = sum(1, y) / sum(1, E);
@@ -32,12 +36,17 @@ describe('the Poisson fit (IRLS)', () => {
 		const z = Array.from({ length: 80 }, (_, i) => -0.3 + (0.6 * i) / 79);
 		const E = z.map(() => 0.5 + 2 * rnd());
 		const y = z.map((zi, i) => poissonKnuth(E[i] * Math.exp(0.2 - 2.5 * zi), rnd));
-		const fit = fitPoissonGlm(y, E.map(Math.log), z.map((zi) => [1, zi]))!;
+		const fit = fitPoissonGlm(
+			y,
+			E.map(Math.log),
+			z.map((zi) => [1, zi])
+		)!;
 		// For fixed b1 the best b0 is ln(Σy / Σ E·e^{b1 z}); the b1 score Σ z (y − μ) then falls
 		// monotonically in b1, so bisection finds its root.
 		const b0Of = (b1: number) => Math.log(y.reduce((s, v) => s + v, 0) / E.reduce((s, e, i) => s + e * Math.exp(b1 * z[i]), 0));
 		const score = (b1: number) => z.reduce((s, zi, i) => s + zi * (y[i] - E[i] * Math.exp(b0Of(b1) + b1 * zi)), 0);
-		let lo = -20, hi = 20;
+		let lo = -20,
+			hi = 20;
 		for (let k = 0; k < 200; k++) {
 			const mid = (lo + hi) / 2;
 			if (score(mid) > 0) lo = mid;
@@ -65,7 +74,16 @@ describe('the Poisson fit (IRLS)', () => {
 		expect(() => fitPoissonGlm([1.5], [0], [[1]])).toThrow(/y\[0\] must be a whole number/);
 		expect(() => fitPoissonGlm([1, 2], [0], [[1], [1]])).toThrow(/same length/);
 		expect(() => fitPoissonGlm([1], [NaN], [[1]])).toThrow(/offset\[0\] must be finite/);
-		expect(fitPoissonGlm([0, 0], [0, 0], [[1, 0], [1, 1]])).toBeNull();
+		expect(
+			fitPoissonGlm(
+				[0, 0],
+				[0, 0],
+				[
+					[1, 0],
+					[1, 1]
+				]
+			)
+		).toBeNull();
 		const input = { windows: [], x_nominal: 0.9, modelSlope: 6, chartLogExcess: 0.2, chartFollowsTemperature: true };
 		expect(() => attributeToTemperature({ ...input, confidence: 1 })).toThrow(/confidence must lie strictly between 0 and 1/);
 		expect(() => attributeToTemperature({ ...input, confidence: 0.95, modelSlope: -1 })).toThrow(/modelSlope must be ≥ 0/);
@@ -89,7 +107,9 @@ function firstOpening(seed: number, T_mK: (i: number) => number, rate: (i: numbe
 	const engine = new DetectorEngine(rules, run6({ switching: model }));
 	for (let i = 1; i <= 9000; i++) {
 		const T = T_mK(i);
-		const open = engine.onFrame({ ...frame(i, 0.95), switches: poissonKnuth(rate(i, T), rnd), aux: { mxc_mK: T } }).find((e) => e.kind === 'rate_drift' && e.type === 'open');
+		const open = engine
+			.onFrame({ ...frame(i, 0.95), switches: poissonKnuth(rate(i, T), rnd), aux: { mxc_mK: T } })
+			.find((e) => e.kind === 'rate_drift' && e.type === 'open');
 		if (open) return open;
 	}
 	throw new Error('rate_drift never opened');
@@ -138,11 +158,19 @@ describe('rate_drift: what the temperature explains (seeded Poisson windows)', (
 
 	it('a detuning at a steady temperature is not explained, at the nominal point and away from it', () => {
 		for (const seed of SEEDS) {
-			const atNominal = firstOpening(seed, () => 13, (i, T) => modelRate(T) * (i > 1200 ? 1.25 : 1)).evidence as any;
+			const atNominal = firstOpening(
+				seed,
+				() => 13,
+				(i, T) => modelRate(T) * (i > 1200 ? 1.25 : 1)
+			).evidence as any;
 			expect(atNominal.explainedByTemperature, `seed ${seed}`).toBe(false);
 			expect(atNominal.temperatureFit.reason).toBe('temperature_at_nominal');
 			expect(atNominal.residualInterval[0]).toBeGreaterThan(1);
-			const warm = firstOpening(seed, () => 26, (i, T) => modelRate(T) * (i > 1200 ? 1.25 : 1)).evidence as any;
+			const warm = firstOpening(
+				seed,
+				() => 26,
+				(i, T) => modelRate(T) * (i > 1200 ? 1.25 : 1)
+			).evidence as any;
 			expect(warm.explainedByTemperature, `seed ${seed}`).toBe(false);
 			expect(warm.temperatureFit.reason).toBe('changed_at_steady_temperature');
 			expect(warm.explanation).toMatch(/^Unexplained by temperature/);
@@ -151,7 +179,11 @@ describe('rate_drift: what the temperature explains (seeded Poisson windows)', (
 
 	it('a steady warm fridge with a wrong A from the start: cannot tell (no onset, no spread), never "explained" nor "unexplained"', () => {
 		for (const seed of SEEDS) {
-			const open = firstOpening(seed, () => 26, (_i, T) => trueRateA7(T));
+			const open = firstOpening(
+				seed,
+				() => 26,
+				(_i, T) => trueRateA7(T)
+			);
 			const ev = open.evidence as any;
 			expect(ev.explainedByTemperature, `seed ${seed}`).toBeNull();
 			expect(ev.temperatureFit.reason).toBe('temperature_steady');

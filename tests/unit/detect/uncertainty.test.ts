@@ -24,14 +24,22 @@ import { budgetOf, run6 } from './models';
 const N = 40_000;
 const BUDGET = 2000;
 const feed = (engine: DetectorEngine, fs: Frame[]) => fs.flatMap((f) => engine.onFrame(f));
-const pages = (events: DetectorEvent[], kind: string) => events.filter((e) => e.type === 'open' && e.kind === kind && e.severity !== 'info');
+const pages = (events: DetectorEvent[], kind: string) =>
+	events.filter((e) => e.type === 'open' && e.kind === kind && e.severity !== 'info');
 const findings = (events: DetectorEvent[]) => events.filter((e) => e.type === 'open' && e.kind === 'rate_drift' && e.severity === 'info');
 /** Smallest count whose probability under Poisson(mean) is at most 0.001: a count this large fails. */
 const tooMany = (mean: number) => poissonThresholdForTail(mean, 0.001);
 
 const SIGMA = 0.1;
 /** Flat switching at 1/s whose ln W0 is known to σ = 0.1 (A = 0, so σ(ln W) = 0.1 at any temperature). */
-const stated = (process: 'switching' | 'escape', W0_per_s: number) => ({ process, W0_per_s, A: 0, mode_GHz: 5, nominal_mK: 20, W0_sigma: SIGMA });
+const stated = (process: 'switching' | 'escape', W0_per_s: number) => ({
+	process,
+	W0_per_s,
+	A: 0,
+	mode_GHz: 5,
+	nominal_mK: 20,
+	W0_sigma: SIGMA
+});
 const budgetRules = (extra: object = {}) => ({
 	switching_burst: { falseAlarmEvery_days: budgetOf(BUDGET) },
 	rate_drift: { falseAlarmEvery_days: budgetOf(BUDGET), baseline_h: 1, ...extra },
@@ -43,7 +51,10 @@ describe('in control with the true rate off the model, inside its 2σ band (seed
 	for (const k of [-2, -1, 1, 2]) {
 		it(`true rate e^(${k}σ) × the model: each rule stays within its budget`, SLOW, () => {
 			const factor = Math.exp(k * SIGMA);
-			const events = feed(new DetectorEngine(budgetRules(), run6({ switching: stated('switching', 1) })), rateFrames({ seed: 300 + k, windows: N, switchRate: () => factor }));
+			const events = feed(
+				new DetectorEngine(budgetRules(), run6({ switching: stated('switching', 1) })),
+				rateFrames({ seed: 300 + k, windows: N, switchRate: () => factor })
+			);
 			const drift = pages(events, 'rate_drift');
 			const burst = pages(events, 'switching_burst');
 			expect(drift.length).toBeLessThan(tooMany(expected));
@@ -73,11 +84,18 @@ describe('in control with the true rate off the model, inside its 2σ band (seed
 
 	it('a model without stated uncertainty gets the declared default band, recorded in the evidence', SLOW, () => {
 		const bare = { process: 'switching' as const, W0_per_s: 1, A: 0, mode_GHz: 5, nominal_mK: 20 };
-		const events = feed(new DetectorEngine(budgetRules(), run6({ switching: bare })), rateFrames({ seed: 310, windows: N, switchRate: () => Math.exp(2 * DEFAULT_RATE_MODEL_UNCERTAINTY.W0_sigma) }));
+		const events = feed(
+			new DetectorEngine(budgetRules(), run6({ switching: bare })),
+			rateFrames({ seed: 310, windows: N, switchRate: () => Math.exp(2 * DEFAULT_RATE_MODEL_UNCERTAINTY.W0_sigma) })
+		);
 		expect(pages(events, 'rate_drift').length).toBeLessThan(tooMany(expected));
 		expect(pages(events, 'switching_burst').length).toBeLessThan(tooMany(expected));
 		const anyDrift = events.find((e) => e.kind === 'rate_drift' && e.type === 'open');
-		if (anyDrift) expect((anyDrift.evidence as any).reference?.uncertainty ?? (anyDrift.evidence as any).uncertainty).toMatchObject({ W0_sigma: 0.1, stated: false });
+		if (anyDrift)
+			expect((anyDrift.evidence as any).reference?.uncertainty ?? (anyDrift.evidence as any).uncertainty).toMatchObject({
+				W0_sigma: 0.1,
+				stated: false
+			});
 		const anyBurst = events.find((e) => e.kind === 'switching_burst' && e.type === 'open');
 		if (anyBurst) expect((anyBurst.evidence as any).uncertainty).toMatchObject({ W0_sigma: 0.1, A_sigma: 0, stated: false });
 	});
@@ -114,7 +132,10 @@ describe('a fridge day 10 → 40 → 10 mK with a model off by 1σ in W0 and in 
 	const trueRate = (i: number) => Math.exp(Math.log(74.2) + 0.1 - (6 - 0.3) / noiseFactor(1, T(i)));
 
 	it('no rule spends more than its budget', SLOW, () => {
-		const events = feed(new DetectorEngine(budgetRules(), run6({ switching: model })), rateFrames({ seed: 510, windows: N, switchRate: trueRate, T_mK: T }));
+		const events = feed(
+			new DetectorEngine(budgetRules(), run6({ switching: model })),
+			rateFrames({ seed: 510, windows: N, switchRate: trueRate, T_mK: T })
+		);
 		expect(pages(events, 'rate_drift').length).toBeLessThan(tooMany(N / BUDGET));
 		expect(pages(events, 'switching_burst').length).toBeLessThan(tooMany(N / BUDGET));
 		expect(findings(events).length).toBeLessThanOrEqual(1);
@@ -125,7 +146,10 @@ describe('an operating point outside its model’s band (seeded)', () => {
 	it('is one info finding, not a page; a later doubling still pages', () => {
 		// 1.6 × the model, beyond its default band of e^{±0.2}; 30-day budget; baseline over 1 h.
 		const bare = { process: 'switching' as const, W0_per_s: 1, A: 0, mode_GHz: 5, nominal_mK: 20 };
-		const engine = new DetectorEngine({ rate_drift: { baseline_h: 1 }, occupancy_imbalance: { enabled: false } }, run6({ switching: bare }));
+		const engine = new DetectorEngine(
+			{ rate_drift: { baseline_h: 1 }, occupancy_imbalance: { enabled: false } },
+			run6({ switching: bare })
+		);
 		const calm = feed(engine, rateFrames({ seed: 601, windows: 10_000, switchRate: () => 1.6 }));
 		expect(pages(calm, 'rate_drift')).toEqual([]);
 		const f = findings(calm);
@@ -183,7 +207,15 @@ describe('snapshots from before the baseline', () => {
 		const snap = engine.snapshot() as any;
 		delete snap.detectors.rate_drift.switching.baseline;
 		snap.detectors.rate_drift.switching.horizon = null;
-		snap.detectors.switching_burst.switching.horizon = { size: 60, width: 5, summed: 3, head: 0, len: 0, rows: new Array(300).fill(0), sums: [0, 0, 0] };
+		snap.detectors.switching_burst.switching.horizon = {
+			size: 60,
+			width: 5,
+			summed: 3,
+			head: 0,
+			len: 0,
+			rows: new Array(300).fill(0),
+			sums: [0, 0, 0]
+		};
 		const restored = DetectorEngine.restore(JSON.parse(JSON.stringify(snap)));
 		feed(restored, rateFrames({ seed: 802, windows: 50, firstSeq: 51, switchRate: () => 1 }));
 		const after = restored.snapshot() as any;

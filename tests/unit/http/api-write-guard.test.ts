@@ -13,14 +13,21 @@ describe('apiWriteProblem', () => {
 	});
 
 	it('refuses another origin even with a token, and a missing origin without one', () => {
-		expect(apiWriteProblem(req('POST', '/api/setups', { origin: 'https://evil.example', authorization: 'Bearer x', ...json }), ORIGIN)).toMatchObject({ status: 403 });
-		expect(apiWriteProblem(req('DELETE', '/api/setups/1', {}), ORIGIN)).toMatchObject({ status: 403, message: expect.stringMatching(/no Origin/) });
+		expect(
+			apiWriteProblem(req('POST', '/api/setups', { origin: 'https://evil.example', authorization: 'Bearer x', ...json }), ORIGIN)
+		).toMatchObject({ status: 403 });
+		expect(apiWriteProblem(req('DELETE', '/api/setups/1', {}), ORIGIN)).toMatchObject({
+			status: 403,
+			message: expect.stringMatching(/no Origin/)
+		});
 		expect(apiWriteProblem(req('POST', '/api/setups', { authorization: 'Bearer pwt_abc', ...json }), ORIGIN)).toBeNull();
 	});
 
 	it('wants JSON bodies, multipart only on the import route', () => {
 		const form = { origin: ORIGIN, 'content-type': 'multipart/form-data; boundary=x', 'content-length': '10' };
-		expect(apiWriteProblem(req('POST', '/api/setups', { origin: ORIGIN, 'content-type': 'text/plain', 'content-length': '3' }), ORIGIN)).toMatchObject({ status: 415 });
+		expect(
+			apiWriteProblem(req('POST', '/api/setups', { origin: ORIGIN, 'content-type': 'text/plain', 'content-length': '3' }), ORIGIN)
+		).toMatchObject({ status: 415 });
 		expect(apiWriteProblem(req('POST', '/api/setups', form), ORIGIN)).toMatchObject({ status: 415 });
 		expect(apiWriteProblem(req('POST', '/api/setups/abc/import', form), ORIGIN)).toBeNull();
 		expect(apiWriteProblem(req('POST', '/api/incidents/1/resolve', { origin: ORIGIN, 'content-length': '0' }), ORIGIN)).toBeNull();

@@ -44,7 +44,13 @@ describe('kind labels', () => {
 
 describe('lock_lost', () => {
 	const engine = new DetectorEngine({ lock_lost: { version: 4 } }, run6());
-	const open = firstOpen(feed(engine, [0.42, 0.38, 0.31, 0.27, 0.22].map((l, i) => frame(1040 + i, l))), 'lock_lost');
+	const open = firstOpen(
+		feed(
+			engine,
+			[0.42, 0.38, 0.31, 0.27, 0.22].map((l, i) => frame(1040 + i, l))
+		),
+		'lock_lost'
+	);
 	it('threshold, streak, start time and latest value', () => {
 		const t = textOf({ kind: 'lock_lost', evidence: open.evidence, ...where });
 		expect(t).toContain('Fridge Aster, run Cooldown 14');
@@ -71,7 +77,13 @@ describe('agent_silent', () => {
 describe('aux_limit', () => {
 	it('the value in words and units, the limit and how far past it', () => {
 		const mxc = (seq: number, v: number): Frame => ({ ...frame(seq, 0.95), aux: { mxc_mK: v } });
-		const open = firstOpen(feed(new DetectorEngine({}, run6()), [29, 31, 30.5, 33.25].map((v, i) => mxc(i + 1, v))), 'aux_limit');
+		const open = firstOpen(
+			feed(
+				new DetectorEngine({}, run6()),
+				[29, 31, 30.5, 33.25].map((v, i) => mxc(i + 1, v))
+			),
+			'aux_limit'
+		);
 		const t = textOf({ kind: 'aux_limit', key: 'mxc_mK', evidence: open.evidence });
 		expect(t).toContain('mixing-chamber temperature');
 		expect(t).toContain('above 30 mK');
@@ -83,7 +95,10 @@ describe('aux_limit', () => {
 describe('switching_burst', () => {
 	it('observed against predicted, the allowed range and the chance', () => {
 		const run = run6({ switching: flatSwitching(0.5) });
-		const fs = [...Array.from({ length: 30 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i % 2 })), { ...frame(31, 0.95), switches: 14 }];
+		const fs = [
+			...Array.from({ length: 30 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i % 2 })),
+			{ ...frame(31, 0.95), switches: 14 }
+		];
 		const open = firstOpen(feed(new DetectorEngine({ rate_drift: { enabled: false } }, run), fs), 'switching_burst');
 		const worst = open.evidence.worst as Record<string, number>;
 		const t = textOf({ kind: 'switching_burst', key: 'switching', evidence: open.evidence });
@@ -98,7 +113,10 @@ describe('switching_burst', () => {
 describe('switching_burst with an uncertain model', () => {
 	it('gives the range the model allows, symmetric in ln W about the prediction', () => {
 		const run = run6({ switching: { ...flatSwitching(0.5), W0_sigma: 0.2 } });
-		const fs = [...Array.from({ length: 30 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i % 2 })), { ...frame(31, 0.95), switches: 20 }];
+		const fs = [
+			...Array.from({ length: 30 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i % 2 })),
+			{ ...frame(31, 0.95), switches: 20 }
+		];
 		const open = firstOpen(feed(new DetectorEngine({ rate_drift: { enabled: false } }, run), fs), 'switching_burst');
 		const worst = open.evidence.worst as Record<string, number>;
 		expect(worst.testedAgainst).toBeGreaterThan(worst.expected);
@@ -113,14 +131,20 @@ describe('rate_drift', () => {
 	it('ratio with its interval, since when, and the statistic against its decision limit', () => {
 		const run = run6({ switching: flatSwitching(1) });
 		const fs = Array.from({ length: 80 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: 2 }));
-		const open = firstOpen(feed(new DetectorEngine({ switching_burst: { enabled: false }, rate_drift: noBaseline }, run), fs), 'rate_drift', 'switching');
+		const open = firstOpen(
+			feed(new DetectorEngine({ switching_burst: { enabled: false }, rate_drift: noBaseline }, run), fs),
+			'rate_drift',
+			'switching'
+		);
 		const ev = open.evidence as any;
 		const t = textOf({ kind: 'rate_drift', key: 'switching', evidence: ev, ...where });
 		expect(t).toContain('drifted above its prediction');
 		expect(t).toContain(`since ${clock(ev.sinceChange.from_ms)}`);
 		expect(t).toContain(`${ev.sinceChange.observed} switches where the model predicted ${ev.sinceChange.expected}`);
 		expect(t).toContain('2 times the prediction');
-		expect(t).toContain(`${Math.round(ev.ratio.confidence * 100)} % interval (${Number(ev.ratio.lower.toPrecision(2))}–${Number(ev.ratio.upper.toPrecision(2))})`);
+		expect(t).toContain(
+			`${Math.round(ev.ratio.confidence * 100)} % interval (${Number(ev.ratio.lower.toPrecision(2))}–${Number(ev.ratio.upper.toPrecision(2))})`
+		);
 		expect(t).toContain(`decision limit of ${Number(ev.decisionInterval.toPrecision(3))}`);
 	});
 });
@@ -148,7 +172,10 @@ describe('occupancy_imbalance', () => {
 
 describe('clear reasons', () => {
 	it('a condition no longer watched says so in words', () => {
-		const d = describeIncident({ kind: 'switching_burst', evidence: { rule: 'switching_burst', version: 2, reason: 'rate_model_removed' } });
+		const d = describeIncident({
+			kind: 'switching_burst',
+			evidence: { rule: 'switching_burst', version: 2, reason: 'rate_model_removed' }
+		});
 		expect(d.what).toContain('no rate model any more');
 		expect(machineWords(d.what)).toEqual([]);
 	});

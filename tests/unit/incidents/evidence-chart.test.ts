@@ -32,12 +32,22 @@ const only = <T extends Chart['type']>(charts: Chart[], type: T) => charts.filte
 describe('rate_drift evidence', () => {
 	// One switch a window expected; from seq 21 on, two a window.
 	const fs = Array.from({ length: 120 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i < 20 ? 1 : 2 }));
-	const events = feed(new DetectorEngine({ switching_burst: { enabled: false }, rate_drift: noBaseline }, run6({ switching: flatSwitching(1) })), fs);
+	const events = feed(
+		new DetectorEngine({ switching_burst: { enabled: false }, rate_drift: noBaseline }, run6({ switching: flatSwitching(1) })),
+		fs
+	);
 	const open = opening(events, 'rate_drift');
 	const ev = open.evidence as any;
 	const span = evidenceSeqSpan('rate_drift', ev)!;
 	const windows = fs.filter((f) => f.seq >= span.fromSeq && f.seq <= span.toSeq).map(asWindow);
-	const charts = evidenceCharts({ kind: 'rate_drift', key: 'switching', evidence: ev, windows, focus: { fromSeq: span.focusFrom, toSeq: span.focusTo }, states: 6 });
+	const charts = evidenceCharts({
+		kind: 'rate_drift',
+		key: 'switching',
+		evidence: ev,
+		windows,
+		focus: { fromSeq: span.focusFrom, toSeq: span.focusTo },
+		states: 6
+	});
 
 	it('the span covers the windows since the change, with context before', () => {
 		expect(span.focusTo).toBe(open.seq);
@@ -77,12 +87,18 @@ describe('rate_drift evidence', () => {
 describe('switching_burst evidence', () => {
 	it('bars grouped to at most 120, the burst window marked with its count', () => {
 		const fs = Array.from({ length: 400 }, (_, i) => ({ ...frame(i + 1, 0.95), switches: i === 399 ? 14 : i % 2 }));
-		const open = opening(feed(new DetectorEngine({ rate_drift: { enabled: false } }, run6({ switching: flatSwitching(0.5) })), fs), 'switching_burst');
+		const open = opening(
+			feed(new DetectorEngine({ rate_drift: { enabled: false } }, run6({ switching: flatSwitching(0.5) })), fs),
+			'switching_burst'
+		);
 		const windows = fs.map(asWindow);
 		const [counts] = only(evidenceCharts({ kind: 'switching_burst', evidence: open.evidence, windows, focus: null, states: 6 }), 'counts');
 		expect(counts.bars.length).toBeLessThanOrEqual(120);
 		// each bar is its windows' mean, so bar × windows sums back to every switch sent
-		expect(counts.bars.reduce((a, b) => a + b.observed * (b.toSeq - b.fromSeq + 1), 0)).toBeCloseTo(fs.reduce((a, f) => a + f.switches, 0), 9);
+		expect(counts.bars.reduce((a, b) => a + b.observed * (b.toSeq - b.fromSeq + 1), 0)).toBeCloseTo(
+			fs.reduce((a, f) => a + f.switches, 0),
+			9
+		);
 		const last = counts.bars.at(-1)!;
 		expect(last.focus).toBe(true);
 		expect(last.expected).toBeCloseTo(0.5, 9);
@@ -94,7 +110,16 @@ describe('lock_lost and occupancy evidence', () => {
 		const fs = [0.9, 0.9, 0.42, 0.38, 0.31, 0.27, 0.22].map((l, i) => frame(i + 1, l));
 		const open = opening(feed(new DetectorEngine({}, run6()), fs), 'lock_lost');
 		const span = evidenceSeqSpan('lock_lost', open.evidence)!;
-		const [level] = only(evidenceCharts({ kind: 'lock_lost', evidence: open.evidence, windows: fs.map(asWindow), focus: { fromSeq: span.focusFrom, toSeq: span.focusTo }, states: 6 }), 'level');
+		const [level] = only(
+			evidenceCharts({
+				kind: 'lock_lost',
+				evidence: open.evidence,
+				windows: fs.map(asWindow),
+				focus: { fromSeq: span.focusFrom, toSeq: span.focusTo },
+				states: 6
+			}),
+			'level'
+		);
 		expect(level.points.map((p) => p.value)).toEqual([0.9, 0.9, 0.42, 0.38, 0.31, 0.27, 0.22]);
 		expect(level.limits.map((l) => l.value)).toContain((open.evidence as any).threshold);
 		expect(level.focus).not.toBeNull();
@@ -102,7 +127,10 @@ describe('lock_lost and occupancy evidence', () => {
 
 	it('shares per state against 1/K', () => {
 		const ev = { rule: 'occupancy_imbalance', version: 1, fractions: [0.4, 0.12, 0.12, 0.12, 0.12, 0.12], expectedFraction: 1 / 6 };
-		const [shares] = only(evidenceCharts({ kind: 'occupancy_imbalance', key: 'states', evidence: ev, windows: [], focus: null, states: 6 }), 'shares');
+		const [shares] = only(
+			evidenceCharts({ kind: 'occupancy_imbalance', key: 'states', evidence: ev, windows: [], focus: null, states: 6 }),
+			'shares'
+		);
 		expect(shares.shares).toEqual(ev.fractions);
 		expect(shares.expected).toBeCloseTo(1 / 6, 12);
 		expect(shares.alt).toContain('state 0 (0°) 40 %');

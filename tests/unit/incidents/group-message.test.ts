@@ -7,9 +7,28 @@ import { renderIncidentEmail } from '../../../src/lib/server/notify/alert-email'
 
 const at = (s: number) => new Date(Date.UTC(2026, 2, 18, 12, 0, s));
 // The demo's lock loss, in the order its incidents opened: a burst first, the lock a few seconds later.
-const burst: GroupMember = { id: 'a', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s where 1 was expected', openedAt: at(0), head: true };
-const occupancy: GroupMember = { id: 'b', kind: 'occupancy_imbalance', severity: 'warning', summary: 'state 2 holds 61 %', openedAt: at(2) };
-const lock: GroupMember = { id: 'c', kind: 'lock_lost', severity: 'critical', summary: 'lock 0.15 below 0.5 for 5 windows', openedAt: at(4) };
+const burst: GroupMember = {
+	id: 'a',
+	kind: 'switching_burst',
+	severity: 'warning',
+	summary: '25 switches in 1 s where 1 was expected',
+	openedAt: at(0),
+	head: true
+};
+const occupancy: GroupMember = {
+	id: 'b',
+	kind: 'occupancy_imbalance',
+	severity: 'warning',
+	summary: 'state 2 holds 61 %',
+	openedAt: at(2)
+};
+const lock: GroupMember = {
+	id: 'c',
+	kind: 'lock_lost',
+	severity: 'critical',
+	summary: 'lock 0.15 below 0.5 for 5 windows',
+	openedAt: at(4)
+};
 const aux: GroupMember = { id: 'd', kind: 'aux_limit', severity: 'critical', summary: 'mxc_mK 35 above 30', openedAt: at(1) };
 
 describe('groupLead', () => {

@@ -16,8 +16,13 @@ beforeAll(async () => {
 	// One run each, far apart in time, so no incident groups under another.
 	const severities = ['warning', 'critical', 'info'] as const;
 	for (const [i, severity] of severities.entries()) {
-		const [run] = await db.insert(runs).values({ id: `r${i}`, setupId: setup.id, key: `r${i}`, name: `r${i}`, order: 3, states: 6, modeGHz: 5 }).returning();
-		await db.transaction((tx) => openIncident(tx, run, { kind: 'aux_limit', severity, summary: severity, evidence: {}, t: t0 + i * 3_600_000 }));
+		const [run] = await db
+			.insert(runs)
+			.values({ id: `r${i}`, setupId: setup.id, key: `r${i}`, name: `r${i}`, order: 3, states: 6, modeGHz: 5 })
+			.returning();
+		await db.transaction((tx) =>
+			openIncident(tx, run, { kind: 'aux_limit', severity, summary: severity, evidence: {}, t: t0 + i * 3_600_000 })
+		);
 	}
 }, 60_000);
 afterAll(async () => {

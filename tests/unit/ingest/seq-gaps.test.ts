@@ -32,26 +32,30 @@ describe('SeqGaps', () => {
 
 	it('holds exactly the seqs never filled, whatever the order of late frames', () => {
 		fc.assert(
-			fc.property(fc.array(fc.integer({ min: 1, max: 60 }), { maxLength: 80 }), fc.array(fc.integer({ min: 1, max: 60 })), (arrived, late) => {
-				// Seqs 1..60 with some arrived in order: the rest are gaps; then late frames fill them.
-				const have = new Set(arrived);
-				const gaps = new SeqGaps();
-				let start: number | null = null;
-				for (let s = 1; s <= 61; s++) {
-					const missing = s <= 60 && !have.has(s);
-					if (missing && start === null) start = s;
-					if (!missing && start !== null) {
-						gaps.add(start, s - 1, at);
-						start = null;
+			fc.property(
+				fc.array(fc.integer({ min: 1, max: 60 }), { maxLength: 80 }),
+				fc.array(fc.integer({ min: 1, max: 60 })),
+				(arrived, late) => {
+					// Seqs 1..60 with some arrived in order: the rest are gaps; then late frames fill them.
+					const have = new Set(arrived);
+					const gaps = new SeqGaps();
+					let start: number | null = null;
+					for (let s = 1; s <= 61; s++) {
+						const missing = s <= 60 && !have.has(s);
+						if (missing && start === null) start = s;
+						if (!missing && start !== null) {
+							gaps.add(start, s - 1, at);
+							start = null;
+						}
 					}
+					for (const s of late) {
+						const filled = gaps.fill(s) !== null;
+						expect(filled).toBe(!have.has(s));
+						have.add(s);
+					}
+					for (let s = 1; s <= 60; s++) expect(gaps.contains(s)).toBe(!have.has(s));
 				}
-				for (const s of late) {
-					const filled = gaps.fill(s) !== null;
-					expect(filled).toBe(!have.has(s));
-					have.add(s);
-				}
-				for (let s = 1; s <= 60; s++) expect(gaps.contains(s)).toBe(!have.has(s));
-			})
+			)
 		);
 	});
 });

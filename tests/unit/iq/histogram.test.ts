@@ -33,7 +33,11 @@ describe('sumIq', () => {
 	});
 
 	it('leaves out histograms on another grid and says how many', () => {
-		const s = sumIq([{ bins: 2, extent: 1, counts: [1, 1, 1, 1] }, { bins: 3, extent: 1, counts: new Array(9).fill(1) }, { bins: 2, extent: 2, counts: [5, 5, 5, 5] }]);
+		const s = sumIq([
+			{ bins: 2, extent: 1, counts: [1, 1, 1, 1] },
+			{ bins: 3, extent: 1, counts: new Array(9).fill(1) },
+			{ bins: 2, extent: 2, counts: [5, 5, 5, 5] }
+		]);
 		expect(s).toMatchObject({ frames: 1, mismatched: 2, total: 4 });
 	});
 

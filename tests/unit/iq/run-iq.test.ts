@@ -24,7 +24,21 @@ beforeAll(async () => {
 		const seq = i + 1;
 		// every 10th frame sends no histogram; seq 7 one on another grid
 		const iq = seq % 10 === 0 ? null : seq === 7 ? { bins: 2, extent: 1, counts: [1, 1, 1, 1] } : { bins: 1, extent: 1, counts: [seq] };
-		return { runId: run.id, seq, t: T0 + seq * 1000, windowS: 1, shots: 10, vacuum: 1, counts: [4, 5], lock: 0.9, switches: 0, dwellS: 1, escapes: 0, vacuumS: 0, iq };
+		return {
+			runId: run.id,
+			seq,
+			t: T0 + seq * 1000,
+			windowS: 1,
+			shots: 10,
+			vacuum: 1,
+			counts: [4, 5],
+			lock: 0.9,
+			switches: 0,
+			dwellS: 1,
+			escapes: 0,
+			vacuumS: 0,
+			iq
+		};
 	});
 	for (let i = 0; i < rows.length; i += 500) await db.insert(frames).values(rows.slice(i, i + 500));
 	run.lastFrameT = T0 + N * 1000;

@@ -37,7 +37,19 @@ it('analyzes the frames table once enough rows changed, and the frame page then 
 	for (let b = 0; b < 10; b++) {
 		const rows = Array.from({ length: 1000 }, (_, i) => {
 			const seq = b * 1000 + i + 1;
-			return frameToRow(runId, { seq, t: seq * 1000, window_s: 1, shots: 10, vacuum: 0, counts: [5, 5], lock: 0.9, switches: 0, dwell_s: 1, escapes: 0, vacuum_s: 0 });
+			return frameToRow(runId, {
+				seq,
+				t: seq * 1000,
+				window_s: 1,
+				shots: 10,
+				vacuum: 0,
+				counts: [5, 5],
+				lock: 0.9,
+				switches: 0,
+				dwell_s: 1,
+				escapes: 0,
+				vacuum_s: 0
+			});
 		});
 		await db.insert(frames).values(rows);
 	}

@@ -25,23 +25,61 @@ const NOW = new Date('2026-11-20T12:00:00Z');
 
 async function runWith(opts: { retentionDays: number | null; status: 'open' | 'ended'; frames: number; snapshotSeq?: number }) {
 	const setupId = randomUUID();
-	await db
-		.insert(setups)
-		.values({ id: setupId, name: `fridge ${setupId}`, order: 2, states: 2, modeGHz: 5, nominalMK: 12, rawRetentionDays: opts.retentionDays });
+	await db.insert(setups).values({
+		id: setupId,
+		name: `fridge ${setupId}`,
+		order: 2,
+		states: 2,
+		modeGHz: 5,
+		nominalMK: 12,
+		rawRetentionDays: opts.retentionDays
+	});
 	const runId = randomUUID();
-	await db.insert(runs).values({ id: runId, setupId, key: 'k', name: 'n', order: 2, states: 2, modeGHz: 5, status: opts.status, lastSeq: opts.frames });
+	await db
+		.insert(runs)
+		.values({ id: runId, setupId, key: 'k', name: 'n', order: 2, states: 2, modeGHz: 5, status: opts.status, lastSeq: opts.frames });
 	// Frame seq s arrived (frames − s + 1) hours before NOW: seq 1 is the oldest.
 	const rows = Array.from({ length: opts.frames }, (_, i) => {
 		const seq = i + 1;
 		const receivedAt = new Date(NOW.getTime() - (opts.frames - seq + 1) * 3_600_000);
-		const f = { seq, t: receivedAt.getTime(), window_s: 1, shots: 10, vacuum: 0, counts: [5, 5], lock: 0.9, switches: 0, dwell_s: 1, escapes: 0, vacuum_s: 0 };
+		const f = {
+			seq,
+			t: receivedAt.getTime(),
+			window_s: 1,
+			shots: 10,
+			vacuum: 0,
+			counts: [5, 5],
+			lock: 0.9,
+			switches: 0,
+			dwell_s: 1,
+			escapes: 0,
+			vacuum_s: 0
+		};
 		return { ...frameToRow(runId, f), receivedAt };
 	});
 	await db.insert(frames).values(rows);
 	await db.insert(frameRollups).values({
-		runId, resolutionS: 3600, bucketT: 0, frames: opts.frames, firstSeq: 1, lastSeq: opts.frames, windowS: opts.frames, shots: 10 * opts.frames,
-		vacuum: 0, counts: [5 * opts.frames, 5 * opts.frames], switches: 0, dwellS: opts.frames, escapes: 0, vacuumS: 0, transitions: null,
-		lockMin: 0.9, lockSum: 0.9 * opts.frames, lockMax: 0.9, aux: {}, expectedSwitches: null, expectedEscapes: null
+		runId,
+		resolutionS: 3600,
+		bucketT: 0,
+		frames: opts.frames,
+		firstSeq: 1,
+		lastSeq: opts.frames,
+		windowS: opts.frames,
+		shots: 10 * opts.frames,
+		vacuum: 0,
+		counts: [5 * opts.frames, 5 * opts.frames],
+		switches: 0,
+		dwellS: opts.frames,
+		escapes: 0,
+		vacuumS: 0,
+		transitions: null,
+		lockMin: 0.9,
+		lockSum: 0.9 * opts.frames,
+		lockMax: 0.9,
+		aux: {},
+		expectedSwitches: null,
+		expectedEscapes: null
 	});
 	if (opts.snapshotSeq !== undefined) await db.insert(runSnapshots).values({ runId, lastSeq: opts.snapshotSeq, state: {} });
 	return runId;
@@ -79,7 +117,10 @@ it('keeps everything of an open run that has no snapshot yet, and of a setup wit
 it('deletes in chunks across a seq jump of billions without walking the empty range', async () => {
 	const runId = await runWith({ retentionDays: 1, status: 'ended', frames: 40 });
 	// Move the newest frame far up, as an agent that jumped to 2^31 − 1 would leave it.
-	await db.update(frames).set({ seq: 2147483647 }).where(and(eq(frames.runId, runId), eq(frames.seq, 40)));
+	await db
+		.update(frames)
+		.set({ seq: 2147483647 })
+		.where(and(eq(frames.runId, runId), eq(frames.seq, 40)));
 	await db.update(runs).set({ lastSeq: 2147483647 }).where(eq(runs.id, runId));
 	await applyRetention(db, new Date(NOW.getTime() + 10 * DAY));
 	expect(await seqsOf(runId)).toEqual([]);

@@ -58,7 +58,9 @@ describe('renderIncidentEmail', () => {
 		const first = new Date(frame(1040, 0).t).toISOString().slice(11, 19);
 		const last = new Date(frame(1044, 0).t).toISOString().slice(11, 19);
 		for (const body of [mail.text.replace(/\s+/g, ' '), mail.html]) {
-			expect(body).toContain('Phase lock on Fridge Aster (Kessler lab), run Cooldown 14 · period tripling sweep fell below 0.5 for 5 windows in a row');
+			expect(body).toContain(
+				'Phase lock on Fridge Aster (Kessler lab), run Cooldown 14 · period tripling sweep fell below 0.5 for 5 windows in a row'
+			);
 			expect(body).toContain(`since ${first} UTC`);
 			expect(body).toContain(`0.22 at ${last} UTC`);
 			expect(body).toContain('Detector rule version 4');

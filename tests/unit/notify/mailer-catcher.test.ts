@@ -93,7 +93,9 @@ describe('mailer failures', () => {
 	});
 
 	it('refuses a bad configuration at once, naming the setting', () => {
-		expect(() => createMailer({ smtpUrl: 'http://mail.example', from: 'a@b.example' })).toThrow(/SMTP_URL: expected smtp:\/\/ or smtps:\/\//);
+		expect(() => createMailer({ smtpUrl: 'http://mail.example', from: 'a@b.example' })).toThrow(
+			/SMTP_URL: expected smtp:\/\/ or smtps:\/\//
+		);
 		expect(() => createMailer({ smtpUrl: 'not a url', from: 'a@b.example' })).toThrow(/SMTP_URL: not a URL/);
 		expect(() => createMailer({ smtpUrl: 'smtp://127.0.0.1:25', from: 'nobody' })).toThrow(/MAIL_FROM/);
 	});

@@ -82,7 +82,8 @@ describe('RFC 2047 and RFC 2045 pieces', () => {
 	});
 
 	it('decodes quoted-printable soft line breaks and multi-byte sequences (RFC 2045 §6.7)', async () => {
-		const qp = (body: string) => parseMail(message('Subject: s', body, 'Content-Type: text/plain; charset=utf-8\r\nContent-Transfer-Encoding: quoted-printable\r\n'));
+		const qp = (body: string) =>
+			parseMail(message('Subject: s', body, 'Content-Type: text/plain; charset=utf-8\r\nContent-Transfer-Encoding: quoted-printable\r\n'));
 		expect((await qp('abc=\r\ndef')).text?.trimEnd()).toBe('abcdef');
 		expect((await qp('=C3=BCber =3D 1')).text?.trimEnd()).toBe('über = 1');
 		expect((await qp('trailing   \r\nnext')).text?.trimEnd()).toBe('trailing\nnext');

@@ -20,13 +20,21 @@ async function newRun(key: string) {
 	const [run] = await db.insert(runs).values({ id: key, setupId, key, name: key, order: 3, states: 6, modeGHz: 5 }).returning();
 	return run;
 }
-const alertsOf = async (incidentId: string) => db.select().from(outbox).where(and(eq(outbox.incidentId, incidentId), eq(outbox.kind, 'alert'), eq(outbox.channel, 'email')));
+const alertsOf = async (incidentId: string) =>
+	db
+		.select()
+		.from(outbox)
+		.where(and(eq(outbox.incidentId, incidentId), eq(outbox.kind, 'alert'), eq(outbox.channel, 'email')));
 const open = (run: { id: string; setupId: string }, kind: string, severity: 'critical' | 'warning' | 'info', t: number) =>
 	db.transaction((tx) => openIncident(tx, run, { kind, severity, summary: kind, evidence: {}, t }));
 
 beforeAll(async () => {
 	({ db, close } = await openDatabase('memory://', 'drizzle'));
-	for (const [id, role] of [['ana', 'operator'], ['ben', 'operator'], ['cleo', 'admin']] as const)
+	for (const [id, role] of [
+		['ana', 'operator'],
+		['ben', 'operator'],
+		['cleo', 'admin']
+	] as const)
 		await db.insert(user).values({ id, name: id, email: `${id}@lab.test`, emailVerified: true, role, createdAt: T0, updatedAt: T0 });
 	const setup = await createSetup(db, { name: 'unit fridge', description: '', order: 3, states: 6, mode_GHz: 5, nominal_mK: 12 }, null);
 	setupId = setup.id;
@@ -35,7 +43,12 @@ beforeAll(async () => {
 	// (lab time zone UTC here) so no handover falls inside the test's ten minutes.
 	const handover = new Date(T0.getTime() + 3.5 * 86_400_000);
 	const handoverWeekday = ((handover.getUTCDay() + 6) % 7) + 1;
-	await saveRota(db, setupId, { members: ['ana', 'ben'], handoverWeekday, handoverTime: '00:00', startsOn: '2026-01-01', criticalAckMin: 10, warningAckMin: 30 }, 'cleo');
+	await saveRota(
+		db,
+		setupId,
+		{ members: ['ana', 'ben'], handoverWeekday, handoverTime: '00:00', startsOn: '2026-01-01', criticalAckMin: 10, warningAckMin: 30 },
+		'cleo'
+	);
 }, 60_000);
 afterAll(async () => {
 	await close();
@@ -77,7 +90,9 @@ describe('grouping', () => {
 
 		await acknowledgeIncident(db, lock.id, 'ana');
 		expect(await db.select().from(escalations).where(eq(escalations.incidentId, lock.id))).toHaveLength(0);
-		expect(await escalateDue(db, new Date(timer.dueAt.getTime() + 3_600_000))).not.toContainEqual(expect.objectContaining({ incidentId: lock.id }));
+		expect(await escalateDue(db, new Date(timer.dueAt.getTime() + 3_600_000))).not.toContainEqual(
+			expect.objectContaining({ incidentId: lock.id })
+		);
 		const [row] = await db.select().from(incidents).where(eq(incidents.id, lock.id));
 		expect(row.state).toBe('acknowledged');
 	});

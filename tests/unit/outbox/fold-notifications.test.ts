@@ -39,7 +39,14 @@ describe('0006_fold_notifications', () => {
 				('i1', 'email', 'gone@lab.test', 'opened', 'failed', 'ECONNREFUSED', NULL);
 		`);
 		await migrate(db, { migrationsFolder: 'drizzle' });
-		const { rows } = await client.query<{ recipient: string; status: string; provider_ref: string | null; last_error: string | null; sent_at: Date | null; outcome: string }>(
+		const { rows } = await client.query<{
+			recipient: string;
+			status: string;
+			provider_ref: string | null;
+			last_error: string | null;
+			sent_at: Date | null;
+			outcome: string;
+		}>(
 			`SELECT o.recipient, o.status, o.provider_ref, o.last_error, o.sent_at, a.outcome FROM outbox o JOIN outbox_attempts a ON a.outbox_id = o.id ORDER BY o.id`
 		);
 		expect(rows).toHaveLength(2);

@@ -16,7 +16,8 @@ const lastCode = () => /(\d{6})/.exec(texts.at(-1)!.body)![1];
 
 beforeAll(async () => {
 	({ db, close } = await openDatabase('memory://', 'drizzle'));
-	for (const id of ['u1', 'u2', 'u3']) await db.insert(user).values({ id, name: id, email: `${id}@lab.test`, emailVerified: true, createdAt: T0, updatedAt: T0 });
+	for (const id of ['u1', 'u2', 'u3'])
+		await db.insert(user).values({ id, name: id, email: `${id}@lab.test`, emailVerified: true, createdAt: T0, updatedAt: T0 });
 }, 60_000);
 afterAll(async () => {
 	await close();

@@ -41,10 +41,15 @@ describe('pushMessage', () => {
 		expect(m.body).not.toMatch(/\n/);
 		expect(m.body.length).toBeLessThanOrEqual(140);
 		expect(m.url).toBe('https://pw.lab.example/incidents/inc-1');
-		expect(m.actions).toEqual([{ action: 'acknowledge', title: 'Acknowledge', url: expect.stringMatching(/^https:\/\/pw\.lab\.example\/ack\/[\w-]+\.[\w-]+$/) }]);
+		expect(m.actions).toEqual([
+			{ action: 'acknowledge', title: 'Acknowledge', url: expect.stringMatching(/^https:\/\/pw\.lab\.example\/ack\/[\w-]+\.[\w-]+$/) }
+		]);
 		// The action is a one-tap link for the device's owner and this delivery, 24 h from its creation.
 		const verdict = verifyAckToken('unit-test-secret', m.actions[0].url.split('/ack/')[1], at.getTime());
-		expect(verdict).toEqual({ ok: true, claims: { deliveryId: row('alert').id, incidentId: 'inc-1', userId: 'user-7', expiresAt_s: at.getTime() / 1000 + 24 * 3600 } });
+		expect(verdict).toEqual({
+			ok: true,
+			claims: { deliveryId: row('alert').id, incidentId: 'inc-1', userId: 'user-7', expiresAt_s: at.getTime() / 1000 + 24 * 3600 }
+		});
 		// Under the roughly 4 kB push services accept once encrypted.
 		expect(JSON.stringify(m).length).toBeLessThan(1000);
 	});
@@ -60,11 +65,26 @@ describe('pushMessage', () => {
 
 	it('leads a group’s alert with its most severe incident, names the others, and acknowledges the paged one', () => {
 		// The burst opened first and heads the group (the delivery belongs to it); the lost lock came later.
-		const head = { ...ctx, incident: { id: 'inc-1', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s' } } as unknown as IncidentContext;
+		const head = {
+			...ctx,
+			incident: { id: 'inc-1', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s' }
+		} as unknown as IncidentContext;
 		const group = [
 			{ id: 'inc-1', kind: 'switching_burst', severity: 'warning', summary: '25 switches in 1 s', openedAt: at, head: true },
-			{ id: 'inc-2', kind: 'lock_lost', severity: 'critical', summary: 'Lock quality fell below 0.5', openedAt: new Date(at.getTime() + 4000) },
-			{ id: 'inc-3', kind: 'occupancy_imbalance', severity: 'warning', summary: 'state 2 holds 61 %', openedAt: new Date(at.getTime() + 2000) }
+			{
+				id: 'inc-2',
+				kind: 'lock_lost',
+				severity: 'critical',
+				summary: 'Lock quality fell below 0.5',
+				openedAt: new Date(at.getTime() + 4000)
+			},
+			{
+				id: 'inc-3',
+				kind: 'occupancy_imbalance',
+				severity: 'warning',
+				summary: 'state 2 holds 61 %',
+				openedAt: new Date(at.getTime() + 2000)
+			}
 		];
 		const m = pushMessage(row('alert', { userId: 'user-7' }), head, 'https://pw.lab.example', group);
 		expect(m.title.startsWith('Critical: Lock lost · Bramble')).toBe(true);

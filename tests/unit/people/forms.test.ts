@@ -6,7 +6,9 @@ import { ROLES } from '../../../src/lib/roles';
 
 describe('mayInvite', () => {
 	it('lets admins invite every role, operators up to operator, observers nobody', () => {
-		const allowed = ROLES.flatMap((inviter) => ROLES.filter((invitee) => mayInvite(inviter, invitee)).map((invitee) => `${inviter}→${invitee}`));
+		const allowed = ROLES.flatMap((inviter) =>
+			ROLES.filter((invitee) => mayInvite(inviter, invitee)).map((invitee) => `${inviter}→${invitee}`)
+		);
 		expect(allowed.sort()).toEqual(['admin→admin', 'admin→observer', 'admin→operator', 'operator→observer', 'operator→operator']);
 	});
 });

@@ -3,12 +3,7 @@
 import { describe, expect, it } from 'vitest';
 import { linearRegression } from 'simple-statistics';
 import { uniformStream, poissonKnuth } from '../../support/random';
-import {
-	fitActivation,
-	fitFromSimulation,
-	MIN_COUNT_FOR_WLS,
-	type CalibrationPoint
-} from '$lib/physics/activation';
+import { fitActivation, fitFromSimulation, MIN_COUNT_FOR_WLS, type CalibrationPoint } from '$lib/physics/activation';
 
 const h = 6.62607015e-34; // SI Brochure 9th ed. (exact)
 const kB = 1.380649e-23; // SI Brochure 9th ed. (exact)
@@ -208,12 +203,8 @@ describe('fitActivation', () => {
 			)
 		).toThrow(/non-zero at a single value/);
 		expect(() => fitActivation([{ T_mK: 20, count: 3, exposure_s: 1 }], options)).toThrow(/two/);
-		expect(() => fitActivation([{ T_mK: 20, count: 3.5, exposure_s: 1 }, ...one], options)).toThrow(
-			/points\[0\]\.count/
-		);
-		expect(() => fitActivation([{ T_mK: 20, count: 3, exposure_s: 0 }, ...one], options)).toThrow(
-			/points\[0\]\.exposure_s/
-		);
+		expect(() => fitActivation([{ T_mK: 20, count: 3.5, exposure_s: 1 }, ...one], options)).toThrow(/points\[0\]\.count/);
+		expect(() => fitActivation([{ T_mK: 20, count: 3, exposure_s: 0 }, ...one], options)).toThrow(/points\[0\]\.exposure_s/);
 		expect(() => fitActivation([{ count: 3, exposure_s: 1 }, ...one], options)).toThrow(/no T_mK/);
 		const op = { detuning: 0, damping: 1, drive: 1 };
 		expect(() =>

@@ -46,9 +46,7 @@ describe('predictRate', () => {
 			const expected = 2.5e6 * Math.exp(-12 * inverseNoiseFactor(5, T_mK));
 			expect(predictRate(model, { T_mK }).rate_per_s / expected).toBeCloseTo(1, 12);
 		}
-		expect(predictRate(model, { T_mK: 100 }).rate_per_s).toBeGreaterThan(
-			predictRate(model, { T_mK: 50 }).rate_per_s
-		);
+		expect(predictRate(model, { T_mK: 100 }).rate_per_s).toBeGreaterThan(predictRate(model, { T_mK: 50 }).rate_per_s);
 	});
 
 	it('propagates the (ln W0, A) covariance into the band', () => {
@@ -109,10 +107,7 @@ describe('predictRate', () => {
 		const far = predictRate(escape, { T_mK: 40, operatingPoint: { detuning: 0, damping: 2, drive: 1 } });
 		expect(far.warnings.join(' ')).toMatch(/scale 16 .*outside the fitted range 0.5–3/);
 		// No calibrated scale range at all: the scaling is theory, and the caller is told.
-		const uncalibrated = predictRate(
-			{ ...escape, fittedRange: { T_mK: [10, 120] } },
-			{ T_mK: 40, operatingPoint: op }
-		);
+		const uncalibrated = predictRate({ ...escape, fittedRange: { T_mK: [10, 120] } }, { T_mK: 40, operatingPoint: op });
 		expect(uncalibrated.warnings.join(' ')).toMatch(/not calibrated/);
 	});
 
@@ -132,9 +127,7 @@ describe('predictRate', () => {
 		expect(() => predictRate({ ...model, A: Number.NaN }, { T_mK: 20 })).toThrow(/model\.A/);
 		expect(() => predictRate({ ...model, covariance: 1 }, { T_mK: 20 })).toThrow(/covariance/);
 		const escape: RateModel = { ...model, process: 'escape' };
-		expect(() =>
-			predictRate(escape, { T_mK: 20, operatingPoint: { detuning: 0, damping: 1, drive: 1 } })
-		).toThrow(/reference/);
+		expect(() => predictRate(escape, { T_mK: 20, operatingPoint: { detuning: 0, damping: 1, drive: 1 } })).toThrow(/reference/);
 		expect(() =>
 			predictRate(
 				{ ...escape, reference: { detuning: 0, damping: 1, drive: 1 } },

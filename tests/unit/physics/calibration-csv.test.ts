@@ -84,7 +84,13 @@ describe('parseCalibrationCsv', () => {
 
 	it('reads quoted fields as RFC 4180 §2.5–2.7 has them, and counts line breaks inside quotes in line numbers', () => {
 		const good = parseCalibrationCsv('"T_mK","count","exposure_s"\n"10",20,100\n15,"21",100\n');
-		expect(good).toEqual({ ok: true, points: [{ T_mK: 10, count: 20, exposure_s: 100 }, { T_mK: 15, count: 21, exposure_s: 100 }] });
+		expect(good).toEqual({
+			ok: true,
+			points: [
+				{ T_mK: 10, count: 20, exposure_s: 100 },
+				{ T_mK: 15, count: 21, exposure_s: 100 }
+			]
+		});
 		const text = ['T_mK,count,exposure_s', '"1,5",2,3', '"a', 'b",2,3', '9,x,3'].join('\n');
 		const result = parseCalibrationCsv(text);
 		expect(result.ok).toBe(false);
@@ -108,9 +114,7 @@ describe('parseCalibrationCsv', () => {
 		expect(errors('count,exposure_s\n1,2')[0].message).toMatch(/temperature column/);
 		expect(errors('T_mK,count,exposure_s,drive\n1,2,3,4')[0].message).toMatch(/missing detuning, damping/);
 		expect(errors('')[0].message).toMatch(/header row/);
-		expect(errors('T_mK,count,exposure_s\n\n')).toEqual([
-			{ line: 1, message: 'the table has a header but no data rows' }
-		]);
+		expect(errors('T_mK,count,exposure_s\n\n')).toEqual([{ line: 1, message: 'the table has a header but no data rows' }]);
 		expect(errors('T_mK,,exposure_s,count\n')[0].message).toMatch(/column 2 has an empty name/);
 		// Data rows are not checked against a header that failed.
 		expect(errors('T_mK,count\n-1,-1').every((e) => e.line === 1)).toBe(true);

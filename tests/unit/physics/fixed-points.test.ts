@@ -211,9 +211,7 @@ describe('junction-type states at δ = 0', () => {
 		for (const gamma of [1e-2, 1e-3, 1e-4]) {
 			const states = ofKind(fixedPoints(junction(M, 0, gamma, eps, eta)), 'stable');
 			expect(states).toHaveLength(2 * M);
-			const err = Math.max(
-				...states.map((s) => Math.max(Math.abs(s.r - r0) / r0, offLattice(s.phase_rad, 0, Math.PI / M)))
-			);
+			const err = Math.max(...states.map((s) => Math.max(Math.abs(s.r - r0) / r0, offLattice(s.phase_rad, 0, Math.PI / M))));
 			expect(err).toBeLessThan(prevErr); // converging as γ → 0
 			prevErr = err;
 		}

@@ -117,7 +117,15 @@ describe('simulated well-to-well rate', () => {
 describe('1-D mode: plumbing', () => {
 	it('is reproducible from its seed and reports progress', () => {
 		const fractions: number[] = [];
-		const a = simulateOverdamped1D({ potentialDerivative: Uprime, D: 0.1, dt: 0.01, steps: 50_000, seed: 3, x0: -1, onProgress: (f) => fractions.push(f) });
+		const a = simulateOverdamped1D({
+			potentialDerivative: Uprime,
+			D: 0.1,
+			dt: 0.01,
+			steps: 50_000,
+			seed: 3,
+			x0: -1,
+			onProgress: (f) => fractions.push(f)
+		});
 		const b = simulateOverdamped1D({ potentialDerivative: Uprime, D: 0.1, dt: 0.01, steps: 50_000, seed: 3, x0: -1 });
 		expect(Array.from(a.x)).toEqual(Array.from(b.x));
 		expect(fractions.length).toBeGreaterThan(3);

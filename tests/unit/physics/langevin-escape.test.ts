@@ -2,13 +2,7 @@
 // the reachable states at δ = 0, reproducibility, progress, cancellation and bad input.
 import { beforeAll, describe, expect, it } from 'vitest';
 import jStat from 'jstat';
-import {
-	estimateEscapeRate,
-	escapeRateRun,
-	runCooperatively,
-	SimulationCancelled,
-	type EscapeResult
-} from '$lib/physics/langevin';
+import { estimateEscapeRate, escapeRateRun, runCooperatively, SimulationCancelled, type EscapeResult } from '$lib/physics/langevin';
 import type { ModelParams } from '$lib/physics/model';
 
 const cubic = (damping: number, detuning: number, drive: number): ModelParams => ({

@@ -58,10 +58,9 @@ describe('createJobHandler', () => {
 describe('in a worker_threads worker', () => {
 	// The worker loads the TypeScript entry through tsx's loader (installed as a dev dependency).
 	const entry = new URL('../../../src/lib/physics/langevin-node-worker.ts', import.meta.url).href;
-	const worker = new Worker(
-		`import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(entry)}); })`,
-		{ eval: true }
-	);
+	const worker = new Worker(`import('tsx/esm/api').then(({ register }) => { register(); return import(${JSON.stringify(entry)}); })`, {
+		eval: true
+	});
 	afterAll(() => worker.terminate());
 
 	it('runs a λ sweep with progress and returns what the same call returns in-process', async () => {
@@ -78,7 +77,11 @@ describe('in a worker_threads worker', () => {
 
 	it('cancels through an AbortSignal and stays usable', async () => {
 		const ac = new AbortController();
-		const pending = runInWorker(worker, { kind: 'escape', params, options: { ...escapeOptions, trajectories: 1_000_000 } }, { signal: ac.signal });
+		const pending = runInWorker(
+			worker,
+			{ kind: 'escape', params, options: { ...escapeOptions, trajectories: 1_000_000 } },
+			{ signal: ac.signal }
+		);
 		setTimeout(() => ac.abort(), 100);
 		await expect(pending).rejects.toBeInstanceOf(WorkerJobCancelled);
 		const r = await runInWorker(worker, { kind: 'escape', params, options: escapeOptions });

@@ -2,14 +2,7 @@
 // the Jacobian against finite differences of the field, the M = 2 linearisation and bad input.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import {
-	driveWeight,
-	hamiltonian,
-	jacobian,
-	phaseStateCount,
-	vectorField,
-	type ModelParams
-} from '$lib/physics/model';
+import { driveWeight, hamiltonian, jacobian, phaseStateCount, vectorField, type ModelParams } from '$lib/physics/model';
 
 const kerr = (order: 2 | 3 | 4, detuning: number, damping: number, drive: number, K: number): ModelParams => ({
 	order,
@@ -123,8 +116,7 @@ describe('hamiltonian', () => {
 			const eta = nl.kind === 'junction' ? nl.eta : 0;
 			const K = nl.kind === 'kerr' ? nl.K : (nl.K ?? 0);
 			const g = p.order === 2 ? 0.5 : 1;
-			const expected =
-				p.detuning * r * r + g * (p.drive + eta * r * r) * 2 * r ** p.order * Math.cos(p.order * th) + K * r ** 4;
+			const expected = p.detuning * r * r + g * (p.drive + eta * r * r) * 2 * r ** p.order * Math.cos(p.order * th) + K * r ** 4;
 			expect(hamiltonian(p, x, y)).toBeCloseTo(expected, 12);
 		}
 		expect(driveWeight(2)).toBe(0.5);

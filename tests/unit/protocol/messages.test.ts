@@ -73,7 +73,9 @@ describe('server messages', () => {
 	test('welcome, ack and error as DESIGN.md writes them', () => {
 		expect(serverMessageSchema.safeParse({ type: 'welcome', run: 'r_1', lastSeq: 0 }).success).toBe(true);
 		expect(serverMessageSchema.safeParse({ type: 'ack', seq: 42 }).success).toBe(true);
-		expect(serverMessageSchema.safeParse({ type: 'error', code: 'invalid_frame', seq: 7, message: 'frames[0].lock: …' }).success).toBe(true);
+		expect(serverMessageSchema.safeParse({ type: 'error', code: 'invalid_frame', seq: 7, message: 'frames[0].lock: …' }).success).toBe(
+			true
+		);
 		expect(path(serverMessageSchema.safeParse({ type: 'welcome', run: 'r_1', lastSeq: -1 }))).toBe('lastSeq');
 	});
 

@@ -96,7 +96,11 @@ describe('every string of the agent messages', () => {
 	});
 
 	test('operatingPoint keys are checked too', () => {
-		expect(problem(withRun({ operatingPoint: { [fromJson('bias\\u0000')]: 1 } }))).toMatch(/^run\.operatingPoint\..*: must not contain NUL \(U\+0000\)$/);
-		expect(problem(withRun({ operatingPoint: { [fromJson('\\ud800')]: 1 } }))).toMatch(/^run\.operatingPoint\..*: must not contain an unpaired surrogate$/);
+		expect(problem(withRun({ operatingPoint: { [fromJson('bias\\u0000')]: 1 } }))).toMatch(
+			/^run\.operatingPoint\..*: must not contain NUL \(U\+0000\)$/
+		);
+		expect(problem(withRun({ operatingPoint: { [fromJson('\\ud800')]: 1 } }))).toMatch(
+			/^run\.operatingPoint\..*: must not contain an unpaired surrogate$/
+		);
 	});
 });

@@ -75,7 +75,10 @@ function report(): MorningReport {
 				setupName: 'Fridge A',
 				status: 'open',
 				summary,
-				spark: { resolution_s: 1800, points: [{ t_ms: T - 3_600_000, switchRate_per_s: 0.011, expectedRate_per_s: 0.0028, lockMean: 0.94 }] },
+				spark: {
+					resolution_s: 1800,
+					points: [{ t_ms: T - 3_600_000, switchRate_per_s: 0.011, expectedRate_per_s: 0.0028, lockMean: 0.94 }]
+				},
 				timelinePath: `/runs/r1/timeline?from_ms=${T - 86_400_000}&to_ms=${T}`
 			}
 		],

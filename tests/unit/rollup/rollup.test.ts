@@ -117,7 +117,9 @@ describe('bad input', () => {
 	const one = (seq: number, t: number, counts = [1, 2]) => rollupFrames([frame({ seq, t, counts })], () => null, [60])[0];
 
 	it('refuses to merge different buckets or resolutions', () => {
-		expect(() => mergeRollups(one(1, T0_MS), one(2, T0_MS + 60_000))).toThrow(/cannot merge bucket 60:1704067200000 with bucket 60:1704067260000/);
+		expect(() => mergeRollups(one(1, T0_MS), one(2, T0_MS + 60_000))).toThrow(
+			/cannot merge bucket 60:1704067200000 with bucket 60:1704067260000/
+		);
 		const other = { ...one(1, T0_MS), resolution_s: 10 };
 		expect(() => mergeRollups(one(1, T0_MS), other)).toThrow(RangeError);
 	});

@@ -97,10 +97,20 @@ describe('writeRollups', () => {
 		await writeRollups(db, runId, deltas, cache);
 		expect(cache.get(10, T0_MS)?.frames).toBe(2);
 		// A bucket further on becomes the cached one; the older one is read back from the table.
-		await writeRollups(db, runId, rollupFrames([f(3, T0_MS + 12_000)], () => null, [10]), cache);
+		await writeRollups(
+			db,
+			runId,
+			rollupFrames([f(3, T0_MS + 12_000)], () => null, [10]),
+			cache
+		);
 		expect(cache.get(10, T0_MS)).toBeUndefined();
 		expect(cache.get(10, T0_MS + 10_000)?.frames).toBe(1);
-		await writeRollups(db, runId, rollupFrames([f(4, T0_MS + 3000)], () => null, [10]), cache);
+		await writeRollups(
+			db,
+			runId,
+			rollupFrames([f(4, T0_MS + 3000)], () => null, [10]),
+			cache
+		);
 		const stored = await readRollups(db, runId, 10);
 		expect(stored.map((r) => [r.bucket_t, r.frames, r.firstSeq, r.lastSeq])).toEqual([
 			[T0_MS, 3, 1, 4],
@@ -130,11 +140,19 @@ describe('writeRollups', () => {
 			vacuum_s: 0.1
 		});
 		const batch = [f(1, T0_MS + 1000), f(2, T0_MS + 15_000), f(3, T0_MS + 70_000), f(4, T0_MS + 700_000)];
-		await writeRollups(db, runId, rollupFrames(batch.slice(0, 2), () => null));
+		await writeRollups(
+			db,
+			runId,
+			rollupFrames(batch.slice(0, 2), () => null)
+		);
 		// drizzle's PGlite driver sends every statement through the client's query().
 		const spy = vi.spyOn((db as Db & { $client: PGlite }).$client, 'query');
 		try {
-			await writeRollups(db, runId, rollupFrames(batch, () => null));
+			await writeRollups(
+				db,
+				runId,
+				rollupFrames(batch, () => null)
+			);
 			const statements = spy.mock.calls.map(([text]: [string, ...unknown[]]) => String(text).trim().split(/\s+/)[0].toLowerCase());
 			expect(statements).toEqual(['select', 'insert']);
 			expect(String(spy.mock.calls[1][0])).toMatch(/on conflict \("run_id", ?"resolution_s", ?"bucket_t"\) do update set/i);
@@ -175,10 +193,16 @@ describe('rebuildRollups', () => {
 				// Stale rows the rebuild must replace, not add to.
 				await writeRollups(db, runId, rollupFrames(stream.frames.slice(0, 3), expectedOf));
 				const progress: number[] = [];
-				const result = await rebuildRollups(db, runId, (f) => expectedOf(f), (p) => {
-					expect(p.framesTotal).toBe(stream.frames.length);
-					progress.push(p.framesDone);
-				}, pageSize);
+				const result = await rebuildRollups(
+					db,
+					runId,
+					(f) => expectedOf(f),
+					(p) => {
+						expect(p.framesTotal).toBe(stream.frames.length);
+						progress.push(p.framesDone);
+					},
+					pageSize
+				);
 				expect(result.frames).toBe(stream.frames.length);
 				expect(progress.at(-1)).toBe(stream.frames.length);
 				const stored = await allStored(runId);
@@ -213,7 +237,19 @@ describe('rebuildRollups', () => {
 	it('reports frames that raw retention deleted, which a rebuild would lose', async () => {
 		const runId = await newRun(2);
 		await db.update(runs).set({ frameCount: 5 }).where(eq(runs.id, runId));
-		const f: Frame = { seq: 1, t: T0_MS, window_s: 1, shots: 1, vacuum: 0, counts: [1, 0], lock: 1, switches: 0, dwell_s: 1, escapes: 0, vacuum_s: 0 };
+		const f: Frame = {
+			seq: 1,
+			t: T0_MS,
+			window_s: 1,
+			shots: 1,
+			vacuum: 0,
+			counts: [1, 0],
+			lock: 1,
+			switches: 0,
+			dwell_s: 1,
+			escapes: 0,
+			vacuum_s: 0
+		};
 		await db.insert(frames).values([frameToRow(runId, f)]);
 		expect(await storedFrameShortfall(db, runId)).toBe(4);
 		await expect(storedFrameShortfall(db, 'no-such-run')).rejects.toThrow(/no run with id no-such-run/);

@@ -28,7 +28,11 @@ const frameArb = (states: number) =>
 	fc.record({
 		seqGap: fc.integer({ min: 1, max: 4 }),
 		// Mostly seconds apart, sometimes minutes or more than an hour: every bucket size gets crossed.
-		dt_ms: fc.oneof(fc.integer({ min: 0, max: 4_000 }), fc.integer({ min: 4_000, max: 700_000 }), fc.integer({ min: 3_000_000, max: 8_000_000 })),
+		dt_ms: fc.oneof(
+			fc.integer({ min: 0, max: 4_000 }),
+			fc.integer({ min: 4_000, max: 700_000 }),
+			fc.integer({ min: 3_000_000, max: 8_000_000 })
+		),
 		window_s: real(0.01, 10),
 		counts: fc.array(fc.integer({ min: 0, max: 400 }), { minLength: states, maxLength: states }),
 		vacuum: fc.integer({ min: 0, max: 100 }),
@@ -38,11 +42,12 @@ const frameArb = (states: number) =>
 		dwell_s: real(0, 10),
 		escapes: fc.integer({ min: 0, max: 5 }),
 		vacuum_s: real(0, 10),
-		transitions: fc.option(fc.array(fc.integer({ min: 0, max: 9 }), { minLength: states * states, maxLength: states * states }), { nil: undefined }),
-		aux: fc.option(
-			fc.dictionary(fc.constantFrom(...AUX_POOL), real(-1e3, 1e3), { maxKeys: AUX_POOL.length, noNullPrototype: true }),
-			{ nil: undefined }
-		),
+		transitions: fc.option(fc.array(fc.integer({ min: 0, max: 9 }), { minLength: states * states, maxLength: states * states }), {
+			nil: undefined
+		}),
+		aux: fc.option(fc.dictionary(fc.constantFrom(...AUX_POOL), real(-1e3, 1e3), { maxKeys: AUX_POOL.length, noNullPrototype: true }), {
+			nil: undefined
+		}),
 		expected: expectedArb
 	});
 

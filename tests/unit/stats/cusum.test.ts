@@ -39,13 +39,7 @@ function monteCarlo(runs: number, runOnce: () => number): { mean: number; se: nu
 }
 
 /** Run length of the one-sided Poisson CUSUM, simulated with the plain recursion. */
-function simulatePoissonCusum(
-	sample: (mu: number) => number,
-	h: number,
-	rho: number,
-	mu: number,
-	trueRatio: number
-): number {
+function simulatePoissonCusum(sample: (mu: number) => number, h: number, rho: number, mu: number, trueRatio: number): number {
 	// Increment k·ln ρ − μ(ρ − 1) (Lucas 1985), clamped at 0; signal at S ≥ h.
 	let s = 0;
 	let n = 0;

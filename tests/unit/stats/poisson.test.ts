@@ -108,16 +108,12 @@ describe('poissonInterval (Garwood)', () => {
 	it('property: the interval contains the count', () => {
 		// Common practice: an exact interval for n ≥ 1 brackets the point estimate n.
 		fc.assert(
-			fc.property(
-				fc.integer({ min: 1, max: 20000 }),
-				fc.double({ min: 0.5, max: 0.999, noNaN: true }),
-				(count, confidence) => {
-					const { lower, upper } = poissonInterval(count, confidence);
-					expect(lower).toBeGreaterThan(0);
-					expect(lower).toBeLessThanOrEqual(count);
-					expect(upper).toBeGreaterThanOrEqual(count);
-				}
-			),
+			fc.property(fc.integer({ min: 1, max: 20000 }), fc.double({ min: 0.5, max: 0.999, noNaN: true }), (count, confidence) => {
+				const { lower, upper } = poissonInterval(count, confidence);
+				expect(lower).toBeGreaterThan(0);
+				expect(lower).toBeLessThanOrEqual(count);
+				expect(upper).toBeGreaterThanOrEqual(count);
+			}),
 			{ seed: 31, numRuns: 150 }
 		);
 	});
@@ -247,8 +243,14 @@ describe('rateRatioTest', () => {
 			const r = rateRatioTest(x1, t1, x2, t2, 0.95);
 			expect(relErr(r.pValue, Math.min(1, 2 * Math.min(below, above)))).toBeLessThan(1e-7);
 
-			const tailAbove = (p: number) => binomialPmfs(n, p).slice(x1).reduce((a, b) => a + b, 0);
-			const tailBelow = (p: number) => binomialPmfs(n, p).slice(0, x1 + 1).reduce((a, b) => a + b, 0);
+			const tailAbove = (p: number) =>
+				binomialPmfs(n, p)
+					.slice(x1)
+					.reduce((a, b) => a + b, 0);
+			const tailBelow = (p: number) =>
+				binomialPmfs(n, p)
+					.slice(0, x1 + 1)
+					.reduce((a, b) => a + b, 0);
 			const pL = x1 === 0 ? 0 : bisect((p) => tailAbove(p) - 0.025, 1e-12, 1 - 1e-12);
 			const pU = x1 === n ? 1 : bisect((p) => tailBelow(p) - 0.025, 1e-12, 1 - 1e-12);
 			const toRatio = (p: number) => (p / (1 - p)) * (t2 / t1);

@@ -45,41 +45,46 @@ const step = fc.record({
 describe('summarize over a cover of rollups', () => {
 	it('adds up to the frames whose time falls in the covered span', () => {
 		fc.assert(
-			fc.property(fc.array(step, { minLength: 1, maxLength: 120 }), fc.double({ min: 0, max: 1, noNaN: true }), fc.double({ min: 0, max: 1, noNaN: true }), (steps, a, b) => {
-				const frames = makeFrames(steps);
-				const last = frames.at(-1)!.t;
-				const from = T0 + Math.min(a, b) * (last - T0);
-				const to = T0 + Math.max(a, b) * (last - T0) + 1;
-				const all = rollupFrames(frames, () => ({ switches: 0.5, escapes: null }), ROLLUP_RESOLUTIONS_S);
-				const cover = coverSpan(from, to, ROLLUP_RESOLUTIONS_S);
-				// What readRollups(db, run, res, piece.from, piece.to − 1) returns for each piece.
-				const buckets = cover.pieces.flatMap((p) =>
-					all.filter((r) => r.resolution_s === p.resolution_s && r.bucket_t >= p.from_ms && r.bucket_t <= p.to_ms - 1)
-				);
-				const s = summarize({
-					runId: 'r',
-					states: K,
-					span: { from_ms: from, to_ms: to },
-					covered: { from_ms: cover.from_ms, to_ms: cover.to_ms },
-					buckets,
-					lockThreshold: 0.5,
-					expectedPairs: 'all',
-					symmetric: true,
-					gaps: [],
-					incidents: []
-				});
-				const inside = frames.filter((f) => f.t >= cover.from_ms && f.t < cover.to_ms);
-				expect(s.exposure.frames).toBe(inside.length);
-				expect(s.switching.count).toBe(inside.reduce((n, f) => n + f.switches, 0));
-				expect(s.escape.count).toBe(inside.reduce((n, f) => n + f.escapes, 0));
-				expect(s.exposure.dwell_s).toBeCloseTo(inside.length * 0.9, 6);
-				expect(s.occupancy.counts).toEqual([0, 1, 2].map((i) => inside.reduce((n, f) => n + f.counts[i], 0)));
-				expect(s.switching.expected ?? 0).toBeCloseTo(inside.length * 0.5, 6);
-				if (inside.length) expect(s.transitions!.counts[0][1]).toBe(s.switching.count);
-				const lockedExact = inside.filter((f) => f.lock >= 0.5).length;
-				expect(s.timeLocked.locked_s_min).toBeLessThanOrEqual(lockedExact + 1e-9);
-				expect(s.timeLocked.locked_s_max).toBeGreaterThanOrEqual(lockedExact - 1e-9);
-			}),
+			fc.property(
+				fc.array(step, { minLength: 1, maxLength: 120 }),
+				fc.double({ min: 0, max: 1, noNaN: true }),
+				fc.double({ min: 0, max: 1, noNaN: true }),
+				(steps, a, b) => {
+					const frames = makeFrames(steps);
+					const last = frames.at(-1)!.t;
+					const from = T0 + Math.min(a, b) * (last - T0);
+					const to = T0 + Math.max(a, b) * (last - T0) + 1;
+					const all = rollupFrames(frames, () => ({ switches: 0.5, escapes: null }), ROLLUP_RESOLUTIONS_S);
+					const cover = coverSpan(from, to, ROLLUP_RESOLUTIONS_S);
+					// What readRollups(db, run, res, piece.from, piece.to − 1) returns for each piece.
+					const buckets = cover.pieces.flatMap((p) =>
+						all.filter((r) => r.resolution_s === p.resolution_s && r.bucket_t >= p.from_ms && r.bucket_t <= p.to_ms - 1)
+					);
+					const s = summarize({
+						runId: 'r',
+						states: K,
+						span: { from_ms: from, to_ms: to },
+						covered: { from_ms: cover.from_ms, to_ms: cover.to_ms },
+						buckets,
+						lockThreshold: 0.5,
+						expectedPairs: 'all',
+						symmetric: true,
+						gaps: [],
+						incidents: []
+					});
+					const inside = frames.filter((f) => f.t >= cover.from_ms && f.t < cover.to_ms);
+					expect(s.exposure.frames).toBe(inside.length);
+					expect(s.switching.count).toBe(inside.reduce((n, f) => n + f.switches, 0));
+					expect(s.escape.count).toBe(inside.reduce((n, f) => n + f.escapes, 0));
+					expect(s.exposure.dwell_s).toBeCloseTo(inside.length * 0.9, 6);
+					expect(s.occupancy.counts).toEqual([0, 1, 2].map((i) => inside.reduce((n, f) => n + f.counts[i], 0)));
+					expect(s.switching.expected ?? 0).toBeCloseTo(inside.length * 0.5, 6);
+					if (inside.length) expect(s.transitions!.counts[0][1]).toBe(s.switching.count);
+					const lockedExact = inside.filter((f) => f.lock >= 0.5).length;
+					expect(s.timeLocked.locked_s_min).toBeLessThanOrEqual(lockedExact + 1e-9);
+					expect(s.timeLocked.locked_s_max).toBeGreaterThanOrEqual(lockedExact - 1e-9);
+				}
+			),
 			{ numRuns: 150 }
 		);
 	});
@@ -129,29 +134,66 @@ describe('occupancySummary', () => {
 		// Two states, 400 switches each way: about 800 independent episodes, so 50.5 % against 49.5 % is
 		// well within chance while 70 % against 30 % is not.
 		const transitions = [0, 400, 400, 0];
-		const even = occupancySummary({ counts: [50_500, 49_500], escapes: 0, transitions, bucketCounts: [], expectedPairs: 'all', symmetric: true });
+		const even = occupancySummary({
+			counts: [50_500, 49_500],
+			escapes: 0,
+			transitions,
+			bucketCounts: [],
+			expectedPairs: 'all',
+			symmetric: true
+		});
 		expect(even.test!.method).toBe('observed transitions');
 		expect(even.test!.pValue).toBeGreaterThan(0.5);
-		const skewed = occupancySummary({ counts: [70_000, 30_000], escapes: 0, transitions, bucketCounts: [], expectedPairs: 'all', symmetric: true });
+		const skewed = occupancySummary({
+			counts: [70_000, 30_000],
+			escapes: 0,
+			transitions,
+			bucketCounts: [],
+			expectedPairs: 'all',
+			symmetric: true
+		});
 		expect(skewed.test!.pValue).toBeLessThan(1e-6);
 		expect(skewed.fractions).toEqual([0.7, 0.3]);
 	});
 
 	it('falls back to batch means without transitions and says why when it cannot test', () => {
 		const rows = Array.from({ length: 40 }, (_, i) => (i % 2 ? [52, 48] : [47, 53]));
-		const bm = occupancySummary({ counts: [1980, 2020], escapes: 0, transitions: null, bucketCounts: rows, expectedPairs: 'all', symmetric: true });
+		const bm = occupancySummary({
+			counts: [1980, 2020],
+			escapes: 0,
+			transitions: null,
+			bucketCounts: rows,
+			expectedPairs: 'all',
+			symmetric: true
+		});
 		expect(bm.test!.method).toBe('batch means');
 		expect(bm.test!.dof).toBe(9);
-		const few = occupancySummary({ counts: [10, 10], escapes: 0, transitions: null, bucketCounts: [[10, 10]], expectedPairs: 'all', symmetric: true });
+		const few = occupancySummary({
+			counts: [10, 10],
+			escapes: 0,
+			transitions: null,
+			bucketCounts: [[10, 10]],
+			expectedPairs: 'all',
+			symmetric: true
+		});
 		expect(few.test).toBeNull();
 		expect(few.untested).toMatch(/too few/);
-		expect(occupancySummary({ counts: [1, 2], escapes: 0, transitions: null, bucketCounts: [], expectedPairs: 'all', symmetric: false }).untested).toMatch(/symmetric/);
+		expect(
+			occupancySummary({ counts: [1, 2], escapes: 0, transitions: null, bucketCounts: [], expectedPairs: 'all', symmetric: false }).untested
+		).toMatch(/symmetric/);
 	});
 });
 
 describe('transitionMatrix', () => {
 	it('reads the flat K·K list as rows from, columns to', () => {
-		expect(transitionMatrix([0, 1, 2, 3], 2)).toEqual({ states: 2, counts: [[0, 1], [2, 3]], total: 6 });
+		expect(transitionMatrix([0, 1, 2, 3], 2)).toEqual({
+			states: 2,
+			counts: [
+				[0, 1],
+				[2, 3]
+			],
+			total: 6
+		});
 		expect(() => transitionMatrix([1, 2, 3], 2)).toThrow(/4 entries/);
 	});
 });

@@ -20,8 +20,18 @@ function checkAgainstFrames(bucket: TimelineBucket, inside: Frame[], expectedOf:
 	expect(bucket.switches).toBe(sum((f) => f.switches));
 	expect(bucket.escapes).toBe(sum((f) => f.escapes));
 	expect(bucket.counts).toEqual(bucket.counts.map((_, i) => sum((f) => f.counts[i])));
-	expect(close(bucket.dwell_s, sum((f) => f.dwell_s))).toBe(true);
-	expect(close(bucket.vacuum_s, sum((f) => f.vacuum_s))).toBe(true);
+	expect(
+		close(
+			bucket.dwell_s,
+			sum((f) => f.dwell_s)
+		)
+	).toBe(true);
+	expect(
+		close(
+			bucket.vacuum_s,
+			sum((f) => f.vacuum_s)
+		)
+	).toBe(true);
 	if (inside.length === 0) {
 		expect(bucket.lock).toBeNull();
 		expect(bucket.aux).toEqual({});
@@ -42,7 +52,13 @@ function checkAgainstFrames(bucket: TimelineBucket, inside: Frame[], expectedOf:
 	}
 	const predicted = inside.map((f) => expectedOf(f)?.switches ?? null).filter((v): v is number => v !== null);
 	if (predicted.length === 0) expect(bucket.expected_switches).toBeNull();
-	else expect(close(bucket.expected_switches!, predicted.reduce((a, b) => a + b, 0))).toBe(true);
+	else
+		expect(
+			close(
+				bucket.expected_switches!,
+				predicted.reduce((a, b) => a + b, 0)
+			)
+		).toBe(true);
 }
 
 describe('timeline buckets', () => {
@@ -61,7 +77,11 @@ describe('timeline buckets', () => {
 					if (plan.source === 'rollups') {
 						// What the database holds: every resolution's rollups of the whole stream.
 						const stored = rollupFrames(stream.frames, expectedOf, ROLLUP_RESOLUTIONS_S);
-						buckets = bucketsFromRollups(stored.filter((r) => r.resolution_s === plan.rollup_s), plan, stream.states);
+						buckets = bucketsFromRollups(
+							stored.filter((r) => r.resolution_s === plan.rollup_s),
+							plan,
+							stream.states
+						);
 					} else {
 						const read = stream.frames.filter((f) => f.t >= plan.from_ms && f.t < plan.to_ms);
 						buckets = bucketsFromRollups(rollupFrames(read, expectedOf, [plan.width_s]), plan, stream.states);

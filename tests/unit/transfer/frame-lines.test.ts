@@ -3,7 +3,19 @@ import { describe, expect, it } from 'vitest';
 import { MAX_PG_INTEGER } from '../../../src/lib/protocol/frame';
 import { checkFrameFile, checkFrameLine, frameBatches, MAX_LISTED_LINES } from '../../../src/lib/transfer/frame-lines';
 
-const good = (seq: number) => ({ seq, t: 1_796_000_000_000 + seq * 1000, window_s: 1, shots: 100, vacuum: 4, counts: [48, 48], lock: 0.9, switches: 1, dwell_s: 0.9, escapes: 0, vacuum_s: 0.1 });
+const good = (seq: number) => ({
+	seq,
+	t: 1_796_000_000_000 + seq * 1000,
+	window_s: 1,
+	shots: 100,
+	vacuum: 4,
+	counts: [48, 48],
+	lock: 0.9,
+	switches: 1,
+	dwell_s: 0.9,
+	escapes: 0,
+	vacuum_s: 0.1
+});
 const rules = { states: 2, maxSeq: null };
 const streamOf = (text: string) => new Blob([text]).stream();
 
@@ -26,7 +38,9 @@ describe('checkFrameLine', () => {
 	});
 
 	it('refuses seqs out of order and above the bound, saying why', () => {
-		expect(checkFrameLine(JSON.stringify(good(3)), 5, rules, { seq: 3, line: 4 })).toMatchObject({ problem: expect.stringMatching(/seq 3 does not come after seq 3 \(line 4\)/) });
+		expect(checkFrameLine(JSON.stringify(good(3)), 5, rules, { seq: 3, line: 4 })).toMatchObject({
+			problem: expect.stringMatching(/seq 3 does not come after seq 3 \(line 4\)/)
+		});
 		expect(checkFrameLine(JSON.stringify(good(9)), 1, { states: 2, maxSeq: 8, maxSeqReason: 'the run is open' }, null)).toMatchObject({
 			problem: 'seq 9 is above 8: the run is open'
 		});

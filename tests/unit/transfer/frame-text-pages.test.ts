@@ -105,11 +105,25 @@ describe('frame text written by the database', () => {
 	});
 
 	it('stops at the range and honours the agent-time span', async () => {
-		const text = (await (async () => {
-			const pages: string[] = [];
-			for await (const p of frameTextPages(db, runId, ndjsonLineSql(), { afterSeq: 10, toSeq: 40, fromT: T0 + 20 * 997, toT: T0 + 30 * 997 }, 4)) pages.push(p);
-			return pages;
-		})()).join('');
-		expect(text.trimEnd().split('\n').map((l) => JSON.parse(l).seq)).toEqual(Array.from({ length: 10 }, (_, i) => 20 + i));
+		const text = (
+			await (async () => {
+				const pages: string[] = [];
+				for await (const p of frameTextPages(
+					db,
+					runId,
+					ndjsonLineSql(),
+					{ afterSeq: 10, toSeq: 40, fromT: T0 + 20 * 997, toT: T0 + 30 * 997 },
+					4
+				))
+					pages.push(p);
+				return pages;
+			})()
+		).join('');
+		expect(
+			text
+				.trimEnd()
+				.split('\n')
+				.map((l) => JSON.parse(l).seq)
+		).toEqual(Array.from({ length: 10 }, (_, i) => 20 + i));
 	});
 });

@@ -37,7 +37,12 @@ export function oneTapLink(appOrigin: string, delivery: { id: string; createdAt:
 }
 
 export type AckLinkView =
-	| { ok: true; claims: AckClaims; incident: { id: string; kind: string; severity: string; summary: string; state: string; setupName: string; runName: string }; person: string }
+	| {
+			ok: true;
+			claims: AckClaims;
+			incident: { id: string; kind: string; severity: string; summary: string; state: string; setupName: string; runName: string };
+			person: string;
+	  }
 	| { ok: false; message: string };
 
 /** What the confirmation page shows; refuses (with the reason) every link that could not be used. */
@@ -46,7 +51,15 @@ export async function inspectAckLink(db: Db, token: string, now = new Date()): P
 	if (!v.ok) return v;
 	const { claims } = v;
 	const [row] = await db
-		.select({ id: incidents.id, kind: incidents.kind, severity: incidents.severity, summary: incidents.summary, state: incidents.state, setupName: setups.name, runName: runs.name })
+		.select({
+			id: incidents.id,
+			kind: incidents.kind,
+			severity: incidents.severity,
+			summary: incidents.summary,
+			state: incidents.state,
+			setupName: setups.name,
+			runName: runs.name
+		})
 		.from(incidents)
 		.innerJoin(runs, eq(runs.id, incidents.runId))
 		.innerJoin(setups, eq(setups.id, incidents.setupId))

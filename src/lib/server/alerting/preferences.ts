@@ -17,7 +17,19 @@ export async function prefsOf(tx: Tx | Db, userIds: string[]): Promise<Map<strin
 	const out = new Map<string, PersonPrefs>();
 	for (const id of userIds) {
 		const r = rows.find((x) => x.userId === id);
-		out.set(id, r ? { channels: r.channels, severities: r.severities, quietStart: r.quietStart, quietEnd: r.quietEnd, notifyOnClear: r.notifyOnClear, timeZone: r.timeZone || lab } : { ...DEFAULT_ALERT_PREFS, timeZone: lab });
+		out.set(
+			id,
+			r
+				? {
+						channels: r.channels,
+						severities: r.severities,
+						quietStart: r.quietStart,
+						quietEnd: r.quietEnd,
+						notifyOnClear: r.notifyOnClear,
+						timeZone: r.timeZone || lab
+					}
+				: { ...DEFAULT_ALERT_PREFS, timeZone: lab }
+		);
 	}
 	return out;
 }
@@ -36,7 +48,10 @@ export const alertPrefsSchema = z
 			.refine((tz) => tz === '' || isTimeZone(tz), 'an IANA time zone such as Europe/Vienna, or empty for the lab’s'),
 		notifyOnClear: z.boolean().default(true)
 	})
-	.refine((p) => (p.quietStart === '') === (p.quietEnd === ''), { message: 'give both ends of the quiet hours, or neither', path: ['quietEnd'] });
+	.refine((p) => (p.quietStart === '') === (p.quietEnd === ''), {
+		message: 'give both ends of the quiet hours, or neither',
+		path: ['quietEnd']
+	});
 export type AlertPrefsInput = z.infer<typeof alertPrefsSchema>;
 
 export async function savePrefs(db: Db, userId: string, p: AlertPrefsInput) {

@@ -89,7 +89,15 @@ export type SilenceView = Awaited<ReturnType<typeof listSilences>>[number];
 /** The silences holding on a run at `at` (its setup's, its own, and rules silenced on either); for the run page and timeline. */
 export function activeSilences(db: Db, runId: string, at: Date = new Date()) {
 	return db
-		.select({ id: silences.id, kind: silences.kind, runId: silences.runId, reason: silences.reason, startsAt: silences.startsAt, until: silences.until, createdByName: creator.name })
+		.select({
+			id: silences.id,
+			kind: silences.kind,
+			runId: silences.runId,
+			reason: silences.reason,
+			startsAt: silences.startsAt,
+			until: silences.until,
+			createdByName: creator.name
+		})
 		.from(silences)
 		.innerJoin(runs, eq(runs.setupId, silences.setupId))
 		.leftJoin(creator, eq(creator.id, silences.createdBy))
@@ -119,7 +127,15 @@ export async function silenceCovering(tx: Tx | Db, incident: { setupId: string; 
 /** Every silence that ever covered a run (its own and its setup's), newest first; for the run timeline. */
 export function silencesOfRun(db: Db, runId: string) {
 	return db
-		.select({ id: silences.id, kind: silences.kind, reason: silences.reason, startsAt: silences.startsAt, until: silences.until, endedAt: silences.endedAt, createdByName: creator.name })
+		.select({
+			id: silences.id,
+			kind: silences.kind,
+			reason: silences.reason,
+			startsAt: silences.startsAt,
+			until: silences.until,
+			endedAt: silences.endedAt,
+			createdByName: creator.name
+		})
 		.from(silences)
 		.innerJoin(runs, eq(runs.setupId, silences.setupId))
 		.leftJoin(creator, eq(creator.id, silences.createdBy))

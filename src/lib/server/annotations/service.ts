@@ -28,10 +28,7 @@ export async function listAnnotations(db: Db, runId: string, from_ms?: number, t
 	if (to_ms !== undefined) where.push(lt(runAnnotations.atMs, to_ms));
 	if (from_ms !== undefined) {
 		where.push(
-			or(
-				gte(runAnnotations.atMs, from_ms),
-				and(sql`${runAnnotations.untilMs} is not null`, sql`${runAnnotations.untilMs} > ${from_ms}`)
-			)!
+			or(gte(runAnnotations.atMs, from_ms), and(sql`${runAnnotations.untilMs} is not null`, sql`${runAnnotations.untilMs} > ${from_ms}`))!
 		);
 	}
 	const rows = await db
@@ -42,7 +39,12 @@ export async function listAnnotations(db: Db, runId: string, from_ms?: number, t
 	return rows.map(toAnnotation);
 }
 
-export async function addAnnotation(db: Db, runId: string, author: { id: string; name: string }, input: AnnotationInput): Promise<Annotation> {
+export async function addAnnotation(
+	db: Db,
+	runId: string,
+	author: { id: string; name: string },
+	input: AnnotationInput
+): Promise<Annotation> {
 	const [row] = await db
 		.insert(runAnnotations)
 		.values({ runId, atMs: input.at_ms, untilMs: input.until_ms ?? null, text: input.text, authorId: author.id, authorName: author.name })
@@ -69,4 +71,3 @@ export async function deleteAnnotation(db: Db, runId: string, id: number, userId
 	if (row.authorId !== userId) throw new AnnotationError(403, 'only the author of a note may delete it');
 	await db.delete(runAnnotations).where(eq(runAnnotations.id, id));
 }
-

@@ -38,10 +38,12 @@ export class SignInLimiter {
 
 	/** A refusal while either the account or the address is waiting out its delay, else null. */
 	async check(email: string, address: string): Promise<Refusal | null> {
-		const waits = await Promise.all(keys(email, address).map(async ({ key }) => {
-			const res = await this.blocks.get(key);
-			return res && res.consumedPoints > 1 ? res.msBeforeNext : 0;
-		}));
+		const waits = await Promise.all(
+			keys(email, address).map(async ({ key }) => {
+				const res = await this.blocks.get(key);
+				return res && res.consumedPoints > 1 ? res.msBeforeNext : 0;
+			})
+		);
 		const wait_ms = Math.max(...waits);
 		if (wait_ms <= 0) return null;
 		const retryAfter_s = Math.ceil(wait_ms / 1000);

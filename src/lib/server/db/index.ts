@@ -22,10 +22,7 @@ export function createPglite(dir: string): PGlite {
 	return new PGlite({ fs: new DurableNodeFS(dir), startParams: durableStartParams(defaults) });
 }
 
-export async function openDatabase(
-	dir: string,
-	migrationsFolder: string
-): Promise<{ db: Db; client: PGlite; close: () => Promise<void> }> {
+export async function openDatabase(dir: string, migrationsFolder: string): Promise<{ db: Db; client: PGlite; close: () => Promise<void> }> {
 	const client = createPglite(dir);
 	const db = drizzle(client, { schema });
 	await migrate(db, { migrationsFolder });

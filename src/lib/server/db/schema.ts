@@ -90,7 +90,9 @@ export const runs = pgTable(
 		modeGHz: doublePrecision('mode_ghz').notNull(),
 		operatingPoint: jsonb('operating_point').$type<Record<string, number | string | boolean>>(),
 		agent: text('agent').notNull().default(''),
-		status: text('status', { enum: ['open', 'ended'] }).notNull().default('open'),
+		status: text('status', { enum: ['open', 'ended'] })
+			.notNull()
+			.default('open'),
 		startedAt: created(),
 		endedAt: timestamp('ended_at', { withTimezone: true }),
 		endReason: text('end_reason'),
@@ -217,7 +219,9 @@ export const incidents = pgTable(
 		kind: text('kind').notNull(),
 		/** Distinguishes several conditions of one kind (e.g. one aux limit per name); '' otherwise. */
 		key: text('key').notNull().default(''),
-		state: text('state', { enum: ['open', 'acknowledged', 'resolved'] }).notNull().default('open'),
+		state: text('state', { enum: ['open', 'acknowledged', 'resolved'] })
+			.notNull()
+			.default('open'),
 		severity: text('severity', { enum: ['critical', 'warning', 'info'] }).notNull(),
 		summary: text('summary').notNull(),
 		evidence: jsonb('evidence').$type<Record<string, unknown>>().notNull(),

@@ -10,7 +10,10 @@ import * as schema from './schema';
 /** Connections per app instance: ingest, readers and background work share them. */
 const POOL_SIZE = 10;
 
-export async function openServerDatabase(url: string, migrationsFolder: string): Promise<{ db: Db; pool: pg.Pool; close: () => Promise<void> }> {
+export async function openServerDatabase(
+	url: string,
+	migrationsFolder: string
+): Promise<{ db: Db; pool: pg.Pool; close: () => Promise<void> }> {
 	const pool = new pg.Pool({ connectionString: url, max: POOL_SIZE });
 	// An idle connection that drops (server restart) must not take the process down.
 	pool.on('error', (err) => console.error('database: idle connection failed', err.message));

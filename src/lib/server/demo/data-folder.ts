@@ -8,10 +8,7 @@ export const DEMO_MARKER = '.phasewarden-demo';
 /** The demo's own variable; PHASEWARDEN_DATA (the production folder) is never used by the demo. */
 export const DEMO_DATA_ENV = 'PHASEWARDEN_DEMO_DATA';
 
-export type DemoFolderState =
-	| { kind: 'missing' }
-	| { kind: 'not-a-folder' }
-	| { kind: 'folder'; empty: boolean; hasMarker: boolean };
+export type DemoFolderState = { kind: 'missing' } | { kind: 'not-a-folder' } | { kind: 'folder'; empty: boolean; hasMarker: boolean };
 
 export type DemoFolderAction = 'create' | 'clear' | 'refuse';
 

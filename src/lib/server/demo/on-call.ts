@@ -27,7 +27,14 @@ export async function seedDemoOnCall(db: Db, setupId: string, people: { id: stri
 	await saveRota(
 		db,
 		setupId,
-		{ members: people.map((p) => p.id), handoverWeekday: today.weekday, handoverTime: '00:00', startsOn: today.date, criticalAckMin: DEMO_CRITICAL_ACK_MIN, warningAckMin: 15 },
+		{
+			members: people.map((p) => p.id),
+			handoverWeekday: today.weekday,
+			handoverTime: '00:00',
+			startsOn: today.date,
+			criticalAckMin: DEMO_CRITICAL_ACK_MIN,
+			warningAckMin: 15
+		},
 		actorId
 	);
 	for (const p of people) {

@@ -19,7 +19,12 @@ export type EvidenceView = {
 	truncated: boolean;
 };
 
-export async function readEvidenceWindows(db: Db, runId: string, fromSeq: number, toSeq: number): Promise<{ windows: EvidenceWindow[]; truncated: boolean }> {
+export async function readEvidenceWindows(
+	db: Db,
+	runId: string,
+	fromSeq: number,
+	toSeq: number
+): Promise<{ windows: EvidenceWindow[]; truncated: boolean }> {
 	const rows = await db
 		.select({
 			seq: frames.seq,
@@ -46,7 +51,13 @@ export async function incidentEvidenceView(
 	run: Pick<RunRow, 'id' | 'states' | 'lastFrameT'>
 ): Promise<EvidenceView> {
 	const span = evidenceSeqSpan(incident.kind, incident.evidence);
-	if (!span) return { charts: evidenceCharts({ ...incident, windows: [], focus: null, states: run.states }), iq: null, windows: 0, truncated: false };
+	if (!span)
+		return {
+			charts: evidenceCharts({ ...incident, windows: [], focus: null, states: run.states }),
+			iq: null,
+			windows: 0,
+			truncated: false
+		};
 	const { windows, truncated } = await readEvidenceWindows(db, run.id, span.fromSeq, span.toSeq);
 	const focus = { fromSeq: span.focusFrom, toSeq: span.focusTo };
 	const charts = evidenceCharts({ ...incident, windows, focus, states: run.states });

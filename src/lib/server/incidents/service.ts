@@ -14,7 +14,9 @@ export type IncidentRow = typeof incidents.$inferSelect;
 
 export const INCIDENT_STATES = ['open', 'acknowledged', 'resolved'] as const;
 /** The optional note that goes with an acknowledge or resolve. */
-export const noteSchema = z.object({ note: safeText(z.string().trim().max(MAX_NOTE_CHARS, `note is at most ${MAX_NOTE_CHARS} characters`)).optional() });
+export const noteSchema = z.object({
+	note: safeText(z.string().trim().max(MAX_NOTE_CHARS, `note is at most ${MAX_NOTE_CHARS} characters`)).optional()
+});
 
 export interface OpenCondition {
 	kind: string;
@@ -156,7 +158,9 @@ export const incidentQuerySchema = z.object({
 	setup: safeText(z.string().min(1)).optional(),
 	run: safeText(z.string().min(1)).optional(),
 	kind: safeText(z.string().min(1)).optional(),
-	sort: z.enum(['openedAt', 'severity', 'kind', 'state'], { message: 'sort must be openedAt, severity, kind or state' }).default('openedAt'),
+	sort: z
+		.enum(['openedAt', 'severity', 'kind', 'state'], { message: 'sort must be openedAt, severity, kind or state' })
+		.default('openedAt'),
 	order: z.enum(['asc', 'desc'], { message: 'order must be asc or desc' }).default('desc'),
 	page: z.coerce.number().int().min(1, 'page starts at 1').default(1),
 	pageSize: z.coerce.number().int().min(1).max(200, 'pageSize is at most 200').default(25)

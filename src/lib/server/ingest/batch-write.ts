@@ -16,7 +16,6 @@ export interface FrameToStore {
 	late: boolean;
 }
 
-
 function framesJson(batch: readonly FrameToStore[]): string {
 	return JSON.stringify(batch.map(({ frame, late }) => ({ ...frame, t: Math.round(frame.t), late })));
 }

@@ -67,7 +67,8 @@ export class Ingest {
 	) {
 		this.committer = new GroupCommitter(db);
 		cluster.onMessage((kind, body) => {
-			if (kind === 'control') void this.onControl(body as ControlMessage).catch((err) => console.error('ingest: cluster message failed', err));
+			if (kind === 'control')
+				void this.onControl(body as ControlMessage).catch((err) => console.error('ingest: cluster message failed', err));
 		});
 		cluster.onLeasesLost(() => this.leasesLost());
 		this.timers.push(setInterval(() => this.heartbeat(), HEARTBEAT_MS));
@@ -83,7 +84,9 @@ export class Ingest {
 		const secret = header.startsWith('Bearer ') ? header.slice(7).trim() : '';
 		const token = secret ? await findActiveToken(this.db, secret) : null;
 		if (!token) {
-			socket.write('HTTP/1.1 401 Unauthorized\r\nContent-Type: text/plain\r\nConnection: close\r\n\r\nagent token missing, unknown or revoked\n');
+			socket.write(
+				'HTTP/1.1 401 Unauthorized\r\nContent-Type: text/plain\r\nConnection: close\r\n\r\nagent token missing, unknown or revoked\n'
+			);
 			socket.destroy();
 			return;
 		}
@@ -98,7 +101,10 @@ export class Ingest {
 		const run = await findOrCreateRun(this.db, conn.token.setupId, hello.run, hello.agent);
 		if (run.status === 'ended') return { error: 'run_ended', message: `run "${hello.run.key}" has ended; start a new run key` };
 		if (run.states !== hello.run.states) {
-			return { error: 'run_ended', message: `run "${hello.run.key}" was started with ${run.states} states, not ${hello.run.states}; use a new run key` };
+			return {
+				error: 'run_ended',
+				message: `run "${hello.run.key}" was started with ${run.states} states, not ${hello.run.states}; use a new run key`
+			};
 		}
 		for (const other of this.connections) {
 			if (other !== conn && other.runId === run.id) other.close(4000, 'replaced by a newer connection');
@@ -137,7 +143,13 @@ export class Ingest {
 		const ended = await endRun(this.db, writer.run.id, reason);
 		if (ended) {
 			writer.run = ended;
-			this.bus.publish({ type: 'run', runId: ended.id, setupId: ended.setupId, run: publicRun(ended), detectors: writer.engine.status({ runEnded: true }) });
+			this.bus.publish({
+				type: 'run',
+				runId: ended.id,
+				setupId: ended.setupId,
+				run: publicRun(ended),
+				detectors: writer.engine.status({ runEnded: true })
+			});
 		}
 		this.dropWriter(writer);
 	}

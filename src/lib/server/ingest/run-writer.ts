@@ -16,7 +16,7 @@ import type { FrameExpectation } from '../../detect/expected';
 import type { RunInfo } from '../../detect/run-info';
 import { rollupFrames } from '../../rollup/rollup';
 import type { Db, Tx } from '../db';
-import { frameGaps, runs } from '../db/schema';
+import { frameGaps } from '../db/schema';
 import { clearCondition, openIncident, type IncidentRow } from '../incidents/service';
 import { mergeWithStored, ROLLUP_ROWS_PER_STATEMENT, RollupCache, upsertRollups } from '../rollups/store';
 import type { RunRow } from '../runs/service';
@@ -158,7 +158,10 @@ export class RunWriter {
 	 * the commits, and records its events with a snapshot in a transaction of their own. Clock
 	 * ticks that change nothing (no event) write nothing.
 	 */
-	async applyEngine(produce: (engine: DetectorEngine) => DetectorEvent[], options: { snapshot: 'always' | 'on-event' } = { snapshot: 'always' }) {
+	async applyEngine(
+		produce: (engine: DetectorEngine) => DetectorEvent[],
+		options: { snapshot: 'always' | 'on-event' } = { snapshot: 'always' }
+	) {
 		const done = this.chain.then(async () => {
 			if (this.broken) return;
 			const events = produce(this.engine);
@@ -275,7 +278,9 @@ export class RunWriter {
 		}
 		if (!imported) this.fedSinceSnapshot += fresh.length;
 		const snapshotDue =
-			!imported && fresh.length > 0 && (this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
+			!imported &&
+			fresh.length > 0 &&
+			(this.fedSinceSnapshot >= this.policy.everyFrames || receivedAt - this.lastSnapshotAt >= this.policy.everyMs);
 		const toStore: FrameToStore[] = [...late.map((frame) => ({ frame, late: true })), ...fresh.map((frame) => ({ frame, late: imported }))];
 		const last = fresh.at(-1);
 		const gapCount = this.gaps.count;
@@ -300,7 +305,14 @@ export class RunWriter {
 			const writeProgress = extra || receivedAt - this.progressWrittenAt >= PROGRESS_EVERY_MS;
 			// Only the database is touched in here: the group committer may run it twice.
 			const work = async (tx: Tx | Db) => {
-				const storedSeqs = await writeBatch(tx, this.run.id, new Date(receivedAt), toStore, fits ? rollups : [], writeProgress ? progress : null);
+				const storedSeqs = await writeBatch(
+					tx,
+					this.run.id,
+					new Date(receivedAt),
+					toStore,
+					fits ? rollups : [],
+					writeProgress ? progress : null
+				);
 				if (!extra) return { storedSeqs, recorded: { opened: [], resolved: [] } };
 				if (!fits) await upsertRollups(tx as Db, this.run.id, rollups);
 				await writeGapChanges(tx, this.run.id, filled, opened);

@@ -23,7 +23,12 @@ export async function saveSnapshot(tx: Tx | Db, runId: string, engine: DetectorE
  * The run's engine as it was after its last stored frame. Events the replayed frames raise are
  * dropped: they were recorded when those frames were committed.
  */
-export async function restoreEngine(db: Db, runId: string, rules: unknown, info: RunInfo): Promise<{ engine: DetectorEngine; replayed: number }> {
+export async function restoreEngine(
+	db: Db,
+	runId: string,
+	rules: unknown,
+	info: RunInfo
+): Promise<{ engine: DetectorEngine; replayed: number }> {
 	const [saved] = await db.select({ state: runSnapshots.state }).from(runSnapshots).where(eq(runSnapshots.runId, runId));
 	let engine: DetectorEngine | null = null;
 	if (saved) {

@@ -18,7 +18,12 @@ export function eventStream(bus: LiveBus, accept: (e: LiveEvent) => boolean, sig
 			const unsubscribe = bus.subscribe((e) => {
 				if (!accept(e)) return;
 				const { type, ...rest } = e;
-				const data = type === 'frames' ? { frames: e.frames } : type === 'run' ? { run: e.run, ...(e.detectors ? { detectors: e.detectors } : {}) } : { incident: e.incident };
+				const data =
+					type === 'frames'
+						? { frames: e.frames }
+						: type === 'run'
+							? { run: e.run, ...(e.detectors ? { detectors: e.detectors } : {}) }
+							: { incident: e.incident };
 				void rest;
 				write(`event: ${type}\ndata: ${JSON.stringify(data)}\n\n`);
 			});

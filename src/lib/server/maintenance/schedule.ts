@@ -61,17 +61,20 @@ export function scheduleMaintenance(
 	// Statistics go stale as fast as runs grow (a replay right after a large upload must not wait a
 	// whole maintenance period), and checking costs one catalog query.
 	let analyzing = false;
-	const analyzeTimer = setInterval(async () => {
-		if (analyzing || running || kind === 'server') return;
-		analyzing = true;
-		try {
-			await analyzeChangedTables(db);
-		} catch (err) {
-			console.error('analyze failed', err);
-		} finally {
-			analyzing = false;
-		}
-	}, Math.min(everyMs, ANALYZE_CHECK_MS));
+	const analyzeTimer = setInterval(
+		async () => {
+			if (analyzing || running || kind === 'server') return;
+			analyzing = true;
+			try {
+				await analyzeChangedTables(db);
+			} catch (err) {
+				console.error('analyze failed', err);
+			} finally {
+				analyzing = false;
+			}
+		},
+		Math.min(everyMs, ANALYZE_CHECK_MS)
+	);
 	timer.unref();
 	analyzeTimer.unref();
 	return () => {

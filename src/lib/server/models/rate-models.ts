@@ -29,7 +29,14 @@ export async function currentRateModel(db: Db, setupId: string, process: 'switch
 
 export async function rateModelHistory(db: Db, setupId: string) {
 	return db
-		.select({ id: rateModels.id, process: rateModels.process, model: rateModels.model, note: rateModels.note, createdAt: rateModels.createdAt, createdBy: user.name })
+		.select({
+			id: rateModels.id,
+			process: rateModels.process,
+			model: rateModels.model,
+			note: rateModels.note,
+			createdAt: rateModels.createdAt,
+			createdBy: user.name
+		})
 		.from(rateModels)
 		.leftJoin(user, eq(user.id, rateModels.createdBy))
 		.where(eq(rateModels.setupId, setupId))

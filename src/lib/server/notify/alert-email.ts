@@ -69,7 +69,14 @@ export function incidentUrl(appOrigin: string, id: string): string {
 
 function alignRows(rows: string[][], indent = '  '): string[] {
 	const widths = rows[0].map((_, c) => Math.max(...rows.map((r) => (r[c] ?? '').length)));
-	return rows.map((r) => indent + r.map((cell, c) => (c === r.length - 1 ? cell : cell.padEnd(widths[c]))).join('  ').trimEnd());
+	return rows.map(
+		(r) =>
+			indent +
+			r
+				.map((cell, c) => (c === r.length - 1 ? cell : cell.padEnd(widths[c])))
+				.join('  ')
+				.trimEnd()
+	);
 }
 
 /** Sentences wrapped at 78 columns, as mail clients show plain text best. */
@@ -88,7 +95,8 @@ function wrap(sentence: string, width = 78): string[] {
 
 function descriptionText(d: Description, version: number | undefined): string[] {
 	const lines = ['What happened', ...wrap(d.what)];
-	if (d.details.length) lines.push('', 'What the detector saw', ...d.details.flatMap((s) => wrap(`- ${s}`).map((l, i) => (i === 0 ? l : `  ${l}`))));
+	if (d.details.length)
+		lines.push('', 'What the detector saw', ...d.details.flatMap((s) => wrap(`- ${s}`).map((l, i) => (i === 0 ? l : `  ${l}`))));
 	if (version !== undefined) lines.push('', `Detector rule version ${version}.`);
 	return lines;
 }
@@ -187,7 +195,9 @@ function compose(
 			descriptionHtml(said, version),
 			groupHtml(group, input.appOrigin),
 			`<p style="margin:18px 0"><a href="${escapeHtml(link)}">Open the incident</a> <span style="color:#5a6573">${escapeHtml(link)}</span></p>`,
-			input.acknowledgeUrl ? `<p style="margin:0 0 18px"><a href="${escapeHtml(input.acknowledgeUrl)}">Acknowledge</a> <span style="color:#5a6573">(one tap, works once)</span></p>` : '',
+			input.acknowledgeUrl
+				? `<p style="margin:0 0 18px"><a href="${escapeHtml(input.acknowledgeUrl)}">Acknowledge</a> <span style="color:#5a6573">(one tap, works once)</span></p>`
+				: '',
 			`<p style="margin:18px 0 0;font-size:12px;color:#5a6573">${escapeHtml(MONITOR_CAUTION)}</p>`
 		].join('')
 	);

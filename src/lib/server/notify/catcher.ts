@@ -71,24 +71,27 @@ export async function startMailCatcher({ port = 0 }: { port?: number } = {}): Pr
 				// Parsing is asynchronous: chained, so messages keep their order of arrival.
 				parsing = parsing
 					.then(() => parseMail(raw))
-					.then((parsed) => {
-						const mail: CaughtMail = {
-							id: nextId++,
-							from: parsed.from || envelope.from || '',
-							to: envelope.to,
-							subject: parsed.subject,
-							...(parsed.text === undefined ? {} : { text: parsed.text }),
-							...(parsed.html === undefined ? {} : { html: parsed.html }),
-							...(parsed.messageId === undefined ? {} : { messageId: parsed.messageId }),
-							headers: parsed.headers,
-							envelope,
-							receivedAt: new Date(),
-							raw
-						};
-						caught.push(mail);
-						callback();
-						for (const notify of [...waiters]) notify(mail);
-					}, (err: Error) => callback(err))
+					.then(
+						(parsed) => {
+							const mail: CaughtMail = {
+								id: nextId++,
+								from: parsed.from || envelope.from || '',
+								to: envelope.to,
+								subject: parsed.subject,
+								...(parsed.text === undefined ? {} : { text: parsed.text }),
+								...(parsed.html === undefined ? {} : { html: parsed.html }),
+								...(parsed.messageId === undefined ? {} : { messageId: parsed.messageId }),
+								headers: parsed.headers,
+								envelope,
+								receivedAt: new Date(),
+								raw
+							};
+							caught.push(mail);
+							callback();
+							for (const notify of [...waiters]) notify(mail);
+						},
+						(err: Error) => callback(err)
+					)
 					.catch((err: Error) => console.warn(`mail catcher: ${err.message}`));
 			});
 		}

@@ -40,7 +40,8 @@ export function createMailer({ smtpUrl, from }: { smtpUrl: string; from: string 
 		throw new RangeError(`SMTP_URL: expected smtp:// or smtps://, got ${url.protocol}//`);
 	}
 	if (!url.hostname) throw new RangeError('SMTP_URL: the host is missing');
-	if (!from || !from.includes('@')) throw new RangeError(`MAIL_FROM: expected an address such as alerts@lab.example, got ${JSON.stringify(from)}`);
+	if (!from || !from.includes('@'))
+		throw new RangeError(`MAIL_FROM: expected an address such as alerts@lab.example, got ${JSON.stringify(from)}`);
 
 	const secure = url.protocol === 'smtps:';
 	const host = url.hostname.replace(/^\[(.*)\]$/, '$1');
@@ -59,7 +60,15 @@ export function createMailer({ smtpUrl, from }: { smtpUrl: string; from: string 
 	return {
 		async send({ to, subject, text, html, messageId, headers }) {
 			try {
-				const info = await transport.sendMail({ from, to, subject, text, ...(html ? { html } : {}), ...(messageId ? { messageId } : {}), ...(headers ? { headers } : {}) });
+				const info = await transport.sendMail({
+					from,
+					to,
+					subject,
+					text,
+					...(html ? { html } : {}),
+					...(messageId ? { messageId } : {}),
+					...(headers ? { headers } : {})
+				});
 				const rejected = (info.rejected ?? []).map(String);
 				if (rejected.length > 0) return { ok: false, error: `rejected by the mail server: ${rejected.join(', ')}`, permanent: true };
 				return { ok: true, ...(info.messageId ? { messageId: info.messageId } : {}) };

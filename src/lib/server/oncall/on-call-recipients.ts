@@ -14,6 +14,9 @@ export async function onCallRecipients(tx: Tx | Db, setupId: string, step: numbe
 	const who = await onCallIds(tx, setupId, at);
 	const id = level === 'primary' ? who.primary : who.secondary;
 	if (!id) return null;
-	const rows = await tx.select({ id: user.id, name: user.name, email: user.email }).from(user).where(inArray(user.id, [id]));
+	const rows = await tx
+		.select({ id: user.id, name: user.name, email: user.email })
+		.from(user)
+		.where(inArray(user.id, [id]));
 	return rows.length ? rows : null;
 }

@@ -31,7 +31,8 @@ const CAUSE_KINDS = ['lock_lost', 'agent_silent'];
 
 export function groupWindow_ms(env: NodeJS.ProcessEnv = process.env): number {
 	const s = Number(env.PHASEWARDEN_GROUP_WINDOW_S ?? 60);
-	if (!Number.isFinite(s) || s < 0) throw new RangeError(`PHASEWARDEN_GROUP_WINDOW_S must be a number of seconds ≥ 0, got ${env.PHASEWARDEN_GROUP_WINDOW_S}`);
+	if (!Number.isFinite(s) || s < 0)
+		throw new RangeError(`PHASEWARDEN_GROUP_WINDOW_S must be a number of seconds ≥ 0, got ${env.PHASEWARDEN_GROUP_WINDOW_S}`);
 	return s * 1000;
 }
 
@@ -68,7 +69,11 @@ async function raiseGroupSeverity(tx: Tx | Db, head: IncidentRow, severity: Seve
 	}
 	if (head.state !== 'open' || moreSevere(head.severity, severity) === head.severity) return;
 	const next = nextEscalation(await getPolicy(tx, head.setupId), severity, 0, now.getTime());
-	if (next) await tx.insert(escalations).values({ incidentId: head.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity }).onConflictDoNothing();
+	if (next)
+		await tx
+			.insert(escalations)
+			.values({ incidentId: head.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity })
+			.onConflictDoNothing();
 }
 
 /**
@@ -81,7 +86,11 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 	let cause: typeof incidents.$inferSelect | undefined;
 	let reason = '';
 	if (CONSEQUENCE_KINDS.includes(row.kind)) {
-		[cause] = await tx.select().from(incidents).where(and(open, inArray(incidents.kind, CAUSE_KINDS))).limit(1);
+		[cause] = await tx
+			.select()
+			.from(incidents)
+			.where(and(open, inArray(incidents.kind, CAUSE_KINDS)))
+			.limit(1);
 		reason = 'consequence';
 	}
 	if (!cause) {
@@ -90,7 +99,9 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 		const window_ms = groupWindow_ms();
 		const candidates = await tx.select().from(incidents).where(open).orderBy(incidents.openedAt);
 		const near = (c: typeof incidents.$inferSelect) =>
-			c.openedT !== null && row.openedT !== null ? Math.abs(row.openedT - c.openedT) <= window_ms : Date.now() - c.openedAt.getTime() <= window_ms;
+			c.openedT !== null && row.openedT !== null
+				? Math.abs(row.openedT - c.openedT) <= window_ms
+				: Date.now() - c.openedAt.getTime() <= window_ms;
 		const first = candidates.find(near);
 		if (first) {
 			cause = first;
@@ -99,10 +110,17 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 	}
 	if (cause) {
 		const [linked] = await tx.update(incidents).set({ causeIncidentId: cause.id }).where(eq(incidents.id, row.id)).returning();
-		await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'grouped', note: `grouped with ${cause.kind}; notifies nobody separately`, data: { causeIncidentId: cause.id, reason } });
+		await tx.insert(incidentEvents).values({
+			incidentId: row.id,
+			action: 'grouped',
+			note: `grouped with ${cause.kind}; notifies nobody separately`,
+			data: { causeIncidentId: cause.id, reason }
+		});
 		const head = await headOf(tx, cause.id);
 		if (head) {
-			const before = (await incidentGroup(tx, head.id)).filter((m) => m.id !== row.id).reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
+			const before = (await incidentGroup(tx, head.id))
+				.filter((m) => m.id !== row.id)
+				.reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
 			await raiseGroupSeverity(tx, head, row.severity, now);
 			if (moreSevere(before, row.severity) !== before) await pageRaisedGroup(tx, head, row.severity, now);
 		}
@@ -110,9 +128,17 @@ export async function pageOrGroup(tx: Tx | Db, row: IncidentRow, now: Date = pag
 	}
 	const people = await chooseRecipients(tx, row, 0);
 	await queueIncidentNotices(tx, row, 'alert', 0, {}, { notBefore: gatherUntil(row) });
-	await tx.insert(incidentEvents).values({ incidentId: row.id, action: 'paged', note: `paged ${names(people)} at ${now.toISOString()}`, data: { step: 0, to: people.map((p) => p.id), at: now.toISOString() } });
+	await tx.insert(incidentEvents).values({
+		incidentId: row.id,
+		action: 'paged',
+		note: `paged ${names(people)} at ${now.toISOString()}`,
+		data: { step: 0, to: people.map((p) => p.id), at: now.toISOString() }
+	});
 	const next = nextEscalation(await getPolicy(tx, row.setupId), row.severity, 0, now.getTime());
-	if (next) await tx.insert(escalations).values({ incidentId: row.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity: row.severity });
+	if (next)
+		await tx
+			.insert(escalations)
+			.values({ incidentId: row.id, nextStep: next.step, dueAt: new Date(next.dueAt_ms), severity: row.severity });
 	return row;
 }
 
@@ -143,7 +169,10 @@ export async function queueClearNotice(tx: Tx | Db, row: IncidentRow, clearedSum
 	const group = await incidentGroup(tx, row.id);
 	if (group.length < 2) return queueIncidentNotices(tx, row, 'clear', 0, { clearedSummary });
 	if (group.some((m) => m.state !== 'resolved')) return 0;
-	const [head] = await tx.select().from(incidents).where(eq(incidents.id, group.find((m) => m.head)!.id));
+	const [head] = await tx
+		.select()
+		.from(incidents)
+		.where(eq(incidents.id, group.find((m) => m.head)!.id));
 	const summary = `All ${group.length} incidents of this group have cleared; the last: ${kindLabel(row.kind)}: ${clearedSummary}`;
 	// At the group's severity, as it paged: whoever the page reached (a critical through quiet hours) hears it cleared.
 	const severity = group.reduce<Severity>((s, m) => moreSevere(s, m.severity), head.severity);
@@ -159,7 +188,10 @@ export async function stopPaging(tx: Tx | Db, row: Pick<IncidentRow, 'id' | 'cau
 		// while the lock is still lost) hands its timer to the most severe open member.
 		const [timer] = await tx.select().from(escalations).where(eq(escalations.incidentId, row.id));
 		if (timer) {
-			const members = await tx.select().from(incidents).where(and(eq(incidents.causeIncidentId, row.id), eq(incidents.state, 'open')));
+			const members = await tx
+				.select()
+				.from(incidents)
+				.where(and(eq(incidents.causeIncidentId, row.id), eq(incidents.state, 'open')));
 			const heir = members.sort((a, b) => (moreSevere(a.severity, b.severity) === a.severity ? -1 : 1))[0];
 			if (heir) {
 				await tx.update(escalations).set({ incidentId: heir.id }).where(eq(escalations.incidentId, row.id));
@@ -184,5 +216,14 @@ export async function incidentGroup(db: Tx | Db, id: string) {
 	if (members.length < 2) return [];
 	return members
 		.sort((a, b) => a.openedAt.getTime() - b.openedAt.getTime())
-		.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, state: m.state, summary: m.summary, openedAt: m.openedAt, head: m.id === head.id, causeIncidentId: m.causeIncidentId }));
+		.map((m) => ({
+			id: m.id,
+			kind: m.kind,
+			severity: m.severity,
+			state: m.state,
+			summary: m.summary,
+			openedAt: m.openedAt,
+			head: m.id === head.id,
+			causeIncidentId: m.causeIncidentId
+		}));
 }

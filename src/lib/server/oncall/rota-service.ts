@@ -29,7 +29,9 @@ export class RotaError extends Error {}
 
 export async function getRota(db: Tx | Db, setupId: string): Promise<WeeklyRota | null> {
 	const [row] = await db.select().from(rotas).where(eq(rotas.setupId, setupId));
-	return row ? { members: row.members, handoverWeekday: row.handoverWeekday, handoverTime: row.handoverTime, startsOn: row.startsOn } : null;
+	return row
+		? { members: row.members, handoverWeekday: row.handoverWeekday, handoverTime: row.handoverTime, startsOn: row.startsOn }
+		: null;
 }
 
 /** The escalation policy that covers `setupId` (its rota owner's, when it follows another setup's rota). */
@@ -58,20 +60,41 @@ export async function saveRota(db: Db, setupId: string, input: RotaInput, actorI
 	// The setups that share this rota must be able to page everyone on it too.
 	for (const follower of await followersOf(db, setupId)) {
 		const missing = await notOnCallable(db, follower.id, input.members);
-		if (missing.length) throw new RotaError(`${missing.join(', ')} cannot be on call for ${follower.name}, which shares this rota (not an operator or admin member there)`);
+		if (missing.length)
+			throw new RotaError(
+				`${missing.join(', ')} cannot be on call for ${follower.name}, which shares this rota (not an operator or admin member there)`
+			);
 	}
-	const rota = { members: input.members, handoverWeekday: input.handoverWeekday, handoverTime: input.handoverTime, startsOn: input.startsOn };
+	const rota = {
+		members: input.members,
+		handoverWeekday: input.handoverWeekday,
+		handoverTime: input.handoverTime,
+		startsOn: input.startsOn
+	};
 	await db.transaction(async (tx) => {
-		await tx.insert(rotas).values({ setupId, ...rota, updatedBy: actorId, updatedAt: new Date() }).onConflictDoUpdate({ target: rotas.setupId, set: { ...rota, updatedBy: actorId, updatedAt: new Date() } });
+		await tx
+			.insert(rotas)
+			.values({ setupId, ...rota, updatedBy: actorId, updatedAt: new Date() })
+			.onConflictDoUpdate({ target: rotas.setupId, set: { ...rota, updatedBy: actorId, updatedAt: new Date() } });
 		const policy = { criticalAckMin: input.criticalAckMin, warningAckMin: input.warningAckMin };
-		await tx.insert(escalationPolicies).values({ setupId, ...policy }).onConflictDoUpdate({ target: escalationPolicies.setupId, set: policy });
+		await tx
+			.insert(escalationPolicies)
+			.values({ setupId, ...policy })
+			.onConflictDoUpdate({ target: escalationPolicies.setupId, set: policy });
 	});
 	return rota;
 }
 
 export async function listOverrides(db: Tx | Db, setupId: string, after: Date) {
 	return db
-		.select({ id: rotaOverrides.id, userId: rotaOverrides.userId, name: user.name, from: rotaOverrides.fromAt, until: rotaOverrides.untilAt, note: rotaOverrides.note })
+		.select({
+			id: rotaOverrides.id,
+			userId: rotaOverrides.userId,
+			name: user.name,
+			from: rotaOverrides.fromAt,
+			until: rotaOverrides.untilAt,
+			note: rotaOverrides.note
+		})
 		.from(rotaOverrides)
 		.innerJoin(user, eq(user.id, rotaOverrides.userId))
 		.where(and(eq(rotaOverrides.setupId, setupId), gt(rotaOverrides.untilAt, after)))
@@ -82,19 +105,32 @@ export async function addOverride(db: Db, setupId: string, input: OverrideInput,
 	await refuseIfFollowing(db, setupId);
 	const members = await listMembers(db, setupId);
 	const m = members.find((x) => x.id === input.userId);
-	if (!m || (m.role !== 'operator' && m.role !== 'admin')) throw new RotaError('the person who covers must be an operator or admin member of this setup');
+	if (!m || (m.role !== 'operator' && m.role !== 'admin'))
+		throw new RotaError('the person who covers must be an operator or admin member of this setup');
 	for (const follower of await followersOf(db, setupId)) {
-		if ((await notOnCallable(db, follower.id, [input.userId])).length) throw new RotaError(`${m.name} cannot cover ${follower.name}, which shares this rota (not an operator or admin member there)`);
+		if ((await notOnCallable(db, follower.id, [input.userId])).length)
+			throw new RotaError(`${m.name} cannot cover ${follower.name}, which shares this rota (not an operator or admin member there)`);
 	}
 	const [row] = await db
 		.insert(rotaOverrides)
-		.values({ id: randomUUID(), setupId, userId: input.userId, fromAt: input.from, untilAt: input.until, note: input.note, createdBy: actorId })
+		.values({
+			id: randomUUID(),
+			setupId,
+			userId: input.userId,
+			fromAt: input.from,
+			untilAt: input.until,
+			note: input.note,
+			createdBy: actorId
+		})
 		.returning();
 	return row;
 }
 
 export async function deleteOverride(db: Db, setupId: string, id: string): Promise<boolean> {
-	const gone = await db.delete(rotaOverrides).where(and(eq(rotaOverrides.setupId, setupId), eq(rotaOverrides.id, id))).returning({ id: rotaOverrides.id });
+	const gone = await db
+		.delete(rotaOverrides)
+		.where(and(eq(rotaOverrides.setupId, setupId), eq(rotaOverrides.id, id)))
+		.returning({ id: rotaOverrides.id });
 	return gone.length > 0;
 }
 
@@ -106,7 +142,8 @@ async function refuseIfFollowing(db: Tx | Db, setupId: string) {
 	throw new RotaError(`this setup follows the rota of ${o?.name ?? owner}; change it there, or stop following it first`);
 }
 
-const asOverrides = (rows: { userId: string; from: Date; until: Date }[]): RotaOverride[] => rows.map((o) => ({ userId: o.userId, from: o.from, until: o.until }));
+const asOverrides = (rows: { userId: string; from: Date; until: Date }[]): RotaOverride[] =>
+	rows.map((o) => ({ userId: o.userId, from: o.from, until: o.until }));
 
 /** Primary and secondary on call at `at` (user ids), or nulls when the setup has no rota. */
 export async function onCallIds(db: Tx | Db, setupId: string, at: Date) {
@@ -126,7 +163,8 @@ export async function rotaView(db: Db, setupId: string, now: Date, days = 14) {
 		followersOf(db, setupId),
 		followableRotas(db, setupId)
 	]);
-	const [sharedFrom] = owner === setupId ? [] : await db.select({ id: setups.id, name: setups.name }).from(setups).where(eq(setups.id, owner));
+	const [sharedFrom] =
+		owner === setupId ? [] : await db.select({ id: setups.id, name: setups.name }).from(setups).where(eq(setups.id, owner));
 	if (owner !== setupId) for (const m of await listMembers(db, owner)) if (!members.some((x) => x.id === m.id)) members.push(m);
 	const timeZone = labTimeZone();
 	const until = new Date(now.getTime() + days * 86_400_000);
@@ -162,7 +200,12 @@ export async function onCallNowNames(db: Db, setupIds: string[], now: Date): Pro
 		const who = await onCallIds(db, id, now);
 		if (who.primary) ids[id] = who.primary;
 	}
-	const people = Object.values(ids).length ? await db.select({ id: user.id, name: user.name }).from(user).where(inArray(user.id, Object.values(ids))) : [];
+	const people = Object.values(ids).length
+		? await db
+				.select({ id: user.id, name: user.name })
+				.from(user)
+				.where(inArray(user.id, Object.values(ids)))
+		: [];
 	for (const [setupId, userId] of Object.entries(ids)) out[setupId] = people.find((p) => p.id === userId)?.name ?? userId;
 	return out;
 }

@@ -41,14 +41,22 @@ export async function followRota(db: Db, setupId: string, ownerId: string, actor
 	if (ownerId === setupId) throw new RotaShareError('a setup cannot follow its own rota');
 	const [owner] = await db.select({ id: setups.id, name: setups.name }).from(setups).where(eq(setups.id, ownerId));
 	if (!owner) throw new RotaShareError('rotaSetupId names no setup');
-	if ((await rotaOwnerOf(db, ownerId)) !== ownerId) throw new RotaShareError(`${owner.name} follows another setup's rota itself; follow that one`);
-	if ((await followersOf(db, setupId)).length) throw new RotaShareError('other setups follow this setup’s rota; they would be left without one');
+	if ((await rotaOwnerOf(db, ownerId)) !== ownerId)
+		throw new RotaShareError(`${owner.name} follows another setup's rota itself; follow that one`);
+	if ((await followersOf(db, setupId)).length)
+		throw new RotaShareError('other setups follow this setup’s rota; they would be left without one');
 	const [rota] = await db.select({ members: rotas.members }).from(rotas).where(eq(rotas.setupId, ownerId));
 	if (!rota) throw new RotaShareError(`${owner.name} has no rota to follow`);
 	const missing = await notOnCallable(db, setupId, rota.members);
-	if (missing.length) throw new RotaShareError(`${missing.join(', ')} on ${owner.name}'s rota cannot be on call here (not an operator or admin member of this setup)`);
+	if (missing.length)
+		throw new RotaShareError(
+			`${missing.join(', ')} on ${owner.name}'s rota cannot be on call here (not an operator or admin member of this setup)`
+		);
 	const values = { rotaSetupId: ownerId, createdBy: actorId, createdAt: new Date() };
-	await db.insert(rotaShares).values({ setupId, ...values }).onConflictDoUpdate({ target: rotaShares.setupId, set: values });
+	await db
+		.insert(rotaShares)
+		.values({ setupId, ...values })
+		.onConflictDoUpdate({ target: rotaShares.setupId, set: values });
 	return owner;
 }
 
@@ -60,7 +68,11 @@ export async function stopFollowing(db: Db, setupId: string): Promise<boolean> {
 
 /** Setups whose rota another setup may follow: they have a rota and follow nobody. */
 export async function followableRotas(db: Db, setupId: string) {
-	const owners = await db.select({ id: setups.id, name: setups.name }).from(rotas).innerJoin(setups, eq(setups.id, rotas.setupId)).orderBy(setups.name);
+	const owners = await db
+		.select({ id: setups.id, name: setups.name })
+		.from(rotas)
+		.innerJoin(setups, eq(setups.id, rotas.setupId))
+		.orderBy(setups.name);
 	const following = new Set((await db.select({ id: rotaShares.setupId }).from(rotaShares)).map((r) => r.id));
 	return owners.filter((o) => o.id !== setupId && !following.has(o.id));
 }

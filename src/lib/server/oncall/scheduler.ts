@@ -24,7 +24,9 @@ export async function escalateDue(db: Db, now: Date = pagingNow(), batch = 50): 
 			// The group's most severe incident decides the channels (a text goes out for critical).
 			const asPaged = { ...incident, severity: timer.severity };
 			const people = await chooseRecipients(tx, asPaged, timer.nextStep);
-			const group = (await incidentGroup(tx, incident.id)).filter((g) => !g.head).map((g) => ({ kind: g.kind, severity: g.severity, summary: g.summary }));
+			const group = (await incidentGroup(tx, incident.id))
+				.filter((g) => !g.head)
+				.map((g) => ({ kind: g.kind, severity: g.severity, summary: g.summary }));
 			await queueIncidentNotices(tx, asPaged, 'alert', timer.nextStep, { escalated: true, level: stepLevel(timer.nextStep), group });
 			await tx.insert(incidentEvents).values({
 				incidentId: incident.id,
@@ -34,7 +36,11 @@ export async function escalateDue(db: Db, now: Date = pagingNow(), batch = 50): 
 			});
 			paged.push({ incidentId: incident.id, step: timer.nextStep });
 			const next = nextEscalation(await getPolicy(tx, incident.setupId), timer.severity, timer.nextStep, now.getTime());
-			if (next) await tx.update(escalations).set({ nextStep: next.step, dueAt: new Date(next.dueAt_ms) }).where(eq(escalations.incidentId, incident.id));
+			if (next)
+				await tx
+					.update(escalations)
+					.set({ nextStep: next.step, dueAt: new Date(next.dueAt_ms) })
+					.where(eq(escalations.incidentId, incident.id));
 			else await tx.delete(escalations).where(eq(escalations.incidentId, incident.id));
 		}
 		return paged;

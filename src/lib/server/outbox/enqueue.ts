@@ -62,14 +62,27 @@ export async function queueIncidentNotices(
 	const allows = await allowedChannels(tx, ids, incident.severity, kind, pagingNow());
 	const [devices, phones, hooks] = await Promise.all([
 		ids.length
-			? tx.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId }).from(pushSubscriptions).where(inArray(pushSubscriptions.userId, ids))
+			? tx
+					.select({ id: pushSubscriptions.id, userId: pushSubscriptions.userId })
+					.from(pushSubscriptions)
+					.where(inArray(pushSubscriptions.userId, ids))
 			: [],
 		ids.length && kind === 'alert' && incident.severity === 'critical'
-			? tx.select({ userId: phoneNumbers.userId }).from(phoneNumbers).where(and(inArray(phoneNumbers.userId, ids), isNotNull(phoneNumbers.verifiedAt)))
+			? tx
+					.select({ userId: phoneNumbers.userId })
+					.from(phoneNumbers)
+					.where(and(inArray(phoneNumbers.userId, ids), isNotNull(phoneNumbers.verifiedAt)))
 			: [],
 		tx.select({ id: setupWebhooks.id }).from(setupWebhooks).where(eq(setupWebhooks.setupId, incident.setupId))
 	]);
-	const summary = { step, severity: incident.severity, incidentKind: incident.kind, summary: incident.summary, runId: incident.runId, ...extra };
+	const summary = {
+		step,
+		severity: incident.severity,
+		incidentKind: incident.kind,
+		summary: incident.summary,
+		runId: incident.runId,
+		...extra
+	};
 	const key = (channel: OutboxChannel, recipient: string) => `${kind}:${incident.id}:${step}:${channel}:${recipient}`;
 	const row = (channel: OutboxChannel, recipient: string, extra: Record<string, unknown> = {}): NewDelivery => ({
 		incidentId: incident.id,
@@ -82,7 +95,8 @@ export async function queueIncidentNotices(
 	const deliveries: NewDelivery[] = [];
 	for (const person of people) {
 		if (allows(person.id, 'email')) deliveries.push(row('email', person.id, { address: person.email }));
-		for (const d of devices) if (d.userId === person.id && allows(person.id, 'push')) deliveries.push(row('push', d.id, { userId: person.id }));
+		for (const d of devices)
+			if (d.userId === person.id && allows(person.id, 'push')) deliveries.push(row('push', d.id, { userId: person.id }));
 		if (phones.some((p) => p.userId === person.id) && allows(person.id, 'sms')) deliveries.push(row('sms', person.id));
 	}
 	for (const hook of hooks) deliveries.push(row('webhook', hook.id));

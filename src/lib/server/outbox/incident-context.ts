@@ -28,7 +28,11 @@ export function incidentLink(appOrigin: string, incidentId: string) {
  * Where a notification's Acknowledge action leads: a signed one-tap link for the person the
  * delivery goes to (an e-mail's recipient is a user id; a push's is a device, its owner in the payload).
  */
-export function acknowledgeLink(appOrigin: string, incidentId: string, row: Pick<OutboxRow, 'id' | 'createdAt' | 'channel' | 'recipient' | 'payload'>) {
+export function acknowledgeLink(
+	appOrigin: string,
+	incidentId: string,
+	row: Pick<OutboxRow, 'id' | 'createdAt' | 'channel' | 'recipient' | 'payload'>
+) {
 	const userId = row.channel === 'push' ? String(row.payload.userId ?? '') : row.recipient;
 	return oneTapLink(appOrigin, row, incidentId, userId);
 }
@@ -43,7 +47,14 @@ export async function loadAlertContext(db: Db, incidentId: string) {
 	const head = await loadIncidentContext(db, incidentId);
 	if (!head) return null;
 	const members = await incidentGroup(db, incidentId);
-	const group: GroupMember[] = members.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, summary: m.summary, openedAt: m.openedAt, head: m.head }));
+	const group: GroupMember[] = members.map((m) => ({
+		id: m.id,
+		kind: m.kind,
+		severity: m.severity,
+		summary: m.summary,
+		openedAt: m.openedAt,
+		head: m.head
+	}));
 	if (group.length < 2) return { head, lead: head, group: [] as GroupMember[] };
 	const leadId = groupLead(group).id;
 	const lead = leadId === head.incident.id ? head : ((await loadIncidentContext(db, leadId)) ?? head);

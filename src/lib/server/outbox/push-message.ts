@@ -49,7 +49,10 @@ export function pushMessage(row: OutboxRow, ctx: IncidentContext | null, appOrig
 			actions: []
 		};
 	}
-	const lead = group.length > 1 ? groupLead(group) : { id: incident.id, kind: incident.kind, severity: incident.severity, summary: incident.summary, openedAt: incident.openedAt };
+	const lead =
+		group.length > 1
+			? groupLead(group)
+			: { id: incident.id, kind: incident.kind, severity: incident.severity, summary: incident.summary, openedAt: incident.openedAt };
 	const related = group.length > 1 ? relatedPhrase(group, lead) : '';
 	const severity = lead.severity.charAt(0).toUpperCase() + lead.severity.slice(1);
 	return {

@@ -13,7 +13,11 @@ import { alertRecipients } from '../setups/service';
 export type Recipient = { id: string; name: string; email: string };
 
 /** Step 0 is the first page when the incident opens; the escalation scheduler asks for steps 1, 2, … */
-export async function chooseRecipients(tx: Tx | Db, incident: Pick<IncidentRow, 'setupId' | 'severity'>, step: number): Promise<Recipient[]> {
+export async function chooseRecipients(
+	tx: Tx | Db,
+	incident: Pick<IncidentRow, 'setupId' | 'severity'>,
+	step: number
+): Promise<Recipient[]> {
 	const onCall = await rotaFirst(tx, incident.setupId, step);
 	if (onCall) return onCall;
 	const people = await alertRecipients(tx, incident.setupId);

@@ -43,7 +43,10 @@ async function render(db: Db, row: OutboxRow, appOrigin: string): Promise<Render
 			setup: ctx.setup,
 			appOrigin,
 			// A group's notice is queued when its last member resolved: that moment, not the head's.
-			cleared: { at: p.groupCleared ? row.createdAt : (ctx.incident.resolvedAt ?? row.createdAt), summary: String(p.clearedSummary ?? 'The condition has cleared.') }
+			cleared: {
+				at: p.groupCleared ? row.createdAt : (ctx.incident.resolvedAt ?? row.createdAt),
+				summary: String(p.clearedSummary ?? 'The condition has cleared.')
+			}
 		});
 	}
 	// An alert pages for its whole group: it leads with the group's most telling incident and lists

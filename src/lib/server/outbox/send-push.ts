@@ -21,14 +21,18 @@ export function pushSender(db: Db, vapid: VapidKeys, appOrigin: string): Channel
 			const ctx = alert ? alert.head : row.incidentId ? await loadIncidentContext(db, row.incidentId) : null;
 			if (row.incidentId && !ctx) return failForGood('the incident no longer exists');
 			const message = pushMessage(row, ctx, appOrigin, alert?.group ?? []);
-			const details = webpush.generateRequestDetails({ endpoint: sub.endpoint, keys: { p256dh: sub.p256dh, auth: sub.auth } }, JSON.stringify(message), {
-				vapidDetails: vapid,
-				contentEncoding: 'aes128gcm',
-				TTL: 24 * 3600,
-				urgency: row.kind === 'alert' ? 'high' : 'normal',
-				// A resend after a crash replaces the first copy on the push service instead of adding one.
-				topic: row.id.replace(/-/g, '').slice(0, 32)
-			});
+			const details = webpush.generateRequestDetails(
+				{ endpoint: sub.endpoint, keys: { p256dh: sub.p256dh, auth: sub.auth } },
+				JSON.stringify(message),
+				{
+					vapidDetails: vapid,
+					contentEncoding: 'aes128gcm',
+					TTL: 24 * 3600,
+					urgency: row.kind === 'alert' ? 'high' : 'normal',
+					// A resend after a crash replaces the first copy on the push service instead of adding one.
+					topic: row.id.replace(/-/g, '').slice(0, 32)
+				}
+			);
 			let res: Response;
 			try {
 				res = await fetch(details.endpoint, {

@@ -36,7 +36,16 @@ export function webhookSender(db: Db, appOrigin: string, now: () => Date = () =>
 							run: ctx.run,
 							setup: ctx.setup,
 							...(group.length > 1
-								? { group: group.map((m) => ({ id: m.id, kind: m.kind, severity: m.severity, summary: m.summary, openedAt: new Date(m.openedAt).toISOString(), url: incidentLink(appOrigin, m.id) })) }
+								? {
+										group: group.map((m) => ({
+											id: m.id,
+											kind: m.kind,
+											severity: m.severity,
+											summary: m.summary,
+											openedAt: new Date(m.openedAt).toISOString(),
+											url: incidentLink(appOrigin, m.id)
+										}))
+									}
 								: {})
 						}
 					: { message: row.payload })

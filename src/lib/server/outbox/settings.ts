@@ -8,7 +8,8 @@ export function outboxExpiry_ms(env: NodeJS.ProcessEnv = process.env): number {
 	if (expiry_ms !== undefined) return expiry_ms;
 	const raw = env.PHASEWARDEN_OUTBOX_EXPIRY_H;
 	const hours = raw === undefined || raw === '' ? 24 : Number(raw);
-	if (!Number.isFinite(hours) || hours <= 0) throw new Error(`PHASEWARDEN_OUTBOX_EXPIRY_H must be a positive number of hours, got "${raw}"`);
+	if (!Number.isFinite(hours) || hours <= 0)
+		throw new Error(`PHASEWARDEN_OUTBOX_EXPIRY_H must be a positive number of hours, got "${raw}"`);
 	expiry_ms = hours * HOUR_MS;
 	return expiry_ms;
 }

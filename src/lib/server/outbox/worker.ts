@@ -96,7 +96,13 @@ export class DeliveryWorker {
 		await this.db
 			.update(outbox)
 			.set({ status: 'expired', leaseUntil: null })
-			.where(and(inArray(outbox.status, ['pending', 'sending']), lte(outbox.expiresAt, now), or(eq(outbox.status, 'pending'), lte(outbox.leaseUntil, now))));
+			.where(
+				and(
+					inArray(outbox.status, ['pending', 'sending']),
+					lte(outbox.expiresAt, now),
+					or(eq(outbox.status, 'pending'), lte(outbox.leaseUntil, now))
+				)
+			);
 		const claimed = await this.claim(now);
 		await Promise.all(claimed.map((row) => this.deliver(row)));
 		return claimed.length;
@@ -119,7 +125,15 @@ export class DeliveryWorker {
 			return tx
 				.update(outbox)
 				.set({ status: 'sending', leaseUntil: new Date(now.getTime() + this.lease_ms), attempts: sql`${outbox.attempts} + 1` })
-				.where(and(inArray(outbox.id, ids.map((r) => r.id)), due))
+				.where(
+					and(
+						inArray(
+							outbox.id,
+							ids.map((r) => r.id)
+						),
+						due
+					)
+				)
 				.returning();
 		});
 	}
@@ -145,7 +159,10 @@ export class DeliveryWorker {
 				outcome: outcome.ok ? 'sent' : outcome.gone ? 'gone' : outcome.retry ? 'retry' : 'failed',
 				error: outcome.ok ? null : outcome.error
 			});
-			await tx.update(outbox).set(this.nextState(row, outcome, finished)).where(eq(outbox.id, row.id));
+			await tx
+				.update(outbox)
+				.set(this.nextState(row, outcome, finished))
+				.where(eq(outbox.id, row.id));
 		});
 		this.options.onAttempt?.(row, outcome);
 	}

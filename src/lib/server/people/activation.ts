@@ -14,7 +14,8 @@ export async function setActive(db: Db, userId: string, active: boolean) {
 		if (!active && target.role === 'admin') {
 			// Lock every admin row so two admins deactivating each other at once cannot both succeed.
 			const admins = await tx.select({ id: user.id, banned: user.banned }).from(user).where(eq(user.role, 'admin')).for('update');
-			if (!admins.some((a) => a.id !== userId && !a.banned)) throw new ActivationError('active', 'the last active admin cannot be deactivated');
+			if (!admins.some((a) => a.id !== userId && !a.banned))
+				throw new ActivationError('active', 'the last active admin cannot be deactivated');
 		}
 		const [row] = await tx
 			.update(user)

@@ -14,7 +14,10 @@ export class InvitationError extends FieldProblem {}
 
 export async function createInvitation(db: Db, input: { email: string; role: Role; invitedBy: string; ttl_s: number }) {
 	const email = input.email.toLowerCase();
-	const [existing] = await db.select({ id: user.id }).from(user).where(sql`lower(${user.email}) = ${email}`);
+	const [existing] = await db
+		.select({ id: user.id })
+		.from(user)
+		.where(sql`lower(${user.email}) = ${email}`);
 	if (existing) throw new InvitationError('email', 'this address already has an account');
 	const { secret, hash } = newSecret(INVITE_PREFIX);
 	const [row] = await db

@@ -16,11 +16,14 @@ export interface InviteDeps {
 }
 
 export async function inviteAndMail(deps: InviteDeps, inviter: SessionUser, input: { email: string; role: Role }) {
-	if (!mayInvite(inviter.role, input.role)) throw new InvitationError('role', `only an admin can invite an ${input.role}; you are ${inviter.role}`);
+	if (!mayInvite(inviter.role, input.role))
+		throw new InvitationError('role', `only an admin can invite an ${input.role}; you are ${inviter.role}`);
 	if (!deps.mailer) throw new InvitationError('email', 'no mail server is set (SMTP_URL), so an invitation cannot be sent');
 	const { invitation, secret } = await createInvitation(deps.db, { ...input, invitedBy: inviter.id, ttl_s: deps.ttl_s });
 	const link = `${deps.origin}/invite/${encodeURIComponent(secret)}`;
-	const sent = await deps.mailer.send(invitationMail({ to: invitation.email, role: input.role, inviterName: inviter.name, link, expiresAt: invitation.expiresAt }));
+	const sent = await deps.mailer.send(
+		invitationMail({ to: invitation.email, role: input.role, inviterName: inviter.name, link, expiresAt: invitation.expiresAt })
+	);
 	// The link exists only in that e-mail: an invitation nobody received is withdrawn rather than left dangling.
 	if (!sent.ok) {
 		await revokeInvitation(deps.db, invitation.id);

@@ -1,7 +1,13 @@
 // The texts of the two account e-mails. Plain text only: links must survive any mail client.
 import type { MailMessage } from '../notify/mailer';
 
-export function invitationMail(input: { to: string; role: string; inviterName: string | null; link: string; expiresAt: Date }): MailMessage {
+export function invitationMail(input: {
+	to: string;
+	role: string;
+	inviterName: string | null;
+	link: string;
+	expiresAt: Date;
+}): MailMessage {
 	const who = input.inviterName ?? 'An admin';
 	return {
 		to: input.to,

@@ -57,7 +57,9 @@ export async function startPushCatcher(): Promise<PushCatcher> {
 			if (req.headers['content-encoding'] !== 'aes128gcm') return void res.writeHead(400).end('expected Content-Encoding: aes128gcm');
 			let payload: unknown;
 			try {
-				const text = decrypt(Buffer.concat(chunks), { version: 'aes128gcm', privateKey: device.ecdh, authSecret: device.auth }).toString('utf8');
+				const text = decrypt(Buffer.concat(chunks), { version: 'aes128gcm', privateKey: device.ecdh, authSecret: device.auth }).toString(
+					'utf8'
+				);
 				try {
 					payload = JSON.parse(text);
 				} catch {

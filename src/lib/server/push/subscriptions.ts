@@ -12,7 +12,10 @@ const base64url = z.string().regex(/^[A-Za-z0-9_-]+=*$/, 'must be base64url');
 /** The browser's PushSubscription as JSON, plus a name for the device. */
 export const newSubscriptionSchema = z.object({
 	endpoint: z.url({ message: 'endpoint must be a URL' }),
-	keys: z.object({ p256dh: base64url.min(80, 'keys.p256dh is too short for a P-256 key'), auth: base64url.min(16, 'keys.auth is too short') }),
+	keys: z.object({
+		p256dh: base64url.min(80, 'keys.p256dh is too short for a P-256 key'),
+		auth: base64url.min(16, 'keys.auth is too short')
+	}),
 	label: z.string().trim().max(80, 'label is at most 80 characters').default('')
 });
 
@@ -40,7 +43,13 @@ export async function registerSubscription(db: Db, userId: string, input: z.infe
 
 export function listSubscriptions(db: Db, userId: string) {
 	return db
-		.select({ id: pushSubscriptions.id, endpoint: pushSubscriptions.endpoint, label: pushSubscriptions.label, createdAt: pushSubscriptions.createdAt, lastSentAt: pushSubscriptions.lastSentAt })
+		.select({
+			id: pushSubscriptions.id,
+			endpoint: pushSubscriptions.endpoint,
+			label: pushSubscriptions.label,
+			createdAt: pushSubscriptions.createdAt,
+			lastSentAt: pushSubscriptions.lastSentAt
+		})
 		.from(pushSubscriptions)
 		.where(eq(pushSubscriptions.userId, userId))
 		.orderBy(desc(pushSubscriptions.createdAt));

@@ -25,7 +25,11 @@ export function loadVapidKeys(dataDir: string, env: NodeJS.ProcessEnv = process.
 	if (existsSync(file)) {
 		const stored = JSON.parse(readFileSync(file, 'utf8')) as Partial<VapidKeys>;
 		if (!stored.publicKey || !stored.privateKey) throw new Error(`${file}: publicKey or privateKey is missing`);
-		return { publicKey: stored.publicKey, privateKey: stored.privateKey, subject: env.PHASEWARDEN_VAPID_SUBJECT || stored.subject || subject };
+		return {
+			publicKey: stored.publicKey,
+			privateKey: stored.privateKey,
+			subject: env.PHASEWARDEN_VAPID_SUBJECT || stored.subject || subject
+		};
 	}
 	const keys = webpush.generateVAPIDKeys();
 	const created = { ...keys, subject };

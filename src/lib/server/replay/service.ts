@@ -32,7 +32,11 @@ export async function replayStoredRun(db: Db, run: RunRow, rulesInput: unknown, 
 	]);
 	// Late frames (filled a gap after a higher seq) were stored but never fed to the live detectors.
 	const pages = pagesOf(framePages(db, run.id, { pageSize: control.pageSize ?? REPLAY_PAGE_ROWS, skipLate: true, withoutIq: true }));
-	const { frameCount, incidents: replayed } = await replayInWorker(pages, { rules, run: info, endedAt_ms: run.endedAt?.getTime() }, control);
+	const { frameCount, incidents: replayed } = await replayInWorker(
+		pages,
+		{ rules, run: info, endedAt_ms: run.endedAt?.getTime() },
+		control
+	);
 	const actual = await asReplayable(db, run.id, actualList.incidents);
 	const comparison = compareReplay(actual, replayed);
 	return {

@@ -46,7 +46,12 @@ async function runsInSpan(db: Db, setupIds: string[], since_ms: number, until_ms
 		.select({ run: runs, setupName: setups.name })
 		.from(runs)
 		.innerJoin(setups, eq(setups.id, runs.setupId))
-		.where(inArray(runs.id, ids.map((r) => r.runId)))
+		.where(
+			inArray(
+				runs.id,
+				ids.map((r) => r.runId)
+			)
+		)
 		.orderBy(asc(setups.name), asc(runs.startedAt));
 }
 

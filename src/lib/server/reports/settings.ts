@@ -47,7 +47,10 @@ function fromRow(row: typeof reportSettings.$inferSelect): ReportSettings {
 
 /** The person's settings, created with the defaults (armed at `now_ms`) on first use. */
 export async function getReportSettings(db: Db, userId: string, now_ms: number): Promise<ReportSettings> {
-	await db.insert(reportSettings).values({ userId, armedAt: new Date(now_ms) }).onConflictDoNothing();
+	await db
+		.insert(reportSettings)
+		.values({ userId, armedAt: new Date(now_ms) })
+		.onConflictDoNothing();
 	const [row] = await db.select().from(reportSettings).where(eq(reportSettings.userId, userId));
 	return fromRow(row);
 }

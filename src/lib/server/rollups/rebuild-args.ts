@@ -17,7 +17,7 @@ export function parseRebuildArgs(argv: string[]): RebuildArgs {
 			allowPositionals: false
 		}));
 	} catch (err) {
-		throw new RangeError((err as Error).message);
+		throw new RangeError((err as Error).message, { cause: err });
 	}
 	if (values.run !== undefined && values.all) throw new RangeError('give either --run ID or --all, not both');
 	if (values.run !== undefined) {

@@ -92,7 +92,6 @@ export class RollupCache {
 		const held = this.newest.get(r.resolution_s);
 		if (!held || r.bucket_t >= held.bucket_t) this.newest.set(r.resolution_s, r);
 	}
-
 }
 
 function chunks<T>(items: T[], size: number): T[][] {

@@ -57,7 +57,14 @@ export async function putSetupRules(db: Db, setupId: string, input: unknown, act
 
 export async function ruleHistory(db: Db, setupId: string) {
 	return db
-		.select({ id: ruleChanges.id, at: ruleChanges.at, field: ruleChanges.field, oldValue: ruleChanges.oldValue, newValue: ruleChanges.newValue, actorName: user.name })
+		.select({
+			id: ruleChanges.id,
+			at: ruleChanges.at,
+			field: ruleChanges.field,
+			oldValue: ruleChanges.oldValue,
+			newValue: ruleChanges.newValue,
+			actorName: user.name
+		})
 		.from(ruleChanges)
 		.leftJoin(user, eq(user.id, ruleChanges.actorId))
 		.where(eq(ruleChanges.setupId, setupId))

@@ -42,7 +42,11 @@ async function storedEngine(db: Db, run: RunRow): Promise<DetectorEngine> {
 }
 
 /** Null when it cannot be worked out (logged): the run page then says so, and the rest of the run still loads. */
-export async function runDetectorStatus(db: Db, ingest: Pick<Ingest, 'engineStatus'> | null, run: RunRow): Promise<DetectorStatus[] | null> {
+export async function runDetectorStatus(
+	db: Db,
+	ingest: Pick<Ingest, 'engineStatus'> | null,
+	run: RunRow
+): Promise<DetectorStatus[] | null> {
 	try {
 		const lastFrame = await latestFrameAux(db, run.id);
 		const live = ingest?.engineStatus(run.id, { lastFrame }) ?? null;

@@ -26,7 +26,10 @@ export function resolveIqSpan(run: Pick<RunRow, 'lastFrameT'>, span: IqSpan): { 
 export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFrameT'>, span: IqSpan = {}): Promise<RunIq> {
 	const { from_ms, to_ms } = resolveIqSpan(run, span);
 	const where: SQL[] = [eq(frames.runId, run.id), isNotNull(frames.iq), gte(frames.t, from_ms), lte(frames.t, to_ms)];
-	const [{ n }] = await db.select({ n: count() }).from(frames).where(and(...where));
+	const [{ n }] = await db
+		.select({ n: count() })
+		.from(frames)
+		.where(and(...where));
 	const sampledEvery = Math.max(1, Math.ceil(n / IQ_FRAMES_MAX));
 	if (sampledEvery > 1) where.push(sql`${frames.seq} % ${sampledEvery} = 0`);
 	const rows = await db
@@ -36,7 +39,13 @@ export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFra
 		.orderBy(asc(frames.seq))
 		.limit(IQ_FRAMES_MAX);
 	const sum = sumIq(rows.map((r) => r.iq));
-	const occupancy = { counts: new Array<number>(run.states).fill(0), vacuum: 0, shots: 0, fromSeq: rows[0]?.seq ?? null, toSeq: rows.at(-1)?.seq ?? null };
+	const occupancy = {
+		counts: new Array<number>(run.states).fill(0),
+		vacuum: 0,
+		shots: 0,
+		fromSeq: rows[0]?.seq ?? null,
+		toSeq: rows.at(-1)?.seq ?? null
+	};
 	for (const r of rows) {
 		r.counts.forEach((c, i) => {
 			if (i < run.states) occupancy.counts[i] += c;
@@ -44,5 +53,16 @@ export async function runIq(db: Db, run: Pick<RunRow, 'id' | 'states' | 'lastFra
 		occupancy.vacuum += r.vacuum;
 		occupancy.shots += r.shots;
 	}
-	return { from_ms, to_ms, firstFrame_ms: rows[0]?.t ?? null, lastFrame_ms: rows.at(-1)?.t ?? null, states: run.states, framesWithIq: n, sampledEvery, sum, lobes: sum ? lobeCentres(sum, run.states) : [], occupancy };
+	return {
+		from_ms,
+		to_ms,
+		firstFrame_ms: rows[0]?.t ?? null,
+		lastFrame_ms: rows.at(-1)?.t ?? null,
+		states: run.states,
+		framesWithIq: n,
+		sampledEvery,
+		sum,
+		lobes: sum ? lobeCentres(sum, run.states) : [],
+		occupancy
+	};
 }

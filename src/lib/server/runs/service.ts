@@ -11,7 +11,10 @@ export type RunRow = typeof runs.$inferSelect;
 
 /** The run with this agent key on the setup, created on first sight. */
 export async function findOrCreateRun(db: Db, setupId: string, desc_: RunDescription, agent: string): Promise<RunRow> {
-	const [existing] = await db.select().from(runs).where(and(eq(runs.setupId, setupId), eq(runs.key, desc_.key)));
+	const [existing] = await db
+		.select()
+		.from(runs)
+		.where(and(eq(runs.setupId, setupId), eq(runs.key, desc_.key)));
 	if (existing) return existing;
 	const [row] = await db
 		.insert(runs)
@@ -30,7 +33,10 @@ export async function findOrCreateRun(db: Db, setupId: string, desc_: RunDescrip
 		.returning();
 	if (row) return row;
 	// Two hellos raced; the other one created it.
-	const [again] = await db.select().from(runs).where(and(eq(runs.setupId, setupId), eq(runs.key, desc_.key)));
+	const [again] = await db
+		.select()
+		.from(runs)
+		.where(and(eq(runs.setupId, setupId), eq(runs.key, desc_.key)));
 	return again;
 }
 

@@ -28,7 +28,8 @@ export async function startSmsFake(): Promise<SmsFake> {
 	let nextId = 1;
 
 	const server = http.createServer((req, res) => {
-		const reply = (status: number, body: unknown) => res.writeHead(status, { 'content-type': 'application/json' }).end(JSON.stringify(body));
+		const reply = (status: number, body: unknown) =>
+			res.writeHead(status, { 'content-type': 'application/json' }).end(JSON.stringify(body));
 		const chunks: Buffer[] = [];
 		req.on('data', (c: Buffer) => chunks.push(c));
 		req.on('end', () => {
@@ -44,9 +45,24 @@ export async function startSmsFake(): Promise<SmsFake> {
 			const body = form.get('Body') ?? '';
 			if (!/^\+[1-9]\d{6,14}$/.test(to)) return reply(400, { code: 21211, message: `invalid 'To' phone number: ${to}`, status: 400 });
 			if (!body) return reply(400, { code: 21602, message: 'message body is required', status: 400 });
-			const sms: CaughtSms = { id: nextId++, sid: `SM${randomBytes(16).toString('hex')}`, to, from: form.get('From') ?? '', body, receivedAt: new Date() };
+			const sms: CaughtSms = {
+				id: nextId++,
+				sid: `SM${randomBytes(16).toString('hex')}`,
+				to,
+				from: form.get('From') ?? '',
+				body,
+				receivedAt: new Date()
+			};
 			caught.push(sms);
-			reply(201, { sid: sms.sid, account_sid: accountSid, to, from: sms.from, body, status: 'queued', date_created: sms.receivedAt.toUTCString() });
+			reply(201, {
+				sid: sms.sid,
+				account_sid: accountSid,
+				to,
+				from: sms.from,
+				body,
+				status: 'queued',
+				date_created: sms.receivedAt.toUTCString()
+			});
 		});
 	});
 	await new Promise<void>((resolve, reject) => {

@@ -18,7 +18,12 @@ export const phoneSchema = z.object({
 		.transform((s) => s.replace(/[\s().-]/g, ''))
 		.pipe(z.string().regex(/^\+[1-9]\d{6,14}$/, 'number must be in international form, such as +41 44 123 45 67'))
 });
-export const codeSchema = z.object({ code: z.string().trim().regex(/^\d{6}$/, 'code is the 6 digits from the text message') });
+export const codeSchema = z.object({
+	code: z
+		.string()
+		.trim()
+		.regex(/^\d{6}$/, 'code is the 6 digits from the text message')
+});
 
 export class PhoneError extends Error {
 	constructor(
@@ -45,8 +50,18 @@ export async function startVerification(db: Db, sms: SmsClient | null, userId: s
 		throw new PhoneError(429, 'a code was just sent to this number; wait half a minute before asking for another');
 	}
 	const code = String(randomInt(0, 1_000_000)).padStart(6, '0');
-	const values = { number, verifiedAt: null, codeHash: hashCode(userId, code), codeExpiresAt: new Date(now.getTime() + CODE_TTL_MS), codeAttempts: 0, updatedAt: now };
-	await db.insert(phoneNumbers).values({ userId, ...values }).onConflictDoUpdate({ target: phoneNumbers.userId, set: values });
+	const values = {
+		number,
+		verifiedAt: null,
+		codeHash: hashCode(userId, code),
+		codeExpiresAt: new Date(now.getTime() + CODE_TTL_MS),
+		codeAttempts: 0,
+		updatedAt: now
+	};
+	await db
+		.insert(phoneNumbers)
+		.values({ userId, ...values })
+		.onConflictDoUpdate({ target: phoneNumbers.userId, set: values });
 	const sent = await sms.send(number, `Your Phasewarden code is ${code}. It expires in 10 minutes.`);
 	if (!sent.ok) throw new PhoneError(502, `the text could not be sent: ${sent.error}`);
 }
@@ -58,10 +73,16 @@ export async function confirmCode(db: Db, userId: string, code: string, now = ne
 	if (row.codeAttempts >= MAX_GUESSES) throw new PhoneError(409, 'too many wrong codes: ask for a new one');
 	const good = timingSafeEqual(Buffer.from(hashCode(userId, code)), Buffer.from(row.codeHash));
 	if (!good) {
-		await db.update(phoneNumbers).set({ codeAttempts: row.codeAttempts + 1 }).where(eq(phoneNumbers.userId, userId));
+		await db
+			.update(phoneNumbers)
+			.set({ codeAttempts: row.codeAttempts + 1 })
+			.where(eq(phoneNumbers.userId, userId));
 		throw new PhoneError(400, 'that code is not right');
 	}
-	await db.update(phoneNumbers).set({ verifiedAt: now, codeHash: null, codeExpiresAt: null, codeAttempts: 0, updatedAt: now }).where(eq(phoneNumbers.userId, userId));
+	await db
+		.update(phoneNumbers)
+		.set({ verifiedAt: now, codeHash: null, codeExpiresAt: null, codeAttempts: 0, updatedAt: now })
+		.where(eq(phoneNumbers.userId, userId));
 }
 
 export async function removePhone(db: Db, userId: string) {

@@ -59,7 +59,9 @@ export async function runSummary(db: Db, runOrId: string | RunRow, req: SummaryR
 		lockedFromFrames: locked,
 		lockThreshold: threshold,
 		expectedPairs: rules.occupancy_imbalance.expectedPairs,
-		symmetric: isSymmetric(rules.occupancy_imbalance, { operatingPoint: detuning === undefined ? undefined : { detuning } } as ParsedRunInfo),
+		symmetric: isSymmetric(rules.occupancy_imbalance, {
+			operatingPoint: detuning === undefined ? undefined : { detuning }
+		} as ParsedRunInfo),
 		gaps,
 		incidents,
 		annotations

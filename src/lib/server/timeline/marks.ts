@@ -46,7 +46,12 @@ export async function incidentMarks(db: Db, run: RunRow): Promise<IncidentMark[]
 }
 
 export async function timelineMarks(db: Db, run: RunRow): Promise<TimelineMarks> {
-	const [gaps, incidentList, annotations, silenceRows] = await Promise.all([gapMarks(db, run.id), incidentMarks(db, run), listAnnotations(db, run.id), silencesOfRun(db, run.id)]);
+	const [gaps, incidentList, annotations, silenceRows] = await Promise.all([
+		gapMarks(db, run.id),
+		incidentMarks(db, run),
+		listAnnotations(db, run.id),
+		silencesOfRun(db, run.id)
+	]);
 	const lastAt = run.lastFrameAt?.getTime() ?? null;
 	// Silences are set on the server's clock; placed on the agent's like the incidents.
 	const onAgentClock = (d: Date) => agentTimeOf(d.getTime(), run.lastFrameT, lastAt);

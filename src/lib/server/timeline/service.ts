@@ -129,7 +129,11 @@ export async function runTimeline(db: Db, run: RunRow, q: TimelineQuery = {}): P
 		span: { from_ms, to_ms },
 		buckets: buckets.map((b) => {
 			const T = b.aux[TEMPERATURE_AUX]?.mean ?? null;
-			return { ...b, switches_band: expectedBand(b.expected_switches, uSwitch, T), escapes_band: expectedBand(b.expected_escapes, uEscape, T) };
+			return {
+				...b,
+				switches_band: expectedBand(b.expected_switches, uSwitch, T),
+				escapes_band: expectedBand(b.expected_escapes, uEscape, T)
+			};
 		})
 	};
 }

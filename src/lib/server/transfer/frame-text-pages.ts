@@ -50,7 +50,8 @@ export function csvLineSql(layout: FrameCsvLayout): SQL {
 
 /** One wire-format frame per line, keys in the wire's order, optional fields only when stored. */
 export function ndjsonLineSql(): SQL {
-	const optional = (key: string, value: SQL, column: SQL) => sql`CASE WHEN ${column} IS NULL THEN '' ELSE ${`,"${key}":`}::text || ${value} END`;
+	const optional = (key: string, value: SQL, column: SQL) =>
+		sql`CASE WHEN ${column} IS NULL THEN '' ELSE ${`,"${key}":`}::text || ${value} END`;
 	return sql.join(
 		[
 			sql`'{"seq":' || seq`,

@@ -55,16 +55,34 @@ function rulesFor(run: RunRow | null, states: number): LineRules {
 }
 
 function cleanName(fileName: string) {
-	const base = fileName.replace(/[\u0000-\u001f\u007f]/g, '').replace(/[\ud800-\udfff]/g, '').trim() || 'a file';
+	const base =
+		fileName
+			// Control characters are what this strips: a file name is shown back and written into headers.
+			// eslint-disable-next-line no-control-regex
+			.replace(/[\u0000-\u001f\u007f]/g, '')
+			.replace(/[\ud800-\udfff]/g, '')
+			.trim() || 'a file';
 	return `Imported from ${base}`.slice(0, 200);
 }
 
-async function newRunFor(db: Db, setup: NonNullable<Awaited<ReturnType<typeof getSetup>>>, key: string | undefined, fileName: string, now: Date) {
+async function newRunFor(
+	db: Db,
+	setup: NonNullable<Awaited<ReturnType<typeof getSetup>>>,
+	key: string | undefined,
+	fileName: string,
+	now: Date
+) {
 	const stamp = now.toISOString().slice(0, 19).replace(/[-:]/g, '').replace('T', '-');
 	const run = await findOrCreateRun(
 		db,
 		setup.id,
-		{ key: key ?? `import-${stamp}-${randomUUID().slice(0, 4)}`, name: cleanName(fileName), order: setup.order, states: setup.states, mode_GHz: setup.modeGHz },
+		{
+			key: key ?? `import-${stamp}-${randomUUID().slice(0, 4)}`,
+			name: cleanName(fileName),
+			order: setup.order,
+			states: setup.states,
+			mode_GHz: setup.modeGHz
+		},
 		'file import'
 	);
 	// No agent will stream it: ended at once, so no silence alarm is raised while it fills.
@@ -81,7 +99,10 @@ export async function importFrameFile(
 	const setup = await getSetup(db, setupId);
 	if (!setup) throw new ImportRefused(404, 'no setup with this id');
 	const [existing] = options.runKey
-		? await db.select().from(runs).where(and(eq(runs.setupId, setupId), eq(runs.key, options.runKey)))
+		? await db
+				.select()
+				.from(runs)
+				.where(and(eq(runs.setupId, setupId), eq(runs.key, options.runKey)))
 		: [];
 	options.onPhase?.({ phase: 'checking' });
 	const check = await checkFrameFile(file.stream(), rulesFor(existing ?? null, setup.states));
@@ -96,7 +117,8 @@ export async function importFrameFile(
 	if (check.frames === 0) throw new ImportRefused(400, 'the file holds no frames (one JSON frame per line expected); nothing was stored');
 
 	const run = existing ?? (await newRunFor(db, setup, options.runKey, options.fileName, options.now ?? new Date()));
-	if (run.states !== (existing?.states ?? setup.states)) throw new ImportRefused(409, `run "${run.key}" has ${run.states} states; nothing was stored`);
+	if (run.states !== (existing?.states ?? setup.states))
+		throw new ImportRefused(409, `run "${run.key}" has ${run.states} states; nothing was stored`);
 	const outcome: ImportOutcome = {
 		runId: run.id,
 		runKey: run.key,

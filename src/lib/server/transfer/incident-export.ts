@@ -18,8 +18,23 @@ export type IncidentExportQuery = z.infer<typeof incidentExportQuery>;
 
 const PAGE_ROWS = 1000;
 const HEADER = [
-	'id', 'setup', 'run_id', 'run', 'kind', 'key', 'severity', 'state', 'summary', 'opened_utc', 'opened_t_ms', 'opened_seq',
-	'acknowledged_utc', 'acknowledged_by', 'resolved_utc', 'resolved_by', 'condition_active'
+	'id',
+	'setup',
+	'run_id',
+	'run',
+	'kind',
+	'key',
+	'severity',
+	'state',
+	'summary',
+	'opened_utc',
+	'opened_t_ms',
+	'opened_seq',
+	'acknowledged_utc',
+	'acknowledged_by',
+	'resolved_utc',
+	'resolved_by',
+	'condition_active'
 ];
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
@@ -58,8 +73,23 @@ export async function* incidentsCsv(db: Db, q: IncidentExportQuery): AsyncGenera
 		if (rows.length === 0) return;
 		yield csvLines(
 			rows.map(({ i, runName, setupName, ackedBy, resolvedBy }) => [
-				i.id, setupName, i.runId, runName, i.kind, i.key, i.severity, i.state, i.summary, iso(i.openedAt), i.openedT, i.openedSeq,
-				iso(i.acknowledgedAt), ackedBy, iso(i.resolvedAt), resolvedBy, i.conditionActive ? 'true' : 'false'
+				i.id,
+				setupName,
+				i.runId,
+				runName,
+				i.kind,
+				i.key,
+				i.severity,
+				i.state,
+				i.summary,
+				iso(i.openedAt),
+				i.openedT,
+				i.openedSeq,
+				iso(i.acknowledgedAt),
+				ackedBy,
+				iso(i.resolvedAt),
+				resolvedBy,
+				i.conditionActive ? 'true' : 'false'
 			])
 		);
 		const last = rows[rows.length - 1];

@@ -38,7 +38,10 @@ export async function exportSeqRange(db: Db, run: Pick<RunRow, 'id' | 'lastSeq'>
 	const where: SQL[] = [eq(frameRollups.runId, run.id), eq(frameRollups.resolutionS, FINEST_S)];
 	if (span.from_ms !== undefined) where.push(gte(frameRollups.bucketT, bucketStart(span.from_ms, FINEST_S)));
 	if (span.to_ms !== undefined) where.push(lt(frameRollups.bucketT, span.to_ms));
-	const [r] = await db.select({ first: min(frameRollups.firstSeq), last: max(frameRollups.lastSeq) }).from(frameRollups).where(and(...where));
+	const [r] = await db
+		.select({ first: min(frameRollups.firstSeq), last: max(frameRollups.lastSeq) })
+		.from(frameRollups)
+		.where(and(...where));
 	if (r?.first == null || r.last == null) return null;
 	return { afterSeq: r.first - 1, toSeq: Math.min(r.last, run.lastSeq) };
 }
@@ -53,25 +56,42 @@ export async function csvLayoutOf(db: Db, run: Pick<RunRow, 'id' | 'states'>): P
 		db.execute<{ name: string }>(
 			sql`SELECT DISTINCT jsonb_object_keys(aux) AS name FROM frame_rollups WHERE run_id = ${run.id} AND resolution_s = ${COARSEST_S} ORDER BY name`
 		),
-		db.select({ n: count() }).from(frameRollups).where(and(coarse, isNotNull(frameRollups.transitions)))
+		db
+			.select({ n: count() })
+			.from(frameRollups)
+			.where(and(coarse, isNotNull(frameRollups.transitions)))
 	]);
 	return { states: run.states, transitions: withTransitions[0].n > 0, auxNames: names.rows.map((r) => r.name) };
 }
 
 /** How many frames the export will hold: the run's count, or a count over the span. */
-export async function exportFrameCount(db: Db, run: Pick<RunRow, 'id' | 'frameCount'>, span: ExportSpan, range: SeqRange | null): Promise<number> {
+export async function exportFrameCount(
+	db: Db,
+	run: Pick<RunRow, 'id' | 'frameCount'>,
+	span: ExportSpan,
+	range: SeqRange | null
+): Promise<number> {
 	if (span.from_ms === undefined && span.to_ms === undefined) return run.frameCount;
 	if (!range) return 0;
 	const where: SQL[] = [eq(frames.runId, run.id), gt(frames.seq, range.afterSeq), lte(frames.seq, range.toSeq)];
 	if (span.from_ms !== undefined) where.push(gte(frames.t, span.from_ms));
 	if (span.to_ms !== undefined) where.push(lt(frames.t, span.to_ms));
-	const [{ n }] = await db.select({ n: count() }).from(frames).where(and(...where));
+	const [{ n }] = await db
+		.select({ n: count() })
+		.from(frames)
+		.where(and(...where));
 	return n;
 }
 
 // Both exports stop at the run's last seq when the download began (exportSeqRange), so a live run's
 // file matches the frame count announced in its header (frames that fill gaps meanwhile may still join).
-export async function* runCsv(db: Db, runId: string, range: SeqRange | null, layout: FrameCsvLayout, span: ExportSpan): AsyncGenerator<string> {
+export async function* runCsv(
+	db: Db,
+	runId: string,
+	range: SeqRange | null,
+	layout: FrameCsvLayout,
+	span: ExportSpan
+): AsyncGenerator<string> {
 	yield csvLines([frameCsvHeader(layout)]);
 	if (!range) return;
 	yield* frameTextPages(db, runId, csvLineSql(layout), { ...range, fromT: span.from_ms, toT: span.to_ms }, CSV_PAGE_ROWS);

@@ -12,7 +12,10 @@ export { newWebhookSchema } from '../../setups/forms';
 
 export async function addWebhook(db: Db, setupId: string, input: z.infer<typeof newWebhookSchema>, createdBy: string) {
 	const secret = newWebhookSecret();
-	const [row] = await db.insert(setupWebhooks).values({ id: randomUUID(), setupId, url: input.url, label: input.label, secret, createdBy }).returning();
+	const [row] = await db
+		.insert(setupWebhooks)
+		.values({ id: randomUUID(), setupId, url: input.url, label: input.label, secret, createdBy })
+		.returning();
 	return { webhook: publicWebhook(row), secret };
 }
 

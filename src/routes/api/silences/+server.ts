@@ -17,7 +17,9 @@ export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'observer');
 	const q = parseQuery(event.url, querySchema);
 	const { db } = await getRuntime();
-	return json({ silences: await listSilences(db, { setupId: q.setup, runId: q.run, activeOnly: q.active === '1' || q.active === 'true' }) });
+	return json({
+		silences: await listSilences(db, { setupId: q.setup, runId: q.run, activeOnly: q.active === '1' || q.active === 'true' })
+	});
 };
 
 export const POST: RequestHandler = async (event) => {

@@ -25,7 +25,15 @@ export const load: PageServerLoad = async (event) => {
 	const evidence = run ? await incidentEvidenceView(db, found.incident, run) : null;
 	// Dates as the JSON API gives them, so the page and its components read one shape.
 	const wire = JSON.parse(JSON.stringify(found)) as { incident: Incident; events: IncidentEvent[] };
-	const group = JSON.parse(JSON.stringify(await incidentGroup(db, event.params.id))) as { id: string; kind: string; severity: string; state: string; summary: string; openedAt: string; head: boolean }[];
+	const group = JSON.parse(JSON.stringify(await incidentGroup(db, event.params.id))) as {
+		id: string;
+		kind: string;
+		severity: string;
+		state: string;
+		summary: string;
+		openedAt: string;
+		head: boolean;
+	}[];
 	return { ...wire, evidence, states: run?.states ?? null, group, noteForm: await superValidate(zod4(incidentNoteSchema)) };
 };
 

@@ -18,7 +18,8 @@ import type { Actions, PageServerLoad, RequestEvent } from './$types';
 const tokenForm = () => superValidate(zod4(agentTokenSchema), { id: 'createToken' });
 const webhookForm = () => superValidate(zod4(newWebhookSchema), { id: 'addWebhook' });
 const memberForm = () => superValidate(zod4(memberSchema), { id: 'addMember' });
-const retentionForm = (days: number | null) => superValidate({ rawRetentionDays: days }, zod4(retentionSchema), { id: 'setRetention', errors: false });
+const retentionForm = (days: number | null) =>
+	superValidate({ rawRetentionDays: days }, zod4(retentionSchema), { id: 'setRetention', errors: false });
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, 'observer');
@@ -39,7 +40,18 @@ export const load: PageServerLoad = async (event) => {
 		memberForm()
 	]);
 	// better-auth keeps role as nullable text; the people shown are the ones the role column names.
-	return { setup, runs: runs.slice(0, 50), tokens, members: members as Person[], people: people as Person[] | null, webhooks, tokenForm: newToken, webhookForm: newWebhook, retentionForm: retention, memberForm: newMember };
+	return {
+		setup,
+		runs: runs.slice(0, 50),
+		tokens,
+		members: members as Person[],
+		people: people as Person[] | null,
+		webhooks,
+		tokenForm: newToken,
+		webhookForm: newWebhook,
+		retentionForm: retention,
+		memberForm: newMember
+	};
 };
 
 function operatorOnly(event: RequestEvent, intent: string) {
@@ -70,9 +82,11 @@ export const actions: Actions = {
 		const denied = operatorOnly(event, 'removeWebhook');
 		if (denied) return denied;
 		const hookId = (await event.request.formData()).get('hookId');
-		if (typeof hookId !== 'string' || !hookId) return kitFail(400, { intent: 'removeWebhook', message: 'The form did not say which webhook (field "hookId").' });
+		if (typeof hookId !== 'string' || !hookId)
+			return kitFail(400, { intent: 'removeWebhook', message: 'The form did not say which webhook (field "hookId").' });
 		const { db } = await getRuntime();
-		if (!(await removeWebhook(db, event.params.id, hookId))) return kitFail(404, { intent: 'removeWebhook', message: 'no webhook with this id on this setup' });
+		if (!(await removeWebhook(db, event.params.id, hookId)))
+			return kitFail(404, { intent: 'removeWebhook', message: 'no webhook with this id on this setup' });
 		return { intent: 'removeWebhook', removed: hookId };
 	},
 	setRetention: async (event) => {
@@ -97,7 +111,8 @@ export const actions: Actions = {
 		const denied = operatorOnly(event, 'revokeToken');
 		if (denied) return denied;
 		const tokenId = (await event.request.formData()).get('tokenId');
-		if (typeof tokenId !== 'string' || !tokenId) return kitFail(400, { intent: 'revokeToken', message: 'The form did not say which token (field "tokenId").' });
+		if (typeof tokenId !== 'string' || !tokenId)
+			return kitFail(400, { intent: 'revokeToken', message: 'The form did not say which token (field "tokenId").' });
 		const { db, ingest } = await getRuntime();
 		const token = await revokeAgentToken(db, event.params.id, tokenId, event.locals.user!.id);
 		if (!token) return kitFail(404, { intent: 'revokeToken', message: 'no active token with this id on this setup' });
@@ -117,7 +132,8 @@ export const actions: Actions = {
 		const denied = operatorOnly(event, 'removeMember');
 		if (denied) return denied;
 		const userId = (await event.request.formData()).get('userId');
-		if (typeof userId !== 'string' || !userId) return kitFail(400, { intent: 'removeMember', message: 'The form did not say whom to remove.' });
+		if (typeof userId !== 'string' || !userId)
+			return kitFail(400, { intent: 'removeMember', message: 'The form did not say whom to remove.' });
 		const { db } = await getRuntime();
 		if (!(await getSetup(db, event.params.id))) return kitFail(404, { intent: 'removeMember', message: 'This setup no longer exists.' });
 		await removeMember(db, event.params.id, userId);

@@ -9,7 +9,15 @@ import { getSetupRules } from '$lib/server/rules/service';
 import { getRuntime } from '$lib/server/runtime';
 import { getRun, listFrames } from '$lib/server/runs/service';
 import { getSetup } from '$lib/server/setups/service';
-import { draftFromForm, fromDraft, messageField, resolveSpecs, applyRowEdit, toDraft, type Draft } from '../../../setups/[id]/rules/rules-form';
+import {
+	draftFromForm,
+	fromDraft,
+	messageField,
+	resolveSpecs,
+	applyRowEdit,
+	toDraft,
+	type Draft
+} from '../../../setups/[id]/rules/rules-form';
 import type { ReplayResult } from './replay-view';
 import type { Actions, PageServerLoad } from './$types';
 

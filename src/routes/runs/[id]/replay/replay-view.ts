@@ -6,7 +6,6 @@ import { clockText, dayMonthText, sameDay, zonedParts } from '$lib/ui/zoned-time
 
 export type { ReplayIncident };
 
-
 /** POST /api/runs/:id/replay's answer. */
 export interface ReplayResult {
 	rules: Record<string, unknown>;
@@ -153,7 +152,6 @@ export function shiftWords(shift_ms: number, formatDuration: (s: number) => stri
 	if (Math.abs(shift_ms) < 500) return 'at the same time';
 	return `${formatDuration(Math.abs(shift_ms) / 1000)} ${shift_ms > 0 ? 'later' : 'earlier'}`;
 }
-
 
 /**
  * A time on the run's clock to the second ("00:53:32"), with the day in front when it is not the

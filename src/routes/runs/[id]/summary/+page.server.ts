@@ -12,7 +12,8 @@ import { runSummary, SummaryError } from '$lib/server/summary/service';
 import type { PageServerLoad } from './$types';
 
 const localTime = z
-	.string().regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}$/, 'must be a date and time such as 2026-12-01T08:00')
+	.string()
+	.regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}$/, 'must be a date and time such as 2026-12-01T08:00')
 	.or(z.literal(''))
 	.optional();
 const wallQuery = z.object({ from: localTime, to: localTime });

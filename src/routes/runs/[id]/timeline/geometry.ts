@@ -16,7 +16,10 @@ export function yOf(value: number, lo: number, hi: number, h: number): number {
 export function bandPath(points: { x0: number; x1: number; lo: number; hi: number }[]): string {
 	if (points.length === 0) return '';
 	const top = points.map((p, i) => `${i ? 'L' : 'M'}${p.x0.toFixed(2)},${p.hi.toFixed(2)}L${p.x1.toFixed(2)},${p.hi.toFixed(2)}`).join('');
-	const bottom = [...points].reverse().map((p) => `L${p.x1.toFixed(2)},${p.lo.toFixed(2)}L${p.x0.toFixed(2)},${p.lo.toFixed(2)}`).join('');
+	const bottom = [...points]
+		.reverse()
+		.map((p) => `L${p.x1.toFixed(2)},${p.lo.toFixed(2)}L${p.x0.toFixed(2)},${p.lo.toFixed(2)}`)
+		.join('');
 	return `${top}${bottom}Z`;
 }
 
@@ -26,7 +29,10 @@ export function runsOf<T>(items: T[], keep: (item: T) => boolean): T[][] {
 	let current: T[] = [];
 	for (const item of items) {
 		if (keep(item)) current.push(item);
-		else if (current.length) (out.push(current), (current = []));
+		else if (current.length) {
+			out.push(current);
+			current = [];
+		}
 	}
 	if (current.length) out.push(current);
 	return out;

@@ -39,7 +39,16 @@ export const load: PageServerLoad = async (event) => {
 	return {
 		setup: { id: setup.id, name: setup.name },
 		mayEdit: hasRole(user.role, 'operator'),
-		...JSON.parse(JSON.stringify(view)) as { timeZone: string; sharedFrom: { id: string; name: string } | null; followers: { id: string; name: string }[]; followable: { id: string; name: string }[]; now: { primary: string | null; secondary: string | null }; members: { id: string; name: string }[]; overrides: { id: string; name: string; from: string; until: string; note: string }[]; spans: { from: string; until: string; primary: string | null; secondary: string | null }[] },
+		...(JSON.parse(JSON.stringify(view)) as {
+			timeZone: string;
+			sharedFrom: { id: string; name: string } | null;
+			followers: { id: string; name: string }[];
+			followable: { id: string; name: string }[];
+			now: { primary: string | null; secondary: string | null };
+			members: { id: string; name: string }[];
+			overrides: { id: string; name: string; from: string; until: string; note: string }[];
+			spans: { from: string; until: string; primary: string | null; secondary: string | null }[];
+		}),
 		rotaForm,
 		overrideForm
 	};
@@ -66,7 +75,12 @@ export const actions: Actions = {
 		const { db } = await getRuntime();
 		const tz = labTimeZone();
 		try {
-			await addOverride(db, event.params.id, { userId: form.data.userId, from: fromLocal(form.data.from, tz), until: fromLocal(form.data.until, tz), note: form.data.note }, user.id);
+			await addOverride(
+				db,
+				event.params.id,
+				{ userId: form.data.userId, from: fromLocal(form.data.from, tz), until: fromLocal(form.data.until, tz), note: form.data.note },
+				user.id
+			);
 		} catch (err) {
 			if (err instanceof RotaError) return message(form, err.message, { status: 400 });
 			throw err;
@@ -97,7 +111,8 @@ export const actions: Actions = {
 		requireRole(event, 'operator');
 		const id = String((await event.request.formData()).get('id') ?? '');
 		const { db } = await getRuntime();
-		if (!id || !(await deleteOverride(db, event.params.id, id))) return fail(404, { deleteError: 'no override with this id on this setup' });
+		if (!id || !(await deleteOverride(db, event.params.id, id)))
+			return fail(404, { deleteError: 'no override with this id on this setup' });
 		return { deleted: id };
 	}
 };

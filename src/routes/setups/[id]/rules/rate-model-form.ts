@@ -21,12 +21,24 @@ export interface RateModelHistoryRow {
 
 export const RATE_FIELDS = [
 	{ key: 'W0_per_s', label: 'W₀', unit: 's⁻¹', hint: 'Attempt rate: the rate the activation law tends to when noise is large.' },
-	{ key: 'W0_sigma', label: 'σ(ln W₀)', unit: '≈ relative', hint: 'Uncertainty of ln W₀ (0.2 ≈ 20 %). Leave empty if unknown.', optional: true },
+	{
+		key: 'W0_sigma',
+		label: 'σ(ln W₀)',
+		unit: '≈ relative',
+		hint: 'Uncertainty of ln W₀ (0.2 ≈ 20 %). Leave empty if unknown.',
+		optional: true
+	},
 	{ key: 'A', label: 'Activation exponent A', hint: 'W = W₀·exp(−A / (2n̄ + 1)), n̄ the mode’s thermal occupation.' },
 	{ key: 'A_sigma', label: 'σ(A)', hint: 'Uncertainty of A. Leave empty if unknown.', optional: true },
 	{ key: 'mode_GHz', label: 'Mode frequency', unit: 'GHz', hint: 'Sets n̄ at each temperature.' },
 	{ key: 'nominal_mK', label: 'Nominal temperature', unit: 'mK', hint: 'Used for windows that carry no mixing-chamber temperature.' },
-	{ key: 'ref_detuning', label: 'Reference detuning δ', hint: 'Operating point A refers to; escape scales as (γ² + δ²)/ε².', optional: true, escapeOnly: true },
+	{
+		key: 'ref_detuning',
+		label: 'Reference detuning δ',
+		hint: 'Operating point A refers to; escape scales as (γ² + δ²)/ε².',
+		optional: true,
+		escapeOnly: true
+	},
 	{ key: 'ref_damping', label: 'Reference damping γ', hint: 'Same unit as δ and ε.', optional: true, escapeOnly: true },
 	{ key: 'ref_drive', label: 'Reference drive ε', hint: 'Leave all three empty for none.', optional: true, escapeOnly: true }
 ] as const satisfies { key: string; label: string; unit?: string; hint: string; optional?: boolean; escapeOnly?: boolean }[];

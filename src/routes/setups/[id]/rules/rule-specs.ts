@@ -64,8 +64,21 @@ export const KIND_SPECS: KindSpec[] = [
 		explanation:
 			'The oscillator has lost its phase lock (pump or reference unlock, a bias jump, the junction going resistive): lock quality |⟨exp(iKφ)⟩| stays low for several windows in a row.',
 		fields: [
-			{ key: 'threshold', type: 'number', label: 'Low below', unit: 'lock quality, 0–1', hint: 'A window whose lock quality is below this counts as low.' },
-			{ key: 'windows', type: 'number', label: 'Opens after', unit: 'windows', integer: true, hint: 'Consecutive low windows that open the incident.' },
+			{
+				key: 'threshold',
+				type: 'number',
+				label: 'Low below',
+				unit: 'lock quality, 0–1',
+				hint: 'A window whose lock quality is below this counts as low.'
+			},
+			{
+				key: 'windows',
+				type: 'number',
+				label: 'Opens after',
+				unit: 'windows',
+				integer: true,
+				hint: 'Consecutive low windows that open the incident.'
+			},
 			{
 				key: 'clearThreshold',
 				type: 'number',
@@ -82,14 +95,21 @@ export const KIND_SPECS: KindSpec[] = [
 		severity: 'warning',
 		explanation:
 			'The acquisition has stalled: no frame for a while although the run is open. The only rule on the server’s clock; all others work on the frames’ own time.',
-		fields: [{ key: 'after_s', type: 'number', label: 'Opens after', unit: 's without a frame', hint: 'Seconds of server clock without a frame while the run is open.' }]
+		fields: [
+			{
+				key: 'after_s',
+				type: 'number',
+				label: 'Opens after',
+				unit: 's without a frame',
+				hint: 'Seconds of server clock without a frame while the run is open.'
+			}
+		]
 	},
 	{
 		kind: 'switching_burst',
 		title: 'Switching burst',
 		severity: 'critical',
-		explanation:
-			`More switches in one window, or over a sliding horizon of windows, than the rate model allows (exact Poisson upper tail). No model is exact, so the tests compare with the upper edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance at the window's temperature; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}): the budget holds for any true rate inside the band. The opening level comes from the false-alarm budget, shared by all tests and processes of the rule; without a rate model the rule stays idle.`,
+		explanation: `More switches in one window, or over a sliding horizon of windows, than the rate model allows (exact Poisson upper tail). No model is exact, so the tests compare with the upper edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance at the window's temperature; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}): the budget holds for any true rate inside the band. The opening level comes from the false-alarm budget, shared by all tests and processes of the rule; without a rate model the rule stays idle.`,
 		fields: [
 			budget('Each window spends window length ÷ budget of it, so the budget holds whatever the frame rate.'),
 			{
@@ -114,12 +134,25 @@ export const KIND_SPECS: KindSpec[] = [
 		kind: 'rate_drift',
 		title: 'Rate drift',
 		severity: 'warning (info when the operating point does not match its model)',
-		explanation:
-			`A lasting change of the rate, long before any single window shows it: a two-sided Poisson CUSUM on observed ÷ predicted counts, whose decision interval follows from the budget. No model is exact: over the run's first hours (the baseline) each side compares with the edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}), and a rate beyond the band is reported once, as info ("this operating point does not match its rate model"), not paged. After that the chart compares with the run's own baseline rate within its uncertainty, so what pages is a change. The budget holds for any true rate inside the band, and is one budget for the rule: the watched rates share it.`,
+		explanation: `A lasting change of the rate, long before any single window shows it: a two-sided Poisson CUSUM on observed ÷ predicted counts, whose decision interval follows from the budget. No model is exact: over the run's first hours (the baseline) each side compares with the edge of the model's 2σ band (from its W0_sigma, A_sigma and covariance; a model that states none is taken to have ${DEFAULT_UNCERTAINTY_TEXT}), and a rate beyond the band is reported once, as info ("this operating point does not match its rate model"), not paged. After that the chart compares with the run's own baseline rate within its uncertainty, so what pages is a change. The budget holds for any true rate inside the band, and is one budget for the rule: the watched rates share it.`,
 		fields: [
-			budget('The rule’s average time between false alarms while the true rate lies within the model’s 2σ band; the watched rates share it (each chart runs at this × the number of rates watched).'),
-			{ key: 'ratioUp', type: 'number', label: 'Tuned to a rise by', unit: '× predicted, > 1', hint: 'The rate ratio the upper chart detects fastest.' },
-			{ key: 'ratioDown', type: 'number', label: 'Tuned to a fall to', unit: '× predicted, 0–1', hint: 'The rate ratio the lower chart detects fastest.' },
+			budget(
+				'The rule’s average time between false alarms while the true rate lies within the model’s 2σ band; the watched rates share it (each chart runs at this × the number of rates watched).'
+			),
+			{
+				key: 'ratioUp',
+				type: 'number',
+				label: 'Tuned to a rise by',
+				unit: '× predicted, > 1',
+				hint: 'The rate ratio the upper chart detects fastest.'
+			},
+			{
+				key: 'ratioDown',
+				type: 'number',
+				label: 'Tuned to a fall to',
+				unit: '× predicted, 0–1',
+				hint: 'The rate ratio the lower chart detects fastest.'
+			},
 			{
 				key: 'minExpectedPerStep',
 				type: 'number',
@@ -142,7 +175,13 @@ export const KIND_SPECS: KindSpec[] = [
 				unit: 'hours',
 				hint: 'Until then drift beyond the model’s band is an info finding; after, the chart judges change against this baseline. 0: never learn, page against the model’s band all run.'
 			},
-			{ key: 'confidence', type: 'number', label: 'Interval confidence', unit: 'two-sided, 0–1', hint: 'Confidence of the exact ratio intervals in the evidence.' },
+			{
+				key: 'confidence',
+				type: 'number',
+				label: 'Interval confidence',
+				unit: 'two-sided, 0–1',
+				hint: 'Confidence of the exact ratio intervals in the evidence.'
+			},
 			{
 				key: 'prediction',
 				type: 'choice',
@@ -184,7 +223,14 @@ export const KIND_SPECS: KindSpec[] = [
 					{ value: 'false', label: 'no (occupancy test off)', json: false }
 				]
 			},
-			{ key: 'horizonWindows', type: 'number', label: 'Horizon', unit: 'windows', integer: true, hint: 'Windows summed for both tests. Half an hour of 1-s windows sees a 1.7× excess of one state within the hour at 0.85 switches/s; a shorter horizon sees less.' },
+			{
+				key: 'horizonWindows',
+				type: 'number',
+				label: 'Horizon',
+				unit: 'windows',
+				integer: true,
+				hint: 'Windows summed for both tests. Half an hour of 1-s windows sees a 1.7× excess of one state within the hour at 0.85 switches/s; a shorter horizon sees less.'
+			},
 			{
 				key: 'expectedPairs',
 				type: 'pairs',
@@ -236,8 +282,22 @@ export const KIND_SPECS: KindSpec[] = [
 				{ key: 'clearBelow', type: 'number', label: 'Back at or below', optional: true, hint: 'Default: the upper limit.' },
 				{ key: 'below', type: 'number', label: 'Out below', optional: true, hint: 'Out of limits below this.' },
 				{ key: 'clearAbove', type: 'number', label: 'Back at or above', optional: true, hint: 'Default: the lower limit.' },
-				{ key: 'windows', type: 'number', label: 'Opens after', unit: 'windows', integer: true, hint: 'Consecutive windows out of limits.' },
-				{ key: 'clearWindows', type: 'number', label: 'Clears after', unit: 'windows', integer: true, hint: 'Consecutive windows back inside.' },
+				{
+					key: 'windows',
+					type: 'number',
+					label: 'Opens after',
+					unit: 'windows',
+					integer: true,
+					hint: 'Consecutive windows out of limits.'
+				},
+				{
+					key: 'clearWindows',
+					type: 'number',
+					label: 'Clears after',
+					unit: 'windows',
+					integer: true,
+					hint: 'Consecutive windows back inside.'
+				},
 				{
 					key: 'severity',
 					type: 'choice',

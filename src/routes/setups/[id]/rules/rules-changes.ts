@@ -10,7 +10,8 @@ export function sameValue(spec: FieldSpec, a: DraftValue | undefined, b: DraftVa
 		const y = String(b ?? '').trim();
 		return x === y || (x !== '' && y !== '' && Number(x) === Number(y));
 	}
-	if (spec.type === 'multi') return JSON.stringify([...((a as string[]) ?? [])].sort()) === JSON.stringify([...((b as string[]) ?? [])].sort());
+	if (spec.type === 'multi')
+		return JSON.stringify([...((a as string[]) ?? [])].sort()) === JSON.stringify([...((b as string[]) ?? [])].sort());
 	return JSON.stringify(a) === JSON.stringify(b);
 }
 

@@ -72,7 +72,10 @@ export function toDraft(rules: Record<string, unknown>, specs: KindSpec[]): Draf
 type Parsed = { ok: true; value: unknown; omit?: boolean } | { ok: false; message: string };
 
 function parseNumber(text: string, spec: Extract<FieldSpec, { type: 'number' }>): Parsed {
-	const t = text.trim().replace(/\u2212/g, '-').replace(/\s+/g, '');
+	const t = text
+		.trim()
+		.replace(/\u2212/g, '-')
+		.replace(/\s+/g, '');
 	if (t === '') return spec.optional ? { ok: true, value: undefined, omit: true } : { ok: false, message: 'enter a number' };
 	const n = Number(t);
 	if (!Number.isFinite(n)) return { ok: false, message: `“${text.trim()}” is not a number` };
@@ -84,7 +87,10 @@ function parsePairs(text: string): Parsed {
 	if (t === 'neighbours' || t === 'all') return { ok: true, value: t };
 	if (t === '') return { ok: false, message: 'list at least one pair, e.g. 0–1, 1–2' };
 	const pairs: [number, number][] = [];
-	for (const part of t.split(/[,;]/).map((p) => p.trim()).filter(Boolean)) {
+	for (const part of t
+		.split(/[,;]/)
+		.map((p) => p.trim())
+		.filter(Boolean)) {
 		const m = /^(\d+)\s*(?:[-–—:]|↔)\s*(\d+)$/.exec(part);
 		if (!m) return { ok: false, message: `“${part}” is not a pair like 0–1` };
 		pairs.push([Number(m[1]), Number(m[2])]);

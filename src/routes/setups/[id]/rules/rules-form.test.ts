@@ -5,7 +5,18 @@ import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { defaultRules, detectorRulesSchema } from '$lib/detect/rules';
 import { describeZodError } from '$lib/protocol/messages';
-import { draftFromForm, errorPaths, fromDraft, messageField, placeIssues, resolveSpecs, rowDraft, toDraft, toRulesPath, validateDraft } from './rules-form';
+import {
+	draftFromForm,
+	errorPaths,
+	fromDraft,
+	messageField,
+	placeIssues,
+	resolveSpecs,
+	rowDraft,
+	toDraft,
+	toRulesPath,
+	validateDraft
+} from './rules-form';
 
 const rules = () => defaultRules() as unknown as Record<string, unknown>;
 
@@ -79,7 +90,12 @@ describe('rules form', () => {
 		expect(out.rules).toMatchObject({
 			lock_lost: { enabled: false, threshold: 0.4, windows: 5 },
 			rate_drift: { processes: ['switching', 'escape'] },
-			occupancy_imbalance: { expectedPairs: [[0, 1], [1, 2]] },
+			occupancy_imbalance: {
+				expectedPairs: [
+					[0, 1],
+					[1, 2]
+				]
+			},
 			aux_limit: { limits: [{ name: 'mxc_mK', above: 40, windows: 3 }] }
 		});
 	});
@@ -87,9 +103,19 @@ describe('rules form', () => {
 	it('finds the field in the API’s 400 message', () => {
 		const specs = resolveSpecs(rules());
 		const draft = toDraft(rules(), specs);
-		const parsed = detectorRulesSchema.safeParse({ aux_limit: { limits: [{ name: 'a', above: 1 }, { name: 'b', above: 1, clearBelow: 2 }] } });
+		const parsed = detectorRulesSchema.safeParse({
+			aux_limit: {
+				limits: [
+					{ name: 'a', above: 1 },
+					{ name: 'b', above: 1, clearBelow: 2 }
+				]
+			}
+		});
 		const message = describeZodError(parsed.error!);
-		draft.aux_limit.rows = [rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!), rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!)];
+		draft.aux_limit.rows = [
+			rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!),
+			rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!)
+		];
 		expect(messageField(message, draft, specs).field).toBe('aux_limit.limits.1.clearBelow');
 		expect(messageField('detector rules: lock_lost.windows: must be a whole number of windows', draft, specs)).toEqual({
 			field: 'lock_lost.windows',

@@ -13,7 +13,9 @@ export function fieldKeys(draft: Draft, specs: KindSpec[]): Set<string> {
 		for (const f of spec.fields) keys.add(`${spec.kind}.${f.key}`);
 		if (spec.list) {
 			keys.add(`${spec.kind}.${spec.list.key}`);
-			(draft[spec.kind]?.rows ?? []).forEach((_, i) => spec.list!.fields.forEach((f) => keys.add(`${spec.kind}.${spec.list!.key}.${i}.${f.key}`)));
+			(draft[spec.kind]?.rows ?? []).forEach((_, i) =>
+				spec.list!.fields.forEach((f) => keys.add(`${spec.kind}.${spec.list!.key}.${i}.${f.key}`))
+			);
 		}
 	}
 	return keys;
@@ -66,7 +68,12 @@ export function toRulesPath(key: string, draft: Draft, specs: KindSpec[]): strin
 }
 
 /** Messages by the form's field keys, from issues given as paths of the rule set (first one wins). */
-export function placeIssues(found: { path: readonly PropertyKey[]; message: string }[], draft: Draft, specs: KindSpec[], into: FieldIssues = {}): FieldIssues {
+export function placeIssues(
+	found: { path: readonly PropertyKey[]; message: string }[],
+	draft: Draft,
+	specs: KindSpec[],
+	into: FieldIssues = {}
+): FieldIssues {
 	const keys = fieldKeys(draft, specs);
 	const rows = keptRows(draft, specs);
 	for (const { path, message } of found) {

@@ -36,7 +36,12 @@ async function readRules(formData: FormData, db: Db, setupId: string): Promise<{
 
 export async function saveRulesForm(
 	event: RequestEvent,
-	ctx: { db: Db; ingest: { rulesChanged(setupId: string, rules: unknown): Promise<void> }; setup: { id: string; states: number }; actorId: string }
+	ctx: {
+		db: Db;
+		ingest: { rulesChanged(setupId: string, rules: unknown): Promise<void> };
+		setup: { id: string; states: number };
+		actorId: string;
+	}
 ) {
 	const intent = 'saveRules' as const;
 	const { form, draft } = await readRules(await event.request.formData(), ctx.db, ctx.setup.id);

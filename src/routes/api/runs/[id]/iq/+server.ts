@@ -11,7 +11,10 @@ import type { RequestHandler } from './$types';
 const ms = z.coerce.number().int('must be whole milliseconds').min(0, 'must not be negative');
 const query = z
 	.object({ from_ms: ms.optional(), to_ms: ms.optional() })
-	.refine((q) => q.from_ms === undefined || q.to_ms === undefined || q.from_ms <= q.to_ms, { message: 'from_ms must not be after to_ms', path: ['from_ms'] });
+	.refine((q) => q.from_ms === undefined || q.to_ms === undefined || q.from_ms <= q.to_ms, {
+		message: 'from_ms must not be after to_ms',
+		path: ['from_ms']
+	});
 
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, 'observer');
