@@ -16,12 +16,20 @@ afterAll(async () => {
 	await server?.stop();
 });
 
-
 it('raises switching_burst, aux_limit and rate_drift for exactly the injected faults', async () => {
 	const operator = await signIn(server, 'operator');
 	// W = W0·exp(−A/(2n̄+1)); at 5 GHz and 12 mK n̄ ≈ 2e-9, so W ≈ W0·e^{−A} = 1 switch per second.
 	// An exact model (zero stated uncertainty), so the drift is judged against the prediction itself.
-	const model = { process: 'switching', W0_per_s: Math.E * 2, A: 2, mode_GHz: 5, nominal_mK: 12, W0_sigma: 0, A_sigma: 0, source: 'manual' };
+	const model = {
+		process: 'switching',
+		W0_per_s: Math.E * 2,
+		A: 2,
+		mode_GHz: 5,
+		nominal_mK: 12,
+		W0_sigma: 0,
+		A_sigma: 0,
+		source: 'manual'
+	};
 	const saved = await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) });
 	expect(saved.status).toBe(200);
 
@@ -29,7 +37,11 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	// the drift would raise a burst as well; this run checks the single-window burst test alone.
 	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
 	// The drift comes in the run's first minutes: charted against the model, not a learned baseline.
-	const onlyWindows = { ...rules.rules, switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 }, rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 } };
+	const onlyWindows = {
+		...rules.rules,
+		switching_burst: { ...rules.rules.switching_burst, horizonWindows: 0 },
+		rate_drift: { ...rules.rules.rate_drift, baseline_h: 0 }
+	};
 	expect((await operator(`/api/setups/${seeded.setupId}/rules`, { method: 'PUT', body: JSON.stringify(onlyWindows) })).status).toBe(200);
 
 	const u = uniformStream(2026);
@@ -73,10 +85,15 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	// outbox sends after commit and the group's gathering window (2 s in tests), hence the poll.
 	for (const incident of incidents) {
 		await expect
-			.poll(async () => {
-				const mail = await (await operator('/api/dev/mail')).json();
-				return mail.messages.some((m: { to: string[]; text: string }) => m.to.includes(people.operator.email) && m.text.includes(`/incidents/${incident.id}`));
-			}, { timeout: 15_000 })
+			.poll(
+				async () => {
+					const mail = await (await operator('/api/dev/mail')).json();
+					return mail.messages.some(
+						(m: { to: string[]; text: string }) => m.to.includes(people.operator.email) && m.text.includes(`/incidents/${incident.id}`)
+					);
+				},
+				{ timeout: 15_000 }
+			)
 			.toBe(true);
 	}
 	await agent.close();
