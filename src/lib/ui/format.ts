@@ -73,6 +73,11 @@ export function formatFixed(x: number | null | undefined, digits = 2): string {
 	return x.toFixed(digits);
 }
 
+/** An integer in superscript digits (for powers of ten: 10⁻⁵). */
+export function superscript(n: number): string {
+	return String(n).replace(/./g, (c) => SUPERSCRIPT[c] ?? c);
+}
+
 const SUPERSCRIPT: Record<string, string> = {
 	'-': '⁻',
 	'0': '⁰',
@@ -103,11 +108,7 @@ export function formatRate(x: number | null | undefined, significant = 3): strin
 		exp += 1;
 		mant = Number((x / 10 ** exp).toPrecision(significant));
 	}
-	const sup = String(exp)
-		.split('')
-		.map((c) => SUPERSCRIPT[c] ?? c)
-		.join('');
-	return `${mant} × 10${sup}`;
+	return `${mant} × 10${superscript(exp)}`;
 }
 
 /** Incident kinds as words people read: the one list lives in $lib/incidents/kinds. */
