@@ -11,6 +11,7 @@ import { PASSWORD, people, seedDataDir, signIn, startServer, type RunningServer,
 import { uniformStream, poissonKnuth } from '../support/random';
 import { launchChromium } from './chromium';
 import { createSimulator } from '../../agent/simulate';
+import { EXACT_UNIT_RATE_MODEL } from '../integration/support/exact-model';
 
 const shots = path.resolve(import.meta.dirname, '../../test-results');
 let seeded: Seeded;
@@ -25,16 +26,7 @@ beforeAll(async () => {
 	browser = await launchChromium();
 	const operator = await signIn(server, 'operator');
 	// W ≈ W0·e^{−A} = 1 switch per second at 12 mK (5 GHz); an exact model, no learned baseline.
-	const model = {
-		process: 'switching',
-		W0_per_s: Math.E * 2,
-		A: 2,
-		mode_GHz: 5,
-		nominal_mK: 12,
-		W0_sigma: 0,
-		A_sigma: 0,
-		source: 'manual'
-	};
+	const model = EXACT_UNIT_RATE_MODEL;
 	expect((await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) })).status).toBe(200);
 	const rules = await (await operator(`/api/setups/${seeded.setupId}/rules`)).json();
 	const changed = {

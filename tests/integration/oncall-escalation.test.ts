@@ -5,6 +5,7 @@ import { afterEach, describe, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { poll } from './support/poll';
 import { seedDataDir, signIn, startServer, type RunningServer } from './support/server';
+import { EXACT_UNIT_RATE_MODEL } from './support/exact-model';
 
 type Delivery = { id: string; incidentId: string | null; kind: string; channel: string; recipient: string; status: string };
 type Incident = { id: string; kind: string; severity: string };
@@ -38,16 +39,7 @@ async function demoLikeLockLoss(
 	operator: (p: string, init?: RequestInit) => Promise<Response>
 ) {
 	// W = W0·exp(−A/(2n̄+1)) ≈ W0·e^{−A} = 1 switch per second at 5 GHz and 12 mK (see physics-incidents.test.ts).
-	const model = {
-		process: 'switching',
-		W0_per_s: Math.E * 2,
-		A: 2,
-		mode_GHz: 5,
-		nominal_mK: 12,
-		W0_sigma: 0,
-		A_sigma: 0,
-		source: 'manual'
-	};
+	const model = EXACT_UNIT_RATE_MODEL;
 	expect((await operator(`/api/setups/${setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) })).status).toBe(200);
 	const frames = Array.from({ length: 24 }, (_, i) => {
 		const seq = i + 1;

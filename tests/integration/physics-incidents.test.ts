@@ -5,6 +5,7 @@ import { afterAll, beforeAll, expect, it } from 'vitest';
 import { RUN, frame, startAgent } from './support/agent-socket';
 import { people, seedDataDir, signIn, startServer, type RunningServer, type Seeded } from './support/server';
 import { uniformStream, poissonKnuth } from '../support/random';
+import { EXACT_UNIT_RATE_MODEL } from './support/exact-model';
 
 let seeded: Seeded;
 let server: RunningServer;
@@ -20,16 +21,7 @@ it('raises switching_burst, aux_limit and rate_drift for exactly the injected fa
 	const operator = await signIn(server, 'operator');
 	// W = W0·exp(−A/(2n̄+1)); at 5 GHz and 12 mK n̄ ≈ 2e-9, so W ≈ W0·e^{−A} = 1 switch per second.
 	// An exact model (zero stated uncertainty), so the drift is judged against the prediction itself.
-	const model = {
-		process: 'switching',
-		W0_per_s: Math.E * 2,
-		A: 2,
-		mode_GHz: 5,
-		nominal_mK: 12,
-		W0_sigma: 0,
-		A_sigma: 0,
-		source: 'manual'
-	};
+	const model = EXACT_UNIT_RATE_MODEL;
 	const saved = await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) });
 	expect(saved.status).toBe(200);
 

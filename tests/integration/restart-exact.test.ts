@@ -6,6 +6,7 @@ import { afterAll, expect, it } from 'vitest';
 import { uniformStream, poissonKnuth } from '../support/random';
 import { RUN, frame, startAgent, type TestAgent } from './support/agent-socket';
 import { seedDataDir, signIn, startServer, type RunningServer } from './support/server';
+import { EXACT_UNIT_RATE_MODEL } from './support/exact-model';
 
 let server: RunningServer | undefined;
 afterAll(async () => {
@@ -41,16 +42,7 @@ it('restores the detectors exactly after a kill -9 between snapshot saves', asyn
 	const operator = await signIn(server, 'operator');
 	// W ≈ W0·e^{−A} = 1 switch per second at 12 mK (n̄ ≈ 2e-9 at 5 GHz).
 	// Zero stated uncertainty: the chart counts against the prediction itself, so the scripted drift crosses h.
-	const model = {
-		process: 'switching',
-		W0_per_s: Math.E * 2,
-		A: 2,
-		mode_GHz: 5,
-		nominal_mK: 12,
-		W0_sigma: 0,
-		A_sigma: 0,
-		source: 'manual'
-	};
+	const model = EXACT_UNIT_RATE_MODEL;
 	expect((await operator(`/api/setups/${seeded.setupId}/rate-model`, { method: 'PUT', body: JSON.stringify(model) })).status).toBe(200);
 
 	const frames = script();

@@ -32,20 +32,29 @@ export interface FramePageOptions {
 
 const { iq: _iq, ...columnsWithoutIq } = getTableColumns(frames);
 
+/** The filter of one keyset page: the run's frames above `afterSeq`, within the options' bounds. */
+export function framePageWhere(
+	runId: string,
+	afterSeq: number,
+	options: Omit<FramePageOptions, 'afterSeq' | 'pageSize' | 'withoutIq'>
+): SQL {
+	const where: SQL[] = [eq(frames.runId, runId), gt(frames.seq, afterSeq)];
+	if (options.toSeq !== undefined) where.push(lte(frames.seq, options.toSeq));
+	if (options.skipLate) where.push(eq(frames.late, false));
+	if (options.fromT !== undefined) where.push(gte(frames.t, options.fromT));
+	if (options.toT !== undefined) where.push(lt(frames.t, options.toT));
+	return and(...where)!;
+}
+
 /** Pages of stored frames in seq order. */
 export async function* framePages(db: Db, runId: string, options: FramePageOptions = {}): AsyncGenerator<StoredFrame[]> {
 	const pageSize = options.pageSize ?? FRAME_PAGE_ROWS;
 	let after = options.afterSeq ?? 0;
 	for (;;) {
-		const where: SQL[] = [eq(frames.runId, runId), gt(frames.seq, after)];
-		if (options.toSeq !== undefined) where.push(lte(frames.seq, options.toSeq));
-		if (options.skipLate) where.push(eq(frames.late, false));
-		if (options.fromT !== undefined) where.push(gte(frames.t, options.fromT));
-		if (options.toT !== undefined) where.push(lt(frames.t, options.toT));
 		const rows = await db
 			.select(options.withoutIq ? columnsWithoutIq : getTableColumns(frames))
 			.from(frames)
-			.where(and(...where))
+			.where(framePageWhere(runId, after, options))
 			.orderBy(asc(frames.seq))
 			.limit(pageSize);
 		if (rows.length === 0) return;

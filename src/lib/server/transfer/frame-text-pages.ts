@@ -9,10 +9,10 @@
 // compares them. Numbers are PostgreSQL's shortest exact float text (1e-05 where JavaScript writes
 // 0.00001: the same double), and jsonb is written without its spaces, which is safe because frames
 // hold only numbers and aux names of [A-Za-z0-9_] (the wire schema refuses anything else).
-import { and, eq, gt, gte, lt, lte, sql, type SQL } from 'drizzle-orm';
+import { sql, type SQL } from 'drizzle-orm';
 import type { FrameCsvLayout } from '../../transfer/frame-csv';
 import type { Db } from '../db';
-import { frames } from '../db/schema';
+import { framePageWhere } from '../runs/frame-pages';
 
 export interface TextPageRange {
 	afterSeq: number;
@@ -79,14 +79,11 @@ export function ndjsonLineSql(): SQL {
 export async function* frameTextPages(db: Db, runId: string, line: SQL, range: TextPageRange, pageRows: number): AsyncGenerator<string> {
 	let after = range.afterSeq;
 	for (;;) {
-		const where: SQL[] = [eq(frames.runId, runId), gt(frames.seq, after), lte(frames.seq, range.toSeq)];
-		if (range.fromT !== undefined) where.push(gte(frames.t, range.fromT));
-		if (range.toT !== undefined) where.push(lt(frames.t, range.toT));
 		const { rows } = await db.execute<{ text: string | null; last: number | null; n: number }>(sql`
 			SELECT string_agg(line, '' ORDER BY seq) AS text, max(seq) AS last, count(*)::int AS n
 			FROM (
 				SELECT seq, ${line} || E'\n' AS line FROM frames
-				WHERE ${and(...where)}
+				WHERE ${framePageWhere(runId, after, range)}
 				ORDER BY seq LIMIT ${pageRows}
 			) page`);
 		const page = rows[0];
