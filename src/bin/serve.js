@@ -5,11 +5,14 @@ import v8 from 'node:v8';
 import { DEFAULT_BODY_LIMIT, DEFAULT_UPLOAD_LIMIT, bodyLimitFor, parseByteLimit, tooLargeMessage } from '../lib/server/http/body-size.js';
 import { securityHeaders } from '../lib/server/http/security-headers.js';
 
-// Opt-in trade of commit latency for memory: with V8's default heap growth a week-long export grows
-// the server by 55–70 MB of garbage before a full collection; sized for memory it stays within
-// 50 MB, but every live commit gets slower (tests/bench: commit-cost ratio 2.2–2.3 instead of 1.9).
-// Live ingest is the job every second, a week's export a rare download, so the default is V8's.
-if (process.env.PHASEWARDEN_V8_OPTIMIZE_FOR_SIZE === '1') v8.setFlagsFromString('--optimize-for-size');
+// How far V8 lets the old generation grow past what survived its last full collection before the
+// next one. Left to itself V8 allows up to 4× on a quiet server, so a week-long export (which moves a
+// few hundred kB of short-lived pages to the old generation at each young collection) grew the
+// server by 40–60 MB before a full collection ran; at 25 % it stays about 25–40 MB over idle
+// (tests/bench/export-memory, --trace-gc) and live commits keep their cost (tests/bench/live-commit).
+// V8 reads the setting each time it sizes the heap, so setting it here, before the app loads, is enough.
+const heapGrowthPercent = Number(process.env.PHASEWARDEN_V8_HEAP_GROWTH_PERCENT ?? 25);
+if (heapGrowthPercent > 0) v8.setFlagsFromString(`--heap-growing-percent=${Math.round(heapGrowthPercent)}`);
 
 // Two limits: BODY_SIZE_LIMIT for every route, PHASEWARDEN_UPLOAD_LIMIT for frame-file imports.
 // adapter-node reads one number (when the handler loads), so it gets the larger; this server and the

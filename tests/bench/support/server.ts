@@ -1,7 +1,7 @@
 // Starts the real production server (build/ + src/bin/serve.js) on a free port, signs in, and
 // reads a process's resident memory. Run `npm run build` first: the benchmarks time the bundle.
 import { spawn, type ChildProcess } from 'node:child_process';
-import { existsSync, readFileSync } from 'node:fs';
+import { createWriteStream, existsSync, readFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import path from 'node:path';
 import { AUTH_SECRET, OBSERVER, repoRoot } from './seed';
@@ -53,8 +53,14 @@ export async function startAppServer(dataDir: string, env: Record<string, string
 		},
 		stdio: ['ignore', 'pipe', 'pipe']
 	});
-	child.stdout!.on('data', (d) => (log = (log + d).slice(-20_000)));
-	child.stderr!.on('data', (d) => (log = (log + d).slice(-20_000)));
+	// BENCH_APP_LOG=<file> keeps the server's whole output (say with BENCH_APP_NODE_ARGS=--trace-gc).
+	const keep = process.env.BENCH_APP_LOG ? createWriteStream(process.env.BENCH_APP_LOG) : null;
+	const append = (d: Buffer) => {
+		log = (log + d).slice(-20_000);
+		keep?.write(d);
+	};
+	child.stdout!.on('data', append);
+	child.stderr!.on('data', append);
 	const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
 	await waitUntil(
 		child,

@@ -56,9 +56,10 @@ afterAll(async () => {
 	await close();
 });
 
-async function allText(line: ReturnType<typeof csvLineSql>, pageRows: number) {
+async function allText(line: ReturnType<typeof csvLineSql>, firstRows: number, bytes = 1e9) {
 	const pages: string[] = [];
-	for await (const page of frameTextPages(db, runId, line, { afterSeq: 0, toSeq: N }, pageRows)) pages.push(page);
+	for await (const page of frameTextPages(db, runId, line, { afterSeq: 0, toSeq: N }, { firstRows, bytes, maxRows: firstRows }))
+		pages.push(page);
 	return pages;
 }
 
@@ -113,7 +114,7 @@ describe('frame text written by the database', () => {
 					runId,
 					ndjsonLineSql(),
 					{ afterSeq: 10, toSeq: 40, fromT: T0 + 20 * 997, toT: T0 + 30 * 997 },
-					4
+					{ firstRows: 4, bytes: 1e9, maxRows: 4 }
 				))
 					pages.push(p);
 				return pages;
@@ -125,5 +126,20 @@ describe('frame text written by the database', () => {
 				.split('\n')
 				.map((l) => JSON.parse(l).seq)
 		).toEqual(Array.from({ length: 10 }, (_, i) => 20 + i));
+	});
+
+	it('sizes pages by their bytes once the first page shows how long a line is', async () => {
+		const target = 2000;
+		const pages: string[] = [];
+		for await (const page of frameTextPages(db, runId, ndjsonLineSql(), { afterSeq: 0, toSeq: N }, { firstRows: 2, bytes: target }))
+			pages.push(page);
+		const lineCounts = pages.map((p) => p.split('\n').length - 1);
+		expect(lineCounts.reduce((a, b) => a + b, 0)).toBe(N);
+		expect(lineCounts[0]).toBe(2);
+		// After the first page the row count follows the bytes: more rows than the first page's two,
+		// and no page past the target by more than the longest line.
+		expect(Math.max(...lineCounts.slice(1, -1))).toBeGreaterThan(2);
+		const longestLine = Math.max(...pages.flatMap((p) => p.split('\n').map((l) => l.length + 1)));
+		for (const page of pages.slice(1)) expect(page.length).toBeLessThan(target + 2 * longestLine);
 	});
 });

@@ -75,22 +75,43 @@ export function ndjsonLineSql(): SQL {
 	);
 }
 
-/** Pages of text, each the lines of up to pageRows frames in seq order, every line ending in a newline. */
-export async function* frameTextPages(db: Db, runId: string, line: SQL, range: TextPageRange, pageRows: number): AsyncGenerator<string> {
+/**
+ * How big a page is. Pages are kept under V8's large-object size (about 128 kB): a larger string
+ * or buffer still in use when the young generation is swept is moved to the old generation, which is
+ * freed only by a full collection, and over a week's export those moved pages grew the server by
+ * 40–60 MB before one ran (tests/bench/export-memory, --trace-gc). Lines vary in length (IQ
+ * histograms of up to 64×64 counts), so the row count follows the bytes of the page before.
+ */
+export interface PageSizing {
+	/** Text per page to aim for, in bytes (the text is ASCII). */
+	bytes: number;
+	/** Rows in the first page, before any line length is known. */
+	firstRows: number;
+	/** Most rows in a page, however short the lines. */
+	maxRows?: number;
+}
+
+const nextRows = (rows: number, text: string, sizing: PageSizing) =>
+	Math.max(1, Math.min(sizing.maxRows ?? 5000, Math.floor((rows * sizing.bytes) / Math.max(1, text.length))));
+
+/** Pages of text, each the lines of consecutive frames in seq order, every line ending in a newline. */
+export async function* frameTextPages(db: Db, runId: string, line: SQL, range: TextPageRange, sizing: PageSizing): AsyncGenerator<string> {
 	let after = range.afterSeq;
+	let rows = sizing.firstRows;
 	for (;;) {
-		const { rows } = await db.execute<{ text: string | null; last: number | null; n: number }>(sql`
+		const { rows: result } = await db.execute<{ text: string | null; last: number | null; n: number }>(sql`
 			SELECT string_agg(line, '' ORDER BY seq) AS text, max(seq) AS last, count(*)::int AS n
 			FROM (
 				SELECT seq, ${line} || E'\n' AS line FROM frames
 				WHERE ${framePageWhere(runId, after, range)}
-				ORDER BY seq LIMIT ${pageRows}
+				ORDER BY seq LIMIT ${rows}
 			) page`);
-		const page = rows[0];
+		const page = result[0];
 		if (!page || page.n === 0 || page.text === null || page.last === null) return;
 		after = Number(page.last);
 		yield page.text;
-		if (page.n < pageRows) return;
+		if (page.n < rows) return;
+		rows = nextRows(rows, page.text, sizing);
 		// Let live ingest and other requests in between pages.
 		await new Promise((resolve) => setImmediate(resolve));
 	}

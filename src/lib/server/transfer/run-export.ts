@@ -7,7 +7,7 @@ import { csvLines, frameCsvHeader, type FrameCsvLayout } from '../../transfer/fr
 import type { Db } from '../db';
 import { frameRollups, frames } from '../db/schema';
 import type { RunRow } from '../runs/service';
-import { csvLineSql, frameTextPages, ndjsonLineSql } from './frame-text-pages';
+import { csvLineSql, frameTextPages, ndjsonLineSql, type PageSizing } from './frame-text-pages';
 
 /** Agent-time span [from_ms, to_ms): either end open when left out. */
 export interface ExportSpan {
@@ -15,10 +15,10 @@ export interface ExportSpan {
 	to_ms?: number;
 }
 
-// Each page is one text value the database builds (frame-text-pages.ts): a few hundred kB of
-// CSV, or of NDJSON with its IQ histograms (up to 64×64 counts a line), hence the shorter page.
-const CSV_PAGE_ROWS = 2000;
-const NDJSON_PAGE_ROWS = 500;
+// Each page is one text value the database builds, sized in bytes (frame-text-pages.ts explains
+// why 64 kB); a CSV line is about 170 bytes, an NDJSON line 300 bytes to 20 kB with its IQ histogram.
+const CSV_PAGES: PageSizing = { bytes: 64 * 1024, firstRows: 300 };
+const NDJSON_PAGES: PageSizing = { bytes: 64 * 1024, firstRows: 50 };
 const COARSEST_S = Math.max(...ROLLUP_RESOLUTIONS_S);
 const FINEST_S = Math.min(...ROLLUP_RESOLUTIONS_S);
 
@@ -94,13 +94,13 @@ export async function* runCsv(
 ): AsyncGenerator<string> {
 	yield csvLines([frameCsvHeader(layout)]);
 	if (!range) return;
-	yield* frameTextPages(db, runId, csvLineSql(layout), { ...range, fromT: span.from_ms, toT: span.to_ms }, CSV_PAGE_ROWS);
+	yield* frameTextPages(db, runId, csvLineSql(layout), { ...range, fromT: span.from_ms, toT: span.to_ms }, CSV_PAGES);
 }
 
 /** One wire-format frame per line, exactly as an agent sends it (iq included), ready to replay or import. */
 export async function* runNdjson(db: Db, runId: string, range: SeqRange | null, span: ExportSpan): AsyncGenerator<string> {
 	if (!range) return;
-	yield* frameTextPages(db, runId, ndjsonLineSql(), { ...range, fromT: span.from_ms, toT: span.to_ms }, NDJSON_PAGE_ROWS);
+	yield* frameTextPages(db, runId, ndjsonLineSql(), { ...range, fromT: span.from_ms, toT: span.to_ms }, NDJSON_PAGES);
 }
 
 /** A file name people recognise: the run key, and the span when there is one; ASCII only. */
