@@ -1,6 +1,7 @@
 // npm run demo: a fresh demo lab on the embedded database, the production server with the mail
 // catcher, and a simulated agent whose run loses lock within the first two minutes.
 import { spawn, type ChildProcess } from 'node:child_process';
+import { SERVER_NODE_FLAGS } from './server-flags.js';
 import path from 'node:path';
 import { eq } from 'drizzle-orm';
 import { addUser } from '../lib/server/auth/users';
@@ -94,7 +95,7 @@ try {
 }
 const token = await seed();
 const env = { ...process.env, PHASEWARDEN_DATA: dataDir, PHASEWARDEN_CATCHER: '1', PORT: String(port), ORIGIN: origin };
-const server = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });
+const server = spawn(process.execPath, [...SERVER_NODE_FLAGS, path.join(root, 'src/bin/serve.js')], { env, stdio: 'inherit' });
 await waitForServer(`http://127.0.0.1:${port}/api/health`, server);
 
 /**

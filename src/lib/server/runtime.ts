@@ -15,8 +15,8 @@ import { Ingest } from './ingest/ingest';
 import { DEFAULT_SNAPSHOT_POLICY } from './ingest/run-writer';
 import { LiveBus, type LiveEvent } from './live/bus';
 import { scheduleMaintenance } from './maintenance/schedule';
-import { startMailCatcher } from './notify/catcher';
-import { createMailer, type Mailer } from './notify/mailer';
+import type { startMailCatcher } from './notify/catcher';
+import type { Mailer } from './notify/mailer';
 import { reportNow } from './reports/clock';
 import { startReportScheduler } from './reports/scheduler';
 import { startDelivery, type Delivery } from './outbox/start';
@@ -71,9 +71,11 @@ async function start(): Promise<Runtime> {
 		sendResetPassword: (data) => resetPasswordSender(mailer, () => config.origin ?? 'http://localhost:5173')(data),
 		resetPasswordTtl_s: RESET_TTL_S
 	});
-	const catcher = config.catcher ? await startMailCatcher({ port: config.catcherPort }) : null;
+	// The catcher (smtp-server, mailparser) and the mailer (nodemailer) are loaded only when used: a
+	// server without mail keeps their code out of memory (tests/bench/memory).
+	const catcher = config.catcher ? await (await import('./notify/catcher')).startMailCatcher({ port: config.catcherPort }) : null;
 	const smtpUrl = config.smtpUrl ?? (catcher ? `smtp://127.0.0.1:${catcher.port}` : undefined);
-	const mailer = smtpUrl ? createMailer({ smtpUrl, from: config.mailFrom }) : null;
+	const mailer = smtpUrl ? (await import('./notify/mailer')).createMailer({ smtpUrl, from: config.mailFrom }) : null;
 	if (catcher) console.log(`mail catcher listening on 127.0.0.1:${catcher.port}`);
 	const bus = new LiveBus();
 	if (cluster.shared) {

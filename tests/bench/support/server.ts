@@ -1,6 +1,7 @@
 // Starts the real production server (build/ + src/bin/serve.js) on a free port, signs in, and
 // reads a process's resident memory. Run `npm run build` first: the benchmarks time the bundle.
 import { spawn, type ChildProcess } from 'node:child_process';
+import { SERVER_NODE_FLAGS } from '../../../src/bin/server-flags.js';
 import { createWriteStream, existsSync, readFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import path from 'node:path';
@@ -39,7 +40,7 @@ export async function startAppServer(dataDir: string, env: Record<string, string
 	let log = '';
 	// BENCH_APP_NODE_ARGS="--cpu-prof --cpu-prof-dir=…" profiles the server under a benchmark's load.
 	const nodeArgs = process.env.BENCH_APP_NODE_ARGS?.split(' ').filter(Boolean) ?? [];
-	const child = spawn(process.execPath, [...nodeArgs, path.join(repoRoot, 'src/bin/serve.js')], {
+	const child = spawn(process.execPath, [...SERVER_NODE_FLAGS, ...nodeArgs, path.join(repoRoot, 'src/bin/serve.js')], {
 		cwd: repoRoot,
 		env: {
 			...process.env,

@@ -4,6 +4,7 @@
 // test gets a fresh database on that server instead, copied from a seeded template database; its
 // URL is kept in the test's data folder, so tests start servers the same way in both modes.
 import { spawn, type ChildProcess } from 'node:child_process';
+import { SERVER_NODE_FLAGS } from '../../../src/bin/server-flags.js';
 import { cpSync, existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { createServer } from 'node:net';
 import os from 'node:os';
@@ -100,7 +101,7 @@ export async function startServer(dataDir: string, port?: number, extraEnv: Reco
 	port ??= await freePort();
 	const url = `http://127.0.0.1:${port}`;
 	let log = '';
-	const child = spawn(process.execPath, [path.join(root, 'src/bin/serve.js')], {
+	const child = spawn(process.execPath, [...SERVER_NODE_FLAGS, path.join(root, 'src/bin/serve.js')], {
 		cwd: root,
 		env: {
 			...process.env,

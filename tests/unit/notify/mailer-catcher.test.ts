@@ -3,7 +3,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createServer } from 'node:net';
 import { startMailCatcher, type MailCatcher } from '../../../src/lib/server/notify/catcher';
-import { createMailer, isLoopbackHost } from '../../../src/lib/server/notify/mailer';
+import { isLoopbackHost } from '../../../src/lib/server/http/loopback';
+import { createMailer } from '../../../src/lib/server/notify/mailer';
 import { renderIncidentEmail } from '../../../src/lib/server/notify/alert-email';
 
 let catcher: MailCatcher;

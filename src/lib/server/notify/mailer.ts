@@ -1,6 +1,7 @@
 // Sends e-mail through the SMTP server that SMTP_URL names. A failed delivery is an outcome to
 // record, never an exception: an unreachable mail server must not stop ingest or incidents.
 import nodemailer from 'nodemailer';
+import { isLoopbackHost } from '../http/loopback';
 
 export type MailMessage = {
 	to: string | string[];
@@ -17,12 +18,6 @@ export type SendResult = { ok: true; messageId?: string } | { ok: false; error: 
 export interface Mailer {
 	send(message: MailMessage): Promise<SendResult>;
 	close(): void;
-}
-
-const LOOPBACK = /^(localhost|127(?:\.\d{1,3}){3}|::1|\[::1\])$/i;
-
-export function isLoopbackHost(host: string): boolean {
-	return LOOPBACK.test(host);
 }
 
 /**

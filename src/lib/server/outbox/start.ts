@@ -8,7 +8,8 @@ import type { LiveBus } from '../live/bus';
 import type { Mailer } from '../notify/mailer';
 import { startPushCatcher } from '../push/catcher';
 import { loadVapidKeys } from '../push/vapid';
-import { createSmsClient, smsConfigFromEnv, type SmsClient } from '../sms/client';
+import type { SmsClient } from '../sms/client';
+import { smsConfigFromEnv } from '../sms/config';
 import { startSmsFake } from '../sms/fake';
 import { emailSender } from './send-email';
 import { pushSender } from './send-push';
@@ -37,7 +38,7 @@ export async function startDelivery({
 	const smsConfig = smsFake
 		? { accountSid: smsFake.accountSid, authToken: smsFake.authToken, from: smsFake.from, baseUrl: smsFake.baseUrl }
 		: smsConfigFromEnv();
-	const sms: SmsClient | null = smsConfig ? createSmsClient(smsConfig) : null;
+	const sms: SmsClient | null = smsConfig ? (await import('../sms/client')).createSmsClient(smsConfig) : null;
 	if (pushCatcher) console.log(`push catcher listening on 127.0.0.1:${pushCatcher.port}`);
 	if (smsFake) console.log(`SMS fake listening on 127.0.0.1:${smsFake.port}`);
 

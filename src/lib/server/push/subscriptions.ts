@@ -5,7 +5,7 @@ import { and, desc, eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '../db';
 import { pushSubscriptions } from '../db/schema';
-import { isLoopbackHost } from '../notify/mailer';
+import { isLoopbackHost } from '../http/loopback';
 
 const base64url = z.string().regex(/^[A-Za-z0-9_-]+=*$/, 'must be base64url');
 

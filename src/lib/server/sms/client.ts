@@ -4,21 +4,12 @@
 // everything else (authentication, form encoding, error objects) stays the SDK's own.
 import twilio from 'twilio';
 import type RequestClient from 'twilio/lib/base/RequestClient';
+import type { SmsConfig } from './config';
 
 export type SmsResult = { ok: true; sid: string } | { ok: false; error: string; permanent: boolean };
 
 export interface SmsClient {
 	send(to: string, body: string): Promise<SmsResult>;
-}
-
-export type SmsConfig = { accountSid: string; authToken: string; from: string; baseUrl?: string };
-
-export function smsConfigFromEnv(env: NodeJS.ProcessEnv = process.env): Omit<SmsConfig, 'baseUrl'> | null {
-	const { TWILIO_ACCOUNT_SID: accountSid, TWILIO_AUTH_TOKEN: authToken, TWILIO_FROM: from } = env;
-	if (!accountSid && !authToken && !from) return null;
-	if (!accountSid || !authToken || !from) throw new Error('set all of TWILIO_ACCOUNT_SID, TWILIO_AUTH_TOKEN and TWILIO_FROM, or none');
-	if (!/^AC\w{32}$/.test(accountSid)) throw new Error('TWILIO_ACCOUNT_SID must be "AC" followed by 32 letters or digits');
-	return { accountSid, authToken, from };
 }
 
 class RedirectingClient extends twilio.RequestClient {
