@@ -17,6 +17,8 @@ let operator: Fetcher;
 let observer: Fetcher;
 
 const T0 = 1_796_000_000_000;
+/** Small enough to pass in a test, large enough for the round trip's file (about 0.5 MB). */
+const UPLOAD_LIMIT_BYTES = 3 * 1024 * 1024;
 /** A window with every optional field on some frames, so the round trip covers them all. */
 function richFrame(seq: number) {
 	const f: Record<string, unknown> = { ...frame(seq, 0.9 + (seq % 7) / 100), aux: { mxc_mK: 12 + (seq % 10) / 10, pump_dBm: -23.5 } };
@@ -28,18 +30,36 @@ function richFrame(seq: number) {
 // Seqs 1–300 and 401–1200 streamed; 301–400 lost on the way.
 const SENT = [...Array.from({ length: 300 }, (_, i) => i + 1), ...Array.from({ length: 800 }, (_, i) => i + 401)];
 
-async function postImport(fetcher: Fetcher, text: string, runKey?: string, query = '') {
+/** The multipart body of an import form, encoded once so the signed-in fetcher can send it with its boundary. */
+async function importForm(text: string, runKey?: string) {
 	const form = new FormData();
 	form.set('file', new Blob([text], { type: 'application/x-ndjson' }), 'night.ndjson');
 	if (runKey) form.set('runKey', runKey);
-	// Encode the multipart body once so the signed-in fetcher can send it with its boundary.
 	const encoded = new Request('http://encode.invalid/', { method: 'POST', body: form });
-	const body = await encoded.arrayBuffer();
-	return fetcher(`/api/setups/${seeded.setupId}/import${query}`, {
-		method: 'POST',
-		body,
-		headers: { 'content-type': encoded.headers.get('content-type')! }
+	return { body: new Uint8Array(await encoded.arrayBuffer()), contentType: encoded.headers.get('content-type')! };
+}
+
+async function postImport(fetcher: Fetcher, text: string, runKey?: string, query = '') {
+	const { body, contentType } = await importForm(text, runKey);
+	return fetcher(`/api/setups/${seeded.setupId}/import${query}`, { method: 'POST', body, headers: { 'content-type': contentType } });
+}
+
+/** The same upload sent chunked, with no Content-Length, as a streaming client would. */
+async function postImportChunked(fetcher: Fetcher, text: string, runKey: string) {
+	const { body, contentType } = await importForm(text, runKey);
+	let offset = 0;
+	const stream = new ReadableStream<Uint8Array>({
+		pull(controller) {
+			if (offset >= body.length) return controller.close();
+			controller.enqueue(body.slice(offset, (offset += 64 * 1024)));
+		}
 	});
+	return fetcher(`/api/setups/${seeded.setupId}/import`, {
+		method: 'POST',
+		body: stream,
+		headers: { 'content-type': contentType },
+		duplex: 'half'
+	} as RequestInit);
 }
 
 const lines = (text: string) => text.split('\n').filter((l) => l !== '');
@@ -53,7 +73,7 @@ async function rollupTotals(id: string) {
 
 beforeAll(async () => {
 	seeded = await seedDataDir();
-	server = await startServer(seeded.dataDir);
+	server = await startServer(seeded.dataDir, undefined, { PHASEWARDEN_UPLOAD_LIMIT: `${UPLOAD_LIMIT_BYTES}` });
 	agent = await startAgent(server.wsUrl, seeded.token, { ...RUN, key: 'transfer-src' });
 	runId = agent.welcome.run;
 	for (let i = 0; i < SENT.length; i += 250) agent.send({ type: 'frames', frames: SENT.slice(i, i + 250).map(richFrame) });
@@ -208,6 +228,25 @@ describe('import', () => {
 		const anonymous = await fetch(`${server.url}/api/setups/${seeded.setupId}/import`, { method: 'POST', headers: { origin: server.url } });
 		expect(anonymous.status).toBe(401);
 		expect((await postImport(operator, '')).status).toBe(400);
+	});
+
+	it('takes a chunked upload, and refuses one that runs past the upload limit with 413, storing nothing', async () => {
+		const runs = async () => ((await (await observer(`/api/runs?setup=${seeded.setupId}`)).json()).runs as unknown[]).length;
+		const small = Array.from({ length: 20 }, (_, i) => JSON.stringify(frame(i + 1))).join('\n');
+		const taken = await postImportChunked(operator, small, 'chunked-small');
+		expect(taken.status).toBe(200);
+		expect(await taken.json()).toMatchObject({ created: true, stored: 20 });
+
+		const before = await runs();
+		// The 413 comes while the file is still arriving, before any line is checked.
+		const line = JSON.stringify(richFrame(4));
+		const big = Array.from({ length: Math.ceil((UPLOAD_LIMIT_BYTES * 1.5) / line.length) }, () => line).join('\n');
+		const refused = await postImportChunked(operator, big, 'chunked-big');
+		expect(refused.status).toBe(413);
+		expect((await refused.json()).message).toMatch(
+			new RegExp(`request body too large: the upload ran past it; the limit is ${UPLOAD_LIMIT_BYTES} bytes`)
+		);
+		expect(await runs()).toBe(before);
 	});
 
 	it('names a missing file field, and leaves no spooled upload in the data folder', async () => {

@@ -1,9 +1,10 @@
 // Oversized request bodies get 413 with a message on every route. adapter-node already stops reading
 // past BODY_SIZE_LIMIT, but better-auth turns the resulting stream error into a 500, and the dev
 // server has no limit at all; so a declared length over the limit is refused before any route runs,
-// and a body of undeclared length (chunked) is read here first so it fails the same way.
+// and a body of undeclared length (chunked) is read here first so it fails the same way (except an
+// import upload, which the spool counts as it writes it to disk).
 import { json, type Handle } from '@sveltejs/kit';
-import { bodyLimitFor, tooLargeMessage } from './body-size.js';
+import { bodyLimitFor, isUploadRoute, tooLargeMessage } from './body-size.js';
 
 // The production server (src/bin/serve.js) applies the same limits before adapter-node reads a body.
 // In development the limits are ours alone: only the production server's adapter enforces one while reading.
@@ -15,7 +16,15 @@ export const refuseOversizedBodies: Handle = async ({ event, resolve }) => {
 	const limit_bytes = bodyLimitFor(event.url.pathname);
 	const declared = Number(event.request.headers.get('content-length') ?? 0);
 	if (declared > limit_bytes) return tooLarge(`${declared} bytes`, limit_bytes);
-	if (event.request.body && !event.request.headers.has('content-length') && (await runsPastLimit(event.request, limit_bytes))) {
+	// A chunked import upload is counted while it is spooled to disk instead: reading it ahead here
+	// would hold a copy of the whole file in memory.
+	const countedLater = isUploadRoute(event.url.pathname);
+	if (
+		event.request.body &&
+		!event.request.headers.has('content-length') &&
+		!countedLater &&
+		(await runsPastLimit(event.request, limit_bytes))
+	) {
 		return tooLarge('the body ran past it', limit_bytes);
 	}
 	return resolve(event);

@@ -13,9 +13,18 @@ const UPLOAD_ROUTE = /^\/api\/setups\/[^/]+\/import\/?(\?.*)?$/;
  * @param {string} path @param {NodeJS.ProcessEnv} env
  */
 export function bodyLimitFor(path, env = process.env) {
-	return UPLOAD_ROUTE.test(path)
+	return isUploadRoute(path)
 		? parseByteLimit(env.PHASEWARDEN_UPLOAD_LIMIT || DEFAULT_UPLOAD_LIMIT)
 		: parseByteLimit(env.PHASEWARDEN_ROUTE_BODY_LIMIT || env.BODY_SIZE_LIMIT || DEFAULT_BODY_LIMIT);
+}
+
+/**
+ * The import route: its upload is counted against the limit as it is spooled to disk
+ * (transfer/upload-spool.ts), so it is never read ahead into memory to be measured.
+ * @param {string} path
+ */
+export function isUploadRoute(path) {
+	return UPLOAD_ROUTE.test(path);
 }
 
 /** Bytes in a size like '512K', '1M', '1G' or a plain byte count. @param {string} value */

@@ -7,9 +7,14 @@ import { createWriteStream, mkdirSync, openAsBlob, rmSync } from 'node:fs';
 import path from 'node:path';
 import { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
+import { Transform } from 'node:stream';
 import busboy from 'busboy';
+import { tooLargeMessage } from '../http/body-size.js';
 
 export class UploadRefused extends Error {}
+
+/** The body ran past the upload limit (HTTP 413); nothing of it is kept. */
+export class UploadTooLarge extends UploadRefused {}
 
 export interface SpooledUpload {
 	file: Blob;
@@ -22,7 +27,20 @@ export interface SpooledUpload {
 /** Text fields other than the file are short (a run key); this caps what a form can make us hold. */
 const FIELD_LIMIT_BYTES = 4096;
 
-export async function spoolUpload(request: Request, dataDir: string, fileField = 'file'): Promise<SpooledUpload> {
+/** Counts the body's bytes on their way to the parser and stops the upload once they pass the limit. */
+function byteLimit(limit_bytes: number) {
+	let seen_bytes = 0;
+	return new Transform({
+		transform(chunk: Buffer, _encoding, done) {
+			seen_bytes += chunk.length;
+			if (seen_bytes > limit_bytes) done(new UploadTooLarge(tooLargeMessage('the upload ran past it', limit_bytes)));
+			else done(null, chunk);
+		}
+	});
+}
+
+/** A body's length is checked before this runs when it is declared; one sent chunked is counted here, against `limit_bytes`. */
+export async function spoolUpload(request: Request, dataDir: string, limit_bytes: number, fileField = 'file'): Promise<SpooledUpload> {
 	const contentType = request.headers.get('content-type') ?? '';
 	if (!contentType.toLowerCase().startsWith('multipart/form-data') || !request.body) {
 		throw new UploadRefused(`send the file as multipart/form-data with a field "${fileField}"`);
@@ -55,12 +73,14 @@ export async function spoolUpload(request: Request, dataDir: string, fileField =
 		if (!info.valueTruncated) fields[name] = value;
 	});
 	try {
-		await pipeline(Readable.fromWeb(request.body as import('node:stream/web').ReadableStream<Uint8Array>), parser);
+		await pipeline(Readable.fromWeb(request.body as import('node:stream/web').ReadableStream<Uint8Array>), byteLimit(limit_bytes), parser);
 		if (!written) throw new UploadRefused(`field "${fileField}" is missing: choose an NDJSON file of frames`);
 		await written;
 	} catch (err) {
 		discard();
 		if (err instanceof UploadRefused) throw err;
+		// adapter-node stops reading at its own limit (the same number) with a 413 of its own.
+		if ((err as { status?: number }).status === 413) throw new UploadTooLarge(tooLargeMessage('the upload ran past it', limit_bytes));
 		throw new UploadRefused(`the upload could not be read: ${(err as Error).message}`);
 	}
 	return { file: await openAsBlob(spoolPath), fileName: fileName ?? 'upload', fields, discard };

@@ -7,14 +7,16 @@ import { describeZodError } from '$lib/protocol/messages';
 import { json, requireRole } from '$lib/server/http/guard';
 import { getRuntime } from '$lib/server/runtime';
 import { ImportRefused, importFrameFile, runKeySchema, type ImportPhase } from '$lib/server/transfer/import-frames';
-import { spoolUpload, UploadRefused, type SpooledUpload } from '$lib/server/transfer/upload-spool';
+import { bodyLimitFor } from '$lib/server/http/body-size.js';
+import { spoolUpload, UploadRefused, UploadTooLarge, type SpooledUpload } from '$lib/server/transfer/upload-spool';
 import type { RequestHandler } from './$types';
 
-async function readUpload(request: Request, dataDir: string) {
+async function readUpload(request: Request, pathname: string, dataDir: string) {
 	let upload: SpooledUpload;
 	try {
-		upload = await spoolUpload(request, dataDir);
+		upload = await spoolUpload(request, dataDir, bodyLimitFor(pathname));
 	} catch (err) {
+		if (err instanceof UploadTooLarge) error(413, err.message);
 		if (err instanceof UploadRefused) error(400, err.message);
 		throw err;
 	}
@@ -36,7 +38,7 @@ const refusal = (err: ImportRefused) => ({ status: err.status, message: err.mess
 export const POST: RequestHandler = async (event) => {
 	requireRole(event, 'operator');
 	const runtime = await getRuntime();
-	const { upload, runKey } = await readUpload(event.request, runtime.config.dataDir);
+	const { upload, runKey } = await readUpload(event.request, event.url.pathname, runtime.config.dataDir);
 	const { file, fileName } = upload;
 	const setupId = event.params.id;
 	if (!event.url.searchParams.has('progress')) {
