@@ -6,7 +6,7 @@ import type { Frame } from '../protocol/frame';
 import type { Detector, DetectorContext } from './detector';
 import type { DetectorEvent, Signal } from './events';
 import { acceptSignal, isOpen, type OpenCondition } from './open-set';
-import { checkRulesAgainstRun, detectorRulesSchema, parseDetectorRules, type DetectorRules, type RuleKind } from './rules';
+import { checkRulesAgainstRun, detectorRulesSchema, parseDetectorRules, RulesRefused, type DetectorRules, type RuleKind } from './rules';
 import { parseRunInfo, runInfoSchema, type RunInfo } from './run-info';
 import { compileRates, expectFrame, type CompiledRates, type FrameExpectation } from './expected';
 import { lockLost } from './lock-lost';
@@ -48,7 +48,7 @@ const json = <T>(value: T): T => JSON.parse(JSON.stringify(value));
 
 function checkRules(rules: DetectorRules, states: number): DetectorRules {
 	const problem = checkRulesAgainstRun(rules, states);
-	if (problem) throw new RangeError(`detector rules: ${problem.path}: ${problem.message}`);
+	if (problem) throw new RulesRefused(problem.path.split('.'), problem.message);
 	return rules;
 }
 

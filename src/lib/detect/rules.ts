@@ -220,13 +220,22 @@ export function defaultRules(): DetectorRules {
 	return detectorRulesSchema.parse({});
 }
 
-/** Parses a rule set, throwing an error whose message names the first bad field. */
+/** A rule set refused: the message names the first bad field, and `path` and `problem` give it as data for forms. */
+export class RulesRefused extends RangeError {
+	constructor(
+		readonly path: string[],
+		readonly problem: string
+	) {
+		super(`detector rules: ${path.join('.') || '(rules)'}: ${problem}`);
+	}
+}
+
+/** Parses a rule set, throwing RulesRefused for the first bad field. */
 export function parseDetectorRules(input: unknown): DetectorRules {
 	const result = detectorRulesSchema.safeParse(input);
 	if (result.success) return result.data;
 	const issue = result.error.issues[0];
-	const path = issue.path.map(String).join('.') || '(rules)';
-	throw new RangeError(`detector rules: ${path}: ${issue.message}`);
+	throw new RulesRefused(issue.path.map(String), issue.message);
 }
 
 /**

@@ -3,6 +3,7 @@
 // pages in flight, and a cancel stops it.
 import { describe, expect, it } from 'vitest';
 import { replayIncidents, replayRun } from '../../../src/lib/detect/replay';
+import { RulesRefused } from '../../../src/lib/detect/rules';
 import type { Frame } from '../../../src/lib/protocol/frame';
 import { ReplayCancelled, replayInWorker } from '../../../src/lib/server/replay/replay-in-worker';
 import type { FramePage } from '../../../src/lib/server/replay/worker-protocol';
@@ -67,5 +68,13 @@ describe('replay in a worker thread', () => {
 		const failed = replayInWorker(pages(500), { rules: { lock_lost: { threshold: 'high' } }, run });
 		await expect(failed).rejects.toBeInstanceOf(RangeError);
 		await expect(failed).rejects.toThrow(/lock_lost/);
+		// A refused rule keeps its field as data too, for the replay form to put the message on its input:
+		// a pair naming state 7 of this 6-state run is refused by the engine inside the worker.
+		const misfit = await replayInWorker(pages(500), { rules: { occupancy_imbalance: { expectedPairs: [[0, 7]] } }, run }).catch((e) => e);
+		expect(misfit).toBeInstanceOf(RulesRefused);
+		expect(misfit).toMatchObject({
+			path: ['occupancy_imbalance', 'expectedPairs', '0', '1'],
+			problem: expect.stringMatching(/state 7 does not exist/)
+		});
 	}, 60_000);
 });

@@ -3,6 +3,7 @@
 // engine, so a long run is never in memory at once however fast the reads are.
 import { Worker } from 'node:worker_threads';
 import type { ReplayerOptions, ReplayIncident } from '../../detect/replay';
+import { RulesRefused } from '../../detect/rules';
 import type { RunInfo } from '../../detect/run-info';
 import { REPLAY_WORKER_ROLE, type FramePage, type FromReplayWorker, type ReplayWorkerData, type ToReplayWorker } from './worker-protocol';
 
@@ -80,7 +81,11 @@ export async function replayInWorker(pages: AsyncIterable<FramePage>, job: Repla
 		} else if (m.type === 'done') {
 			settle.resolve({ frameCount: m.frameCount, incidents: m.incidents });
 		} else if (m.type === 'error') {
-			const err = m.name === 'RangeError' ? new RangeError(m.message) : new Error(`replay worker: ${m.message}`);
+			const err = m.rule
+				? new RulesRefused(m.rule.path, m.rule.problem)
+				: m.name === 'RangeError'
+					? new RangeError(m.message)
+					: new Error(`replay worker: ${m.message}`);
 			fail(err);
 		}
 	});

@@ -2,6 +2,7 @@
 // at most one replay per person, cancelled when they go away. Shared by POST /api/runs/:id/replay
 // and the replay page's form action.
 import type { Db } from '../db';
+import { RulesRefused } from '../../detect/rules';
 import { getSetupRules } from '../rules/service';
 import { getRun } from '../runs/service';
 import { ReplayCancelled } from './replay-in-worker';
@@ -11,7 +12,9 @@ import { replayStoredRun } from './service';
 export class ReplayRefused extends Error {
 	constructor(
 		readonly status: 400 | 404 | 409 | 499,
-		message: string
+		message: string,
+		/** For refused rules: the field at fault (path from the rule kind) and what is wrong with it. */
+		readonly rule?: { path: string[]; problem: string }
 	) {
 		super(message);
 	}
@@ -33,7 +36,10 @@ export async function replayRunFor(db: Db, userId: string, runId: string, rules:
 		const chosen = rules ?? (await getSetupRules(db, run.setupId));
 		return await replayStoredRun(db, run, chosen, { signal, onProgress: (done) => (progress.done = done) });
 	} catch (err) {
-		if (err instanceof RangeError) throw new ReplayRefused(400, err.message.replace(/^detector rules: /, 'rules.'));
+		if (err instanceof RangeError) {
+			const rule = err instanceof RulesRefused ? { path: err.path, problem: err.problem } : undefined;
+			throw new ReplayRefused(400, err.message.replace(/^detector rules: /, 'rules.'), rule);
+		}
 		// The person went away (closed the page): nobody reads the answer.
 		if (err instanceof ReplayCancelled) throw new ReplayRefused(499, 'replay cancelled');
 		throw err;

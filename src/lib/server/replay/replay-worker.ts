@@ -7,6 +7,7 @@
 // from source. Vite does not bundle `new Worker(new URL(..., import.meta.url))` for the server.
 import { isMainThread, parentPort, workerData } from 'node:worker_threads';
 import { IncidentFold, Replayer } from '../../detect/replay';
+import { RulesRefused } from '../../detect/rules';
 import { REPLAY_WORKER_ROLE, type FromReplayWorker, type ReplayWorkerData, type ToReplayWorker } from './worker-protocol';
 
 export const replayWorkerUrl: string = import.meta.url;
@@ -17,7 +18,8 @@ if (!isMainThread && parentPort && data?.role === REPLAY_WORKER_ROLE) {
 	const send = (m: FromReplayWorker) => port.postMessage(m);
 	const fail = (err: unknown) => {
 		const e = err instanceof Error ? err : new Error(String(err));
-		send({ type: 'error', name: e.name, message: e.message });
+		const rule = e instanceof RulesRefused ? { path: e.path, problem: e.problem } : undefined;
+		send({ type: 'error', name: e.name, message: e.message, rule });
 	};
 	let replayer: Replayer | null = null;
 	try {

@@ -26,5 +26,5 @@ export type FromReplayWorker =
 	/** A page went through the engine; `frames` counts all pushed so far. */
 	| { type: 'pushed'; frames: number }
 	| { type: 'done'; frameCount: number; incidents: ReplayIncident[] }
-	/** `name` lets the caller rebuild a RangeError (rules that do not fit the run: a 400). */
-	| { type: 'error'; name: string; message: string };
+	/** `name` lets the caller rebuild a RangeError (rules that do not fit the run: a 400); `rule` is a refused rule's field. */
+	| { type: 'error'; name: string; message: string; rule?: { path: string[]; problem: string } };

@@ -12,9 +12,9 @@ import { getSetup } from '$lib/server/setups/service';
 import {
 	draftFromForm,
 	fromDraft,
-	messageField,
 	resolveSpecs,
 	applyRowEdit,
+	placeIssues,
 	toDraft,
 	type Draft
 } from '../../../setups/[id]/rules/rules-form';
@@ -70,8 +70,10 @@ export const actions: Actions = {
 			return { draft, result };
 		} catch (err) {
 			if (!(err instanceof ReplayRefused)) throw err;
-			const named = messageField(err.message, draft, specs);
-			return fail(err.status, { draft, field: named.field, message: named.text });
+			// Refused rules come with their field as data; put the message on that input.
+			const placed = err.rule ? placeIssues([{ path: err.rule.path, message: err.rule.problem }], draft, specs) : {};
+			const [field, message] = Object.entries(placed)[0] ?? [null, err.message];
+			return fail(err.status, { draft, field, message });
 		}
 	}
 };

@@ -3,13 +3,11 @@
 import { describe, expect, it } from 'vitest';
 import { superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { defaultRules, detectorRulesSchema } from '$lib/detect/rules';
-import { describeZodError } from '$lib/protocol/messages';
+import { checkRulesAgainstRun, defaultRules, detectorRulesSchema, parseDetectorRules, RulesRefused } from '$lib/detect/rules';
 import {
 	draftFromForm,
 	errorPaths,
 	fromDraft,
-	messageField,
 	placeIssues,
 	resolveSpecs,
 	rowDraft,
@@ -100,28 +98,31 @@ describe('rules form', () => {
 		});
 	});
 
-	it('finds the field in the API’s 400 message', () => {
+	it('places a refused rule set’s field (RulesRefused, data rather than text) on its input', () => {
 		const specs = resolveSpecs(rules());
 		const draft = toDraft(rules(), specs);
-		const parsed = detectorRulesSchema.safeParse({
-			aux_limit: {
-				limits: [
-					{ name: 'a', above: 1 },
-					{ name: 'b', above: 1, clearBelow: 2 }
-				]
-			}
-		});
-		const message = describeZodError(parsed.error!);
-		draft.aux_limit.rows = [
-			rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!),
-			rowDraft(specs.find((s) => s.kind === 'aux_limit')!.list!)
-		];
-		expect(messageField(message, draft, specs).field).toBe('aux_limit.limits.1.clearBelow');
-		expect(messageField('detector rules: lock_lost.windows: must be a whole number of windows', draft, specs)).toEqual({
-			field: 'lock_lost.windows',
-			text: 'must be a whole number of windows'
-		});
-		expect(messageField('the request body is not valid JSON', draft, specs).field).toBeNull();
+		const list = specs.find((s) => s.kind === 'aux_limit')!.list!;
+		draft.aux_limit.rows = [rowDraft(list), rowDraft(list)];
+		let refused: unknown;
+		try {
+			parseDetectorRules({
+				aux_limit: {
+					limits: [
+						{ name: 'a', above: 1 },
+						{ name: 'b', above: 1, clearBelow: 2 }
+					]
+				}
+			});
+		} catch (err) {
+			refused = err;
+		}
+		expect(refused).toBeInstanceOf(RulesRefused);
+		const { path, problem } = refused as RulesRefused;
+		expect(path).toEqual(['aux_limit', 'limits', '1', 'clearBelow']);
+		expect(Object.keys(placeIssues([{ path, message: problem }], draft, specs))).toEqual(['aux_limit.limits.1.clearBelow']);
+		// Rules that parse yet do not fit the run (a pair naming a state a 4-state run lacks) carry a path too.
+		const misfit = checkRulesAgainstRun(detectorRulesSchema.parse({ occupancy_imbalance: { expectedPairs: [[0, 5]] } }), 4);
+		expect(misfit?.path).toBe('occupancy_imbalance.expectedPairs.0.1');
 	});
 });
 

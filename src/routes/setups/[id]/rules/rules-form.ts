@@ -6,4 +6,3 @@ export { fromDraft, rowDraft, toDraft, type Draft, type DraftRow, type DraftValu
 export { applyRowEdit, draftFromForm, fieldName, rowFieldName } from './rules-form-data';
 export { errorPaths, fieldKeys, nearestField, placeIssues, toRulesPath, validateDraft, type Validation } from './rules-validation';
 export { changedFields, idleNotes, sameValue } from './rules-changes';
-export { messageField } from './api-message-field';
