@@ -81,5 +81,30 @@ describe('a rota shared by a group of setups', () => {
 		// Stopping: the second fridge is back to paging every operator (no rota of its own).
 		expect((await postForm(server, `/setups/${second}/oncall?/stopFollowing`, {}, op.cookie)).status).toBe(200);
 		expect((await (await observer(`/api/setups/${second}/rota`)).json()).now).toEqual({ primary: null, secondary: null });
+
+		// The same through the JSON API: observers are refused, the same checks name their reason,
+		// and following and stopping answer with the follower's rota.
+		const follow = (f: typeof admin, body: unknown) =>
+			f(`/api/setups/${second}/rota/follow`, { method: 'PUT', body: JSON.stringify(body) });
+		expect((await follow(observer, { rotaSetupId: seeded.setupId })).status).toBe(403);
+		const blank = await follow(operator, {});
+		expect(blank.status).toBe(400);
+		expect((await blank.json()).message).toMatch(/^rotaSetupId/);
+		const itself = await follow(operator, { rotaSetupId: second });
+		expect(itself.status).toBe(400);
+		expect((await itself.json()).message).toMatch(/cannot follow its own rota/);
+		const notOnCallable = await follow(operator, { rotaSetupId: seeded.setupId });
+		expect(notOnCallable.status).toBe(400);
+		expect((await notOnCallable.json()).message).toMatch(/Test Admin .* cannot be on call here/);
+		const narrower = { ...rota, members: [operatorId] };
+		expect((await operator(`/api/setups/${seeded.setupId}/rota`, { method: 'PUT', body: JSON.stringify(narrower) })).status).toBe(200);
+		const followed = await follow(operator, { rotaSetupId: seeded.setupId });
+		expect(followed.status).toBe(200);
+		expect(await followed.json()).toMatchObject({ sharedFrom: { id: seeded.setupId }, now: { primary: operatorId } });
+		expect((await observer(`/api/setups/${second}/rota/follow`, { method: 'DELETE' })).status).toBe(403);
+		const stopped = await operator(`/api/setups/${second}/rota/follow`, { method: 'DELETE' });
+		expect(stopped.status).toBe(200);
+		expect((await stopped.json()).now).toEqual({ primary: null, secondary: null });
+		expect((await operator(`/api/setups/${second}/rota/follow`, { method: 'DELETE' })).status).toBe(404);
 	}, 120_000);
 });
