@@ -9,7 +9,7 @@ import { SERVER_NODE_FLAGS } from './server-flags.js';
 // How far V8 lets the old generation grow past what survived its last full collection before the
 // next one. Left to itself V8 allows up to 4× on a quiet server, so a week-long export (which moves a
 // few hundred kB of short-lived pages to the old generation at each young collection) grew the
-// server by 40–60 MB before a full collection ran; at 25 % it stays about 25–40 MB over idle
+// server by 40–60 MB before a full collection ran; at 25 % it stayed 13–41 MB over idle
 // (tests/bench/export-memory, --trace-gc) and live commits keep their cost (tests/bench/live-commit).
 // V8 reads the setting each time it sizes the heap, so setting it here, before the app loads, is enough.
 const heapGrowthPercent = Number(process.env.PHASEWARDEN_V8_HEAP_GROWTH_PERCENT ?? 25);
