@@ -77,9 +77,9 @@ export function ndjsonLineSql(): SQL {
 
 /**
  * How big a page is. Pages are kept under V8's large-object size (about 128 kB): a larger string
- * or buffer still in use when the young generation is swept is moved to the old generation, which is
- * freed only by a full collection, and over a week's export those moved pages grew the server by
- * 40–60 MB before one ran (tests/bench/export-memory, --trace-gc). Lines vary in length (IQ
+ * is allocated where only a full collection frees it, so a week's export left hundreds of dead pages
+ * behind between full collections. Smaller pages are half of the fix; the other half is the heap
+ * growth set in src/bin/serve.js (tests/bench/export-memory, --trace-gc). Lines vary in length (IQ
  * histograms of up to 64×64 counts), so the row count follows the bytes of the page before.
  */
 export interface PageSizing {
