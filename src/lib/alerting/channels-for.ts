@@ -1,5 +1,6 @@
 // Which of a person's channels a notice goes to, from their preferences: pure, so the rules
 // (critical always through, quiet hours across midnight, clear notices optional) are tested alone.
+import { zonedParts } from '../ui/zoned-time';
 
 export const PERSONAL_CHANNELS = ['email', 'push', 'sms'] as const;
 export type PersonalChannel = (typeof PERSONAL_CHANNELS)[number];
@@ -33,9 +34,8 @@ export function minutesOfDay(hhmm: string): number {
 
 /** Minutes since local midnight of `at` in `timeZone` (an IANA name). */
 export function localMinutes(at: Date, timeZone: string): number {
-	const parts = new Intl.DateTimeFormat('en-GB', { timeZone, hour: '2-digit', minute: '2-digit', hourCycle: 'h23' }).formatToParts(at);
-	const get = (type: string) => Number(parts.find((p) => p.type === type)?.value);
-	return get('hour') * 60 + get('minute');
+	const { hour, minute } = zonedParts(at.getTime(), timeZone);
+	return hour * 60 + minute;
 }
 
 export function inQuietHours(prefs: Pick<AlertPrefs, 'quietStart' | 'quietEnd'>, at: Date, timeZone: string): boolean {

@@ -1,8 +1,9 @@
 // Who is on call at an instant: a weekly rotation handed over at a wall-clock time in the lab's
 // time zone, with overrides on top. Pure, so the rota, the calendar and the alerts agree.
 // Written by hand rather than with a date library: the only calendar arithmetic needed is "local
-// wall-clock minutes since a fixed Monday", which Intl.DateTimeFormat gives for any IANA zone, and
+// wall-clock minutes since a fixed Monday", which Intl.DateTimeFormat gives for any IANA zone (zonedParts), and
 // comparing wall-clock minutes makes a handover happen at the same local time across DST changes.
+import { zonedParts } from '../ui/zoned-time';
 
 export interface WeeklyRota {
 	/** User ids in rotation order; the first is on call in the week that starts on `startsOn`. */
@@ -31,32 +32,13 @@ const MINUTES_PER_WEEK = 7 * MINUTES_PER_DAY;
 // 1970-01-05 was a Monday: civil days are counted from there so week arithmetic starts on Monday.
 const EPOCH_MONDAY_DAYS = 4;
 
-const formatters = new Map<string, Intl.DateTimeFormat>();
-function formatterFor(timeZone: string): Intl.DateTimeFormat {
-	let f = formatters.get(timeZone);
-	if (!f) {
-		f = new Intl.DateTimeFormat('en-US', {
-			timeZone,
-			year: 'numeric',
-			month: '2-digit',
-			day: '2-digit',
-			hour: '2-digit',
-			minute: '2-digit',
-			hourCycle: 'h23'
-		});
-		formatters.set(timeZone, f);
-	}
-	return f;
-}
-
 function civilDays(year: number, month: number, day: number): number {
 	return Math.floor(Date.UTC(year, month - 1, day) / 86_400_000) - EPOCH_MONDAY_DAYS;
 }
 
 /** Wall-clock minutes in `timeZone` since Monday 1970-01-05 00:00 local. */
 export function localMinutes(at: Date, timeZone: string): number {
-	const parts: Record<string, number> = {};
-	for (const p of formatterFor(timeZone).formatToParts(at)) if (p.type !== 'literal') parts[p.type] = Number(p.value);
+	const parts = zonedParts(at.getTime(), timeZone);
 	return civilDays(parts.year, parts.month, parts.day) * MINUTES_PER_DAY + parts.hour * 60 + parts.minute;
 }
 

@@ -1,21 +1,15 @@
 // How the summary and the morning report put numbers into words: times in the lab's time zone
 // (Intl), p-values, rate verdicts. Shared by the components and the plain-text e-mail.
+import { hourMinuteText, zonedParts } from '../ui/zoned-time';
 import type { RateComparison } from './rates';
+
+const pad = (n: number) => String(n).padStart(2, '0');
 
 /** "2026-12-01 07:42" in the given IANA time zone. */
 export function formatInZone(ms: number | null | undefined, timeZone: string): string {
 	if (ms == null || !Number.isFinite(ms)) return '—';
-	const parts = new Intl.DateTimeFormat('en-GB', {
-		timeZone,
-		year: 'numeric',
-		month: '2-digit',
-		day: '2-digit',
-		hour: '2-digit',
-		minute: '2-digit',
-		hourCycle: 'h23'
-	}).formatToParts(new Date(ms));
-	const get = (t: string) => parts.find((p) => p.type === t)?.value ?? '';
-	return `${get('year')}-${get('month')}-${get('day')} ${get('hour')}:${get('minute')}`;
+	const p = zonedParts(ms, timeZone);
+	return `${p.year}-${pad(p.month)}-${pad(p.day)} ${hourMinuteText(p)}`;
 }
 
 export function formatP(p: number | null | undefined): string {
